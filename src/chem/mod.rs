@@ -1,0 +1,6 @@
+//! Chemistry basics: elements, molecules, the XYZ reader.
+pub mod elements;
+pub mod molecule;
+pub mod xyz;
+
+pub use molecule::{Atom, Molecule};

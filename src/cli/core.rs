@@ -1,0 +1,10 @@
+//! `bandcast core` (being built).
+
+use bandcast::{Error, Result};
+
+#[derive(clap::Args, Debug)]
+pub struct Args {}
+
+pub fn run(_args: Args) -> Result<()> {
+    Err(Error::computation("'bandcast core' is not built yet"))
+}

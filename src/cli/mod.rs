@@ -1,0 +1,9 @@
+//! One file per subcommand; shared argument groups in `common`.
+pub mod assign;
+pub mod basis;
+pub mod bench;
+pub mod common;
+pub mod core;
+pub mod ionize;
+pub mod scf;
+pub mod spectrum;

@@ -1,0 +1,4 @@
+//! Ionization methods and the bands they produce.
+pub mod band;
+
+pub use band::{Band, MakeupEntry, Region};

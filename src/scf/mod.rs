@@ -1,0 +1,4 @@
+//! Hartree–Fock SCF.
+pub mod wavefunction;
+
+pub use wavefunction::{Reference, Wavefunction};
