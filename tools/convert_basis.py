@@ -130,6 +130,14 @@ def citation(entry):
     return text
 
 
+def is_literature(entry):
+    """A journal article, book or thesis (not a software manual)."""
+    kind = entry.get("_entry_type", "article")
+    if kind == "article":
+        return bool(entry.get("journal"))
+    return kind in ("book", "incollection", "inbook", "phdthesis", "mastersthesis")
+
+
 def sources(name, elements):
     """Reference groups: [{"elements": [...], "note": ..., "cite": [...]}], merged by text."""
     merged = {}
@@ -138,7 +146,15 @@ def sources(name, elements):
         els = [SYMBOLS[int(z)] for z in group["elements"]]
         for info in group["reference_info"]:
             note = info.get("reference_description", "")
-            cites = tuple(citation(data) for _key, data in info["reference_data"])
+            # Only published literature is cited. The library also lists, for a few
+            # elements, the manual of a program that distributes the data; such entries are
+            # left out (project rule: the data files name papers, not programs) and the
+            # note says so.
+            published = [d for _key, d in info["reference_data"] if is_literature(d)]
+            if len(published) < len(info["reference_data"]):
+                note += (" (no journal publication recorded for these elements: values as "
+                         "distributed by the basis-set-exchange library)")
+            cites = tuple(citation(d) for d in published)
             key = (note, cites)
             if key not in merged:
                 merged[key] = []
@@ -230,10 +246,11 @@ def convert(name, stem, kind, harmonics, aliases, outdir):
         "harmonics": harmonics,
         "description": data.get("description", ""),
         "source": sources(name, zs),
+        # The library's free-text revision description is not copied: it names the
+        # programs the data were taken from. Version and date identify the data.
         "provenance": "converted by tools/convert_basis.py from basis-set-exchange %s "
-                      "(data revision: %s, %s)"
-                      % (bse.version(), data.get("revision_description", "?"),
-                         data.get("revision_date", "?")),
+                      "(set version %s, revised %s)"
+                      % (bse.version(), data.get("version", "?"), data.get("revision_date", "?")),
     }
     text = emit(doc, shells_by_element)
     json.loads(text)  # must be valid JSON
