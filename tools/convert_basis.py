@@ -202,6 +202,27 @@ def split_shells(name, z, shells):
     return out
 
 
+def verify(name, data, written):
+    """The written file holds exactly the library's primitives: for every element and l,
+    the multiset of (exponent, coefficient) pairs with nonzero coefficient agrees as f64."""
+    def pairs_library(el):
+        out = []
+        for sh in el["electron_shells"]:
+            am = sh["angular_momentum"]
+            for i, col in enumerate(sh["coefficients"]):
+                l = am[i] if len(am) > 1 else am[0]
+                out += [(l, float(e), float(c)) for e, c in zip(sh["exponents"], col)
+                        if float(c) != 0.0]
+        return sorted(out)
+    for z, el in data["elements"].items():
+        if int(z) > MAX_Z:
+            continue
+        mine = sorted((sh["l"], e, c) for sh in written["elements"][SYMBOLS[int(z)]]
+                      for e, c in zip(sh["exponents"], sh["coefficients"]))
+        if mine != pairs_library(el):
+            sys.exit(f"{name} Z={z}: written shells differ from the library's")
+
+
 def emit(doc, shells_by_element):
     """JSON text: metadata pretty-printed, one shell per line, numbers as published."""
     lines = ["{"]
@@ -253,7 +274,7 @@ def convert(name, stem, kind, harmonics, aliases, outdir):
                       % (bse.version(), data.get("version", "?"), data.get("revision_date", "?")),
     }
     text = emit(doc, shells_by_element)
-    json.loads(text)  # must be valid JSON
+    verify(name, data, json.loads(text))
     path = outdir / f"{stem}.json"
     path.write_text(text, encoding="utf-8")
     print(f"{name:22s} {len(zs):2d} elements  {len(text)/1024:7.1f} KiB  -> {path}")
