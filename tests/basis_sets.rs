@@ -59,6 +59,12 @@ fn every_bundled_set_parses_and_names_its_source() {
         let d = catalog::get(name).unwrap();
         assert_eq!(d.name, name);
         assert!(!d.elements.is_empty(), "{name}");
+        // Writing the set out and reading it back gives the same data, bit for bit.
+        assert_eq!(
+            &BasisData::from_json(&d.to_json(), None).unwrap(),
+            d,
+            "{name}"
+        );
         let cites: usize = d.source.iter().map(|s| s.cite.len()).sum();
         assert!(cites >= 1, "{name} cites no paper");
         // Every element the set defines has a source entry (possibly one saying that no
@@ -335,8 +341,8 @@ fn malformed_user_files_point_at_the_line() {
     let good = catalog::get("STO-3G").unwrap().to_json();
     let path = temp_path("broken.json");
 
-    // A coefficient dropped from the oxygen 2sp-split p shell (pretty-printed: one number
-    // per line, so the error must name the shell's line).
+    // A coefficient dropped from the oxygen 2p shell (third shell; one shell per line in
+    // the written layout, so the error must name that line).
     let data: BasisData = catalog::get("STO-3G").unwrap().clone();
     let mut bad = data.clone();
     bad.elements.iter_mut().find(|e| e.z == 8).unwrap().shells[2]

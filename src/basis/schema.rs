@@ -286,32 +286,50 @@ impl BasisData {
         })
     }
 
-    /// The set as a file in this schema (pretty-printed JSON; numbers written so they
-    /// read back to the same f64).
+    /// The set as a file in this schema, laid out like the bundled files: metadata first,
+    /// then one shell per line. Numbers are written so that they read back to the same f64.
     pub fn to_json(&self) -> String {
-        let mut map = serde_json::Map::new();
-        for e in &self.elements {
-            map.insert(
-                e.symbol().to_string(),
-                serde_json::to_value(&e.shells).expect("shells serialise"),
-            );
+        fn js<T: Serialize + ?Sized>(v: &T) -> String {
+            serde_json::to_string(v).expect("basis data serialises")
         }
-        let file = OutFile {
-            name: &self.name,
-            aliases: &self.aliases,
-            kind: self.kind,
-            harmonics: match self.harmonics {
-                Harmonics::Cartesian => HarmonicsText::Cartesian,
-                Harmonics::Pure => HarmonicsText::Pure,
-            },
-            description: &self.description,
-            source: &self.source,
-            provenance: &self.provenance,
-            elements: map,
+        let harmonics = match self.harmonics {
+            Harmonics::Cartesian => HarmonicsText::Cartesian,
+            Harmonics::Pure => HarmonicsText::Pure,
         };
-        let mut s = serde_json::to_string_pretty(&file).expect("basis data serialises");
-        s.push('\n');
-        s
+        let mut out = String::from("{\n");
+        out += &format!("  \"name\": {},\n", js(&self.name));
+        out += &format!("  \"aliases\": {},\n", js(&self.aliases));
+        out += &format!("  \"kind\": {},\n", js(&self.kind));
+        out += &format!("  \"harmonics\": {},\n", js(&harmonics));
+        out += &format!("  \"description\": {},\n", js(&self.description));
+        out += "  \"source\": [";
+        for (i, entry) in self.source.iter().enumerate() {
+            out += if i == 0 { "\n    " } else { ",\n    " };
+            out += &js(entry);
+        }
+        out += if self.source.is_empty() {
+            "],\n"
+        } else {
+            "\n  ],\n"
+        };
+        out += &format!("  \"provenance\": {},\n", js(&self.provenance));
+        out += "  \"elements\": {";
+        for (i, e) in self.elements.iter().enumerate() {
+            out += if i == 0 { "\n" } else { ",\n" };
+            out += &format!("    {}: [", js(e.symbol()));
+            for (k, sh) in e.shells.iter().enumerate() {
+                out += if k == 0 { "\n      " } else { ",\n      " };
+                out += &format!(
+                    "{{\"l\": {}, \"exponents\": {}, \"coefficients\": {}}}",
+                    sh.l,
+                    js(&sh.exponents),
+                    js(&sh.coefficients)
+                );
+            }
+            out += "\n    ]";
+        }
+        out += "\n  }\n}\n";
+        out
     }
 }
 
@@ -331,18 +349,6 @@ struct RawFile {
     #[serde(default)]
     provenance: String,
     elements: ElementMap,
-}
-
-#[derive(Serialize)]
-struct OutFile<'a> {
-    name: &'a str,
-    aliases: &'a [String],
-    kind: SetKind,
-    harmonics: HarmonicsText,
-    description: &'a str,
-    source: &'a [SourceEntry],
-    provenance: &'a str,
-    elements: serde_json::Map<String, serde_json::Value>,
 }
 
 /// The "elements" object: symbol → shells, with symbols checked and duplicates refused

@@ -9,28 +9,29 @@ use bandcast::chem::elements::parse_element;
 use bandcast::report::write_atomic;
 use bandcast::{Error, Result};
 
+const LONG_HELP: &str = "\
+Without NAME: every bundled set with the elements it defines, whether its d and f
+functions are Cartesian or real solid harmonics, the number of functions on a carbon
+atom, and the papers it comes from. Orbital sets come first, then the auxiliary sets the
+correlated methods use for density fitting.
+
+With NAME (any usual spelling: 6-31g(d), cc-pvdz, def2svp ...): the set element by
+element -- primitives (9s4p1d), contracted shells 3s2p1d, number of basis functions,
+highest angular momentum -- the fitting sets chosen for it, and its source papers.
+
+NAME may also be the path of your own basis file in the bandcast schema (DEVELOPERS.md,
+\"Basis-set files\"): it is read, checked and summarised; errors name the line. To start a
+custom set, write a bundled one out with --export and edit it.
+
+Examples:
+  bandcast basis
+  bandcast basis 6-31g(d) --elements C,H,O
+  bandcast basis def2-TZVPP --export my-set.json
+  bandcast basis my-set.json";
+
 /// Show the basis sets bandcast carries, or one set in detail.
-///
-/// Without NAME: every bundled set with the elements it defines, whether its d, f, g
-/// functions are Cartesian or real solid harmonics, the size on a carbon atom, and the
-/// papers it comes from. Orbital sets come first, then the auxiliary sets used for density
-/// fitting in the correlated methods.
-///
-/// With NAME (any usual spelling: 6-31g(d), cc-pvdz, def2svp …): the set's shells element
-/// by element — primitives (9s4p1d), contracted shells [3s2p1d] and the number of basis
-/// functions — and its source papers. NAME may also be a path to your own basis file in the
-/// bandcast schema (DEVELOPERS.md, "Basis-set files"): it is checked and summarised, and
-/// errors point at the line.
-///
-/// To start a custom set, write a bundled one out with --export and edit it.
-///
-/// Examples:
-///   bandcast basis
-///   bandcast basis 6-31g(d) --elements C,H,O
-///   bandcast basis def2-TZVPP --export my-set.json
-///   bandcast basis my-set.json
 #[derive(clap::Args, Debug)]
-#[command(verbatim_doc_comment)]
+#[command(after_long_help = LONG_HELP)]
 pub struct Args {
     /// A bundled set's name or a path to a basis file (.json); omit to list all sets.
     #[arg(value_name = "NAME|FILE")]
