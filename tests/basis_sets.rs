@@ -21,10 +21,7 @@ fn water() -> Molecule {
 }
 
 fn one_atom(z: u32) -> Molecule {
-    let m = Molecule::new(vec![atom(z, [0.0; 3])]);
-    m.clone()
-        .with_charge_multiplicity(0, if z % 2 == 0 { 1 } else { 2 })
-        .unwrap_or(m)
+    Molecule::new(vec![atom(z, [0.0; 3])])
 }
 
 fn temp_path(name: &str) -> PathBuf {
@@ -413,4 +410,36 @@ fn szabo_ostlund_heh_plus_file() {
     // The H shell differs from the standard STO-3G only by the book's rounding of the
     // contraction (Hehre, Stewart & Pople 1969 values: 3.42525091, 0.15432897).
     assert!((b.shells[1].exponents[0] - 3.42525091).abs() < 1e-5);
+}
+
+#[test]
+fn command_lists_and_shows_sets() {
+    let exe = env!("CARGO_BIN_EXE_bandcast");
+    let out = std::process::Command::new(exe)
+        .arg("basis")
+        .output()
+        .unwrap();
+    assert!(out.status.success());
+    let text = String::from_utf8(out.stdout).unwrap();
+    for name in catalog::names() {
+        assert!(text.contains(name), "listing lacks {name}");
+    }
+    assert!(text.contains("Dunning 1989"), "{text}");
+    let out = std::process::Command::new(exe)
+        .args(["basis", "cc-pvdz", "--elements", "O,H"])
+        .output()
+        .unwrap();
+    assert!(out.status.success());
+    let text = String::from_utf8(out.stdout).unwrap();
+    // Dunning (1989): O (9s4p1d)/[3s2p1d], 14 functions with 5d.
+    assert!(
+        text.contains("(9s4p1d)") && text.contains("3s2p1d"),
+        "{text}"
+    );
+    assert!(text.contains("doi:10.1063/1.456153"), "{text}");
+    let out = std::process::Command::new(exe)
+        .args(["basis", "no-such-set"])
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(2));
 }

@@ -81,6 +81,7 @@ pub struct SourceEntry {
     #[serde(default)]
     pub note: String,
     /// Citation text, one paper per entry.
+    #[serde(default)]
     pub cite: Vec<String>,
 }
 
