@@ -5,11 +5,16 @@
 //! - `catalog`: the sets bundled in the binary.
 //! - `names`: name spellings, default fitting sets.
 //! - `load`: a set on a molecule.
+//! - `normalize`, `solid_harmonics`, `evaluate`: AO normalisation, Cartesian → real solid
+//!   harmonics, AO values at a point.
 pub mod catalog;
 pub mod load;
 pub mod names;
 pub mod schema;
+pub mod evaluate;
+pub mod normalize;
 pub mod shell;
+pub mod solid_harmonics;
 
 pub use load::{load, load_auxiliary};
 pub use names::{default_auxiliary_for, default_jk_auxiliary_for};
