@@ -13,7 +13,7 @@
 
 use crate::basis::normalize::contracted_coefficients;
 use crate::basis::solid_harmonics;
-use crate::basis::BasisSet;
+use crate::basis::{BasisSet, Shell};
 use crate::integrals::cartesian::{components, n_cartesian};
 use crate::integrals::hermite_coulomb::{hermite_r, r_index, RScratch};
 use crate::integrals::hermite_expansion::e_index;
@@ -37,6 +37,8 @@ pub struct EriEngine {
     n_shells: usize,
     shells: Vec<ShellMeta>,
     pairs: Vec<ShellPair>,
+    /// Position in `pairs` of the ordered pair (a, b), index a·n + b (u32::MAX: not kept).
+    pair_index: Vec<u32>,
     schwarz: Vec<f64>,
 }
 
@@ -65,10 +67,21 @@ thread_local! {
 
 impl EriEngine {
     pub fn new(basis: &BasisSet) -> Self {
-        let n = basis.shells.len();
         let coefs: Vec<Vec<f64>> = basis.shells.iter().map(contracted_coefficients).collect();
-        let shells: Vec<ShellMeta> = basis
-            .shells
+        Self::build(&basis.shells, &coefs, &|_, _| true)
+    }
+
+    /// Engine over `shells` with normalised coefficients `coefs` (see
+    /// `crate::basis::normalize`), keeping pair data only for the pairs (a, b) where
+    /// `wanted(a, b)` (called with a ≥ b; the pair (b, a) is kept with it). Quartets may only
+    /// use kept pairs. Schwarz bounds of pairs not kept are zero.
+    pub(crate) fn build(
+        shells_in: &[Shell],
+        coefs: &[Vec<f64>],
+        wanted: &(dyn Fn(usize, usize) -> bool + Sync),
+    ) -> Self {
+        let n = shells_in.len();
+        let shells: Vec<ShellMeta> = shells_in
             .iter()
             .map(|s| {
                 let t = solid_harmonics::transform(s.l, s.pure);
@@ -81,21 +94,35 @@ impl EriEngine {
                 }
             })
             .collect();
-        let pairs: Vec<ShellPair> = (0..n * n)
-            .into_par_iter()
-            .map(|ab| {
-                let (a, b) = (ab / n, ab % n);
-                ShellPair::new(&basis.shells[a], &basis.shells[b], &coefs[a], &coefs[b])
-            })
+        let list: Vec<(usize, usize)> = (0..n)
+            .flat_map(|a| (0..n).map(move |b| (a, b)))
+            .filter(|&(a, b)| wanted(a.max(b), a.min(b)))
             .collect();
+        let pairs: Vec<ShellPair> = list
+            .par_iter()
+            .map(|&(a, b)| ShellPair::new(&shells_in[a], &shells_in[b], &coefs[a], &coefs[b]))
+            .collect();
+        let mut pair_index = vec![u32::MAX; n * n];
+        for (k, &(a, b)) in list.iter().enumerate() {
+            pair_index[a * n + b] = k as u32;
+        }
         let mut eng = EriEngine {
             n_shells: n,
             shells,
             pairs,
+            pair_index,
             schwarz: Vec::new(),
         };
-        let diag: Vec<(usize, usize, f64)> = (0..n)
-            .flat_map(|a| (0..=a).map(move |b| (a, b)))
+        let diag: Vec<(usize, usize, f64)> = list
+            .iter()
+            .filter(|&&(a, b)| {
+                a >= b
+                    && !eng.pairs[eng.pair_index[a * n + b] as usize]
+                        .prims
+                        .iter()
+                        .any(|p| p.p <= 0.0)
+            })
+            .copied()
             .collect::<Vec<_>>()
             .into_par_iter()
             .map(|(a, b)| {
@@ -150,8 +177,8 @@ impl EriEngine {
         s: &mut Scratch,
     ) {
         let n = self.n_shells;
-        let pab = &self.pairs[a * n + b];
-        let pcd = &self.pairs[c * n + d];
+        let pab = &self.pairs[self.pair_index[a * n + b] as usize];
+        let pcd = &self.pairs[self.pair_index[c * n + d] as usize];
         let (sa, sb, sc, sd) = (
             &self.shells[a],
             &self.shells[b],
