@@ -120,18 +120,25 @@ fn integrals(a: IntegralsArgs) -> Result<()> {
     }
     if !classes.is_empty() {
         println!("ERI throughput per class (one thread, pure shells, K primitives per shell)");
+        println!("(rates per wall second; the last column per CPU second of the timing thread)");
         println!(
-            "{:<9} {:>2} {:>10} {:>14} {:>16}",
-            "class", "K", "quartets", "integrals/s", "prim. ints/s"
+            "{:<9} {:>2} {:>10} {:>14} {:>16} {:>16}",
+            "class", "K", "quartets", "integrals/s", "prim. ints/s", "prim. ints/CPU-s"
         );
         for c in &classes {
+            let per_cpu = c
+                .cpu_seconds
+                .filter(|&x| x > 0.0)
+                .map(|x| format!("{:.3e}", c.primitive_integrals_per_s * c.seconds / x))
+                .unwrap_or_else(|| "-".into());
             println!(
-                "{:<9} {:>2} {:>10} {:>14.3e} {:>16.3e}",
+                "{:<9} {:>2} {:>10} {:>14.3e} {:>16.3e} {:>16}",
                 c.label,
                 c.primitives_per_shell,
                 c.quartets,
                 c.integrals_per_s,
-                c.primitive_integrals_per_s
+                c.primitive_integrals_per_s,
+                per_cpu
             );
         }
     }
@@ -147,9 +154,12 @@ fn integrals(a: IntegralsArgs) -> Result<()> {
             t.setup_seconds, t.quartets_computed, t.quartets_screened
         );
         println!(
-            "  {} integrals in {:.3} s = {:.3e} integrals/s (checksum Σ|g| = {:.10e})",
+            "  {} integrals in {:.3} s wall = {:.3e} integrals/s (checksum Σ|g| = {:.10e})",
             t.integrals, t.seconds, t.integrals_per_s, t.checksum
         );
+        if let Some(c) = t.cpu_seconds {
+            println!("  CPU time of all threads during the run: {c:.2} s");
+        }
     }
     Ok(())
 }

@@ -8,6 +8,22 @@ use crate::integrals::EriEngine;
 use rayon::prelude::*;
 use std::time::Instant;
 
+/// CPU seconds (user + system) of this thread or process from /proc (Linux; None
+/// elsewhere). Lets a benchmark on a shared machine report work per CPU-second.
+pub fn cpu_seconds(whole_process: bool) -> Option<f64> {
+    let path = if whole_process {
+        "/proc/self/stat"
+    } else {
+        "/proc/thread-self/stat"
+    };
+    let text = std::fs::read_to_string(path).ok()?;
+    // fields after the parenthesised command name; utime and stime are fields 14 and 15
+    let rest = &text[text.rfind(')')? + 2..];
+    let f: Vec<&str> = rest.split_whitespace().collect();
+    let ticks: f64 = f.get(11)?.parse::<f64>().ok()? + f.get(12)?.parse::<f64>().ok()?;
+    Some(ticks / 100.0) // USER_HZ is 100 on Linux
+}
+
 /// Throughput of one class (la lb | lc ld), one thread.
 #[derive(Debug, Clone, serde::Serialize)]
 pub struct ClassTiming {
@@ -15,6 +31,8 @@ pub struct ClassTiming {
     pub primitives_per_shell: usize,
     pub quartets: usize,
     pub seconds: f64,
+    /// CPU seconds of the timing thread (when available).
+    pub cpu_seconds: Option<f64>,
     /// Final (contracted, pure) integrals per second.
     pub integrals_per_s: f64,
     /// Cartesian primitive integrals per second (n_cart⁴-type count × primitive quartets).
@@ -29,6 +47,8 @@ pub struct MoleculeTiming {
     pub threads: usize,
     pub setup_seconds: f64,
     pub seconds: f64,
+    /// CPU seconds of the whole process during the run (all threads, when available).
+    pub cpu_seconds: Option<f64>,
     pub quartets_computed: usize,
     pub quartets_screened: usize,
     pub integrals: usize,
@@ -63,6 +83,7 @@ pub fn class_throughput(ls: [usize; 4], n_prim: usize, min_seconds: f64) -> Clas
     let basis = BasisSet::from_shells("bench", shells);
     let engine = EriEngine::new(&basis);
     let mut out = Vec::new();
+    let cpu0 = cpu_seconds(false);
     let start = Instant::now();
     let mut reps = 0usize;
     loop {
@@ -75,6 +96,7 @@ pub fn class_throughput(ls: [usize; 4], n_prim: usize, min_seconds: f64) -> Clas
         }
     }
     let dt = start.elapsed().as_secs_f64();
+    let cpu = cpu_seconds(false).zip(cpu0).map(|(a, b)| a - b);
     let letters = ['s', 'p', 'd', 'f', 'g', 'h'];
     let n_cart: usize = ls.iter().map(|&l| n_cartesian(l)).product();
     ClassTiming {
@@ -85,6 +107,7 @@ pub fn class_throughput(ls: [usize; 4], n_prim: usize, min_seconds: f64) -> Clas
         primitives_per_shell: n_prim,
         quartets: reps,
         seconds: dt,
+        cpu_seconds: cpu,
         integrals_per_s: (out.len() * reps) as f64 / dt,
         primitive_integrals_per_s: (n_cart * n_prim.pow(4) * reps) as f64 / dt,
     }
@@ -99,6 +122,7 @@ pub fn all_eris(basis: &BasisSet, threshold: f64) -> MoleculeTiming {
     let n = engine.n_shells();
     let sch = engine.schwarz();
     let pairs: Vec<(usize, usize)> = (0..n).flat_map(|a| (0..=a).map(move |b| (a, b))).collect();
+    let cpu0 = cpu_seconds(true);
     let t1 = Instant::now();
     let per_pair: Vec<(usize, usize, usize, f64)> = pairs
         .par_iter()
@@ -121,6 +145,7 @@ pub fn all_eris(basis: &BasisSet, threshold: f64) -> MoleculeTiming {
         })
         .collect();
     let dt = t1.elapsed().as_secs_f64();
+    let cpu = cpu_seconds(true).zip(cpu0).map(|(a, b)| a - b);
     let (mut done, mut skipped, mut count, mut sum) = (0, 0, 0, 0.0);
     for (d, s, c, x) in per_pair {
         done += d;
@@ -134,6 +159,7 @@ pub fn all_eris(basis: &BasisSet, threshold: f64) -> MoleculeTiming {
         threads: rayon::current_num_threads(),
         setup_seconds: setup,
         seconds: dt,
+        cpu_seconds: cpu,
         quartets_computed: done,
         quartets_screened: skipped,
         integrals: count,
