@@ -21,7 +21,11 @@ fn atoms_bohr(list: &[(u32, [f64; 3])]) -> Molecule {
 }
 
 fn gw100(name: &str) -> Molecule {
-    read_xyz(&Path::new(GW100).join(format!("{name}.xyz")), LengthUnit::Angstrom).unwrap()
+    read_xyz(
+        &Path::new(GW100).join(format!("{name}.xyz")),
+        LengthUnit::Angstrom,
+    )
+    .unwrap()
 }
 
 fn scf_in(mol: &Molecule, basis: &str, opts: &ScfOptions) -> (Wavefunction, BasisSet) {
@@ -56,7 +60,11 @@ fn heh_cation_szabo_ostlund_zetas() {
     let mol = atoms_bohr(&[(2, [0.0; 3]), (1, [0.0, 0.0, 1.4632])])
         .with_charge_multiplicity(1, 1)
         .unwrap();
-    let (wf, _) = scf_in(&mol, "tests/data/heh-szabo-sto3g.json", &ScfOptions::default());
+    let (wf, _) = scf_in(
+        &mol,
+        "tests/data/heh-szabo-sto3g.json",
+        &ScfOptions::default(),
+    );
     // Szabo & Ostlund (1989) ch. 3: E = −2.860662 (memory; the book rounds its contraction,
     // agreement to ~1e-5 expected).
     assert!((wf.energy - (-2.860662)).abs() < 2e-5, "{}", wf.energy);
@@ -82,7 +90,11 @@ fn water_sto3g_crawford() {
         let (wf, _) = scf_in(&mol, "STO-3G", &opts);
         // Crawford group Programming Projects (published worked-example output):
         // E = −74.942079928192, E_nuc = 8.002367061810450.
-        assert!((wf.energy - (-74.942079928192)).abs() < 1e-7, "{}", wf.energy);
+        assert!(
+            (wf.energy - (-74.942079928192)).abs() < 1e-7,
+            "{}",
+            wf.energy
+        );
         assert!((wf.nuclear_repulsion - 8.002367061810450).abs() < 1e-10);
         assert!(
             (wf.one_electron + wf.two_electron + wf.nuclear_repulsion - wf.energy).abs() < 1e-10
@@ -103,7 +115,11 @@ fn methane_sto3g_crawford() {
     ]);
     let wf = rhf(&mol, "STO-3G");
     // Same source: E = −39.726850324347, E_nuc = 13.4973044620.
-    assert!((wf.energy - (-39.726850324347)).abs() < 1e-7, "{}", wf.energy);
+    assert!(
+        (wf.energy - (-39.726850324347)).abs() < 1e-7,
+        "{}",
+        wf.energy
+    );
     assert!((wf.nuclear_repulsion - 13.4973044620).abs() < 1e-8);
 }
 
@@ -125,7 +141,11 @@ fn noble_gas_atoms_approach_hartree_fock_limit() {
             .collect();
         assert!(e[0] > e[1] && e[1] > e[2], "Z = {z}: {e:?}");
         assert!(e[2] > limit, "Z = {z}: {} below the HF limit {limit}", e[2]);
-        assert!(e[2] - limit < qz_window, "Z = {z}: QZ {} vs limit {limit}", e[2]);
+        assert!(
+            e[2] - limit < qz_window,
+            "Z = {z}: QZ {} vs limit {limit}",
+            e[2]
+        );
     }
 }
 
@@ -184,7 +204,12 @@ fn triplet_oxygen_uhf_and_rohf() {
         ..ScfOptions::default()
     };
     let (wr, _) = scf_in(&triplet, "6-31G*", &rohf);
-    assert!(wu.energy < wr.energy && wr.energy < e_singlet, "{} {} {e_singlet}", wu.energy, wr.energy);
+    assert!(
+        wu.energy < wr.energy && wr.energy < e_singlet,
+        "{} {} {e_singlet}",
+        wu.energy,
+        wr.energy
+    );
     assert!(wu.s2 > 2.0 && wu.s2 < 2.1, "UHF <S^2> = {}", wu.s2);
     assert!((wr.s2 - 2.0).abs() < 1e-8, "ROHF <S^2> = {}", wr.s2);
     assert_eq!((wu.n_alpha(), wu.n_beta()), (9, 7));
@@ -264,7 +289,11 @@ fn core_hole_rohf_and_uhf_by_mom() {
         let be = (h.energy - g.energy) * HARTREE_TO_EV;
         assert!((be - 539.827).abs() < 2.5, "{reference:?}: {be:.3} eV");
         assert_eq!(h.n_beta(), 4);
-        assert!((h.s2 - 0.75).abs() < 0.02, "{reference:?}: <S^2> = {}", h.s2);
+        assert!(
+            (h.s2 - 0.75).abs() < 0.02,
+            "{reference:?}: <S^2> = {}",
+            h.s2
+        );
     }
 }
 
@@ -283,10 +312,21 @@ fn cli_json_and_exit_codes() {
     )
     .unwrap();
     let out = bandcast()
-        .args(["scf", water.to_str().unwrap(), "--basis", "sto-3g", "--json"])
+        .args([
+            "scf",
+            water.to_str().unwrap(),
+            "--basis",
+            "sto-3g",
+            "--json",
+        ])
         .output()
         .unwrap();
-    assert_eq!(out.status.code(), Some(0), "{}", String::from_utf8_lossy(&out.stderr));
+    assert_eq!(
+        out.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
     let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
     assert_eq!(v["converged"], true);
     assert_eq!(v["n_basis"], 7);
@@ -307,11 +347,21 @@ fn cli_json_and_exit_codes() {
         .output()
         .unwrap();
     let text = String::from_utf8_lossy(&out.stdout);
-    assert!(text.contains("nuclear repulsion") && text.contains("HOMO"), "{text}");
+    assert!(
+        text.contains("nuclear repulsion") && text.contains("HOMO"),
+        "{text}"
+    );
 
     // Non-convergence: exit 1 with the message.
     let out = bandcast()
-        .args(["scf", water.to_str().unwrap(), "--basis", "sto-3g", "--max-iter", "2"])
+        .args([
+            "scf",
+            water.to_str().unwrap(),
+            "--basis",
+            "sto-3g",
+            "--max-iter",
+            "2",
+        ])
         .output()
         .unwrap();
     assert_eq!(out.status.code(), Some(1));
@@ -322,13 +372,34 @@ fn cli_json_and_exit_codes() {
     std::fs::write(&bad, "2\nbroken\nO 0 0 0\nXx 1 2\n").unwrap();
     for args in [
         vec!["scf", water.to_str().unwrap(), "--basis", "no-such-basis"],
-        vec!["scf", water.to_str().unwrap(), "--basis", "sto-3g", "--multiplicity", "2"],
+        vec![
+            "scf",
+            water.to_str().unwrap(),
+            "--basis",
+            "sto-3g",
+            "--multiplicity",
+            "2",
+        ],
         vec!["scf", "/nonexistent/file.xyz", "--basis", "sto-3g"],
         vec!["scf", bad.to_str().unwrap(), "--basis", "sto-3g"],
-        vec!["scf", water.to_str().unwrap(), "--basis", "sto-3g", "--reference", "rhf", "--charge", "1"],
+        vec![
+            "scf",
+            water.to_str().unwrap(),
+            "--basis",
+            "sto-3g",
+            "--reference",
+            "rhf",
+            "--charge",
+            "1",
+        ],
     ] {
         let out = bandcast().args(&args).output().unwrap();
-        assert_eq!(out.status.code(), Some(2), "{args:?}: {}", String::from_utf8_lossy(&out.stderr));
+        assert_eq!(
+            out.status.code(),
+            Some(2),
+            "{args:?}: {}",
+            String::from_utf8_lossy(&out.stderr)
+        );
     }
     let _ = std::fs::remove_dir_all(&dir);
 }

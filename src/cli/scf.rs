@@ -96,13 +96,17 @@ pub fn run(args: Args) -> Result<()> {
         _ => Reference::Uhf,
     };
     if !(args.memory.is_finite() && args.memory >= 0.0) {
-        return Err(Error::input("--memory must be a non-negative number of GiB"));
+        return Err(Error::input(
+            "--memory must be a non-negative number of GiB",
+        ));
     }
     if !(0.0..=0.95).contains(&args.damping) {
         return Err(Error::input("--damping must lie between 0 and 0.95"));
     }
     if !(args.level_shift.is_finite() && args.level_shift >= 0.0) {
-        return Err(Error::input("--level-shift must be a non-negative number of hartree"));
+        return Err(Error::input(
+            "--level-shift must be a non-negative number of hartree",
+        ));
     }
     if args.max_iter == 0 {
         return Err(Error::input("--max-iter must be at least 1"));
@@ -192,7 +196,12 @@ struct RunInfo {
 }
 
 fn describe_harmonics(b: &bandcast::basis::BasisSet) -> &'static str {
-    let high: Vec<bool> = b.shells.iter().filter(|s| s.l >= 2).map(|s| s.pure).collect();
+    let high: Vec<bool> = b
+        .shells
+        .iter()
+        .filter(|s| s.l >= 2)
+        .map(|s| s.pure)
+        .collect();
     if high.is_empty() {
         "s and p only"
     } else if high.iter().all(|&p| p) {
@@ -229,7 +238,12 @@ fn channels(wf: &Wavefunction) -> Vec<(&'static str, &[f64], Vec<f64>)> {
 
 fn dipole_debye(wf: &Wavefunction) -> [f64; 4] {
     let d = wf.dipole.map(|v| v * AU_TO_DEBYE);
-    [d[0], d[1], d[2], (d[0] * d[0] + d[1] * d[1] + d[2] * d[2]).sqrt()]
+    [
+        d[0],
+        d[1],
+        d[2],
+        (d[0] * d[0] + d[1] * d[1] + d[2] * d[2]).sqrt(),
+    ]
 }
 
 fn to_json(mol: &Molecule, wf: &Wavefunction, info: &RunInfo) -> String {
@@ -286,7 +300,11 @@ fn to_text(mol: &Molecule, wf: &Wavefunction, info: &RunInfo, all: bool) -> Stri
         s,
         "Hartree–Fock ({}) · {} · {} atoms, {} electrons, charge {:+}, {}",
         reference_name(wf.reference).to_uppercase(),
-        if mol.name.is_empty() { "molecule" } else { &mol.name },
+        if mol.name.is_empty() {
+            "molecule"
+        } else {
+            &mol.name
+        },
         mol.atoms.len(),
         mol.n_electrons(),
         mol.charge,
@@ -296,7 +314,12 @@ fn to_text(mol: &Molecule, wf: &Wavefunction, info: &RunInfo, all: bool) -> Stri
         s,
         "basis {} ({}): {} functions, {} kept after removing {} near-linear dependencies \
          (smallest overlap eigenvalue kept {:.2e})",
-        info.basis_name, info.harmonics, wf.n_basis, wf.n_independent, info.n_dropped, info.smallest_kept
+        info.basis_name,
+        info.harmonics,
+        wf.n_basis,
+        wf.n_independent,
+        info.n_dropped,
+        info.smallest_kept
     );
     let _ = writeln!(
         s,

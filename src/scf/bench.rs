@@ -83,7 +83,12 @@ fn time_one(dir: &Path, case: &Case) -> Result<(f64, scf::Wavefunction, String, 
     let opts = ScfOptions::default();
     let mut ctx = ScfContext::new(&mol, &b, opts.lindep_threshold)?;
     let wf = ctx.run(&mol, &opts, &mut |_| {})?;
-    Ok((t0.elapsed().as_secs_f64(), wf, ctx.last_builder.clone(), b.n_basis))
+    Ok((
+        t0.elapsed().as_secs_f64(),
+        wf,
+        ctx.last_builder.clone(),
+        b.n_basis,
+    ))
 }
 
 /// Run the cases on structures from `dir` (GW100 XYZ files), calling `report` after each.

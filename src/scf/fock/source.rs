@@ -96,3 +96,35 @@ impl EriSource for TensorEri {
         }
     }
 }
+
+/// The integral engine over a basis set, with the shell layout cached.
+pub struct EngineSource<'a> {
+    pub engine: &'a crate::integrals::EriEngine,
+    sizes: Vec<usize>,
+    offsets: Vec<usize>,
+}
+
+impl<'a> EngineSource<'a> {
+    pub fn new(engine: &'a crate::integrals::EriEngine, basis: &crate::basis::BasisSet) -> Self {
+        EngineSource {
+            engine,
+            sizes: basis.shells.iter().map(|s| s.n_functions()).collect(),
+            offsets: basis.offsets.clone(),
+        }
+    }
+}
+
+impl EriSource for EngineSource<'_> {
+    fn shell_sizes(&self) -> &[usize] {
+        &self.sizes
+    }
+    fn shell_offsets(&self) -> &[usize] {
+        &self.offsets
+    }
+    fn schwarz(&self) -> &[f64] {
+        self.engine.schwarz()
+    }
+    fn quartet(&self, a: usize, b: usize, c: usize, d: usize, out: &mut Vec<f64>) {
+        self.engine.shell_quartet(a, b, c, d, out);
+    }
+}
