@@ -17,10 +17,14 @@
 //!    is split into sets: for each irrep present, the orbitals with the largest w_Γ, taken
 //!    dim_Γ at a time in energy order (an accidental degeneracy of two irreps gives two sets).
 //! 3. Otherwise (the geometry is symmetric only within the detection tolerance, so a
-//!    degenerate level is split by more than `degeneracy_tol`) each orbital whose best weight
+//!    degenerate level is split by more than `degeneracy_tol`, or nearly degenerate
+//!    orbitals — the C 1s combinations of a ring — mix): first, runs of such orbitals with
+//!    gaps of at most 1 mEh (`NEAR_DEGENERATE_EH`) that together span whole irreps are split
+//!    as in step 2 (an orbital may then be a mixture: its `purity` says how much of it
+//!    belongs to its label); then each remaining orbital whose best weight
 //!    is at least 0.9 is labelled alone if its irrep is one-dimensional, or joined with the
-//!    nearest orbitals of the same irrep within 1 mEh (`NEAR_DEGENERATE_EH`) into a set of
-//!    dim_Γ members.
+//!    nearest clean orbitals of the same irrep within 10 mEh (`SPLIT_LEVEL_EH`) into a set
+//!    of dim_Γ members (a degenerate level split by a small distortion stays one band).
 //! 4. Orbitals still unlabelled are labelled in the largest abelian subgroup (`subgroup`),
 //!    each alone, with `fallback = true` and `group` naming the subgroup; numbering then
 //!    counts every orbital's subgroup irrep in energy order.
@@ -44,8 +48,12 @@ use std::collections::HashMap;
 
 /// Smallest projection weight for an orbital to be labelled on its own (step 3).
 pub const PURITY_THRESHOLD: f64 = 0.9;
-/// Largest splitting (hartree) of a degenerate level still joined by symmetry (step 3).
+/// Largest gap (hartree) between neighbours of a run of mixed near-degenerate orbitals
+/// split as a whole (step 3, first part).
 pub const NEAR_DEGENERATE_EH: f64 = 1e-3;
+/// Largest splitting (hartree) of a degenerate level whose members, each clean, are joined
+/// by their common irrep (step 3, second part).
+pub const SPLIT_LEVEL_EH: f64 = 1e-2;
 const WHOLE_NUMBER_TOL: f64 = 0.1;
 
 /// The label of one molecular orbital.
@@ -119,9 +127,23 @@ pub fn label_orbitals(
             None => pending.extend(cluster),
         }
     }
-    // Step 3: one by one.
-    let mut fallback: Vec<usize> = Vec::new();
+    // Step 3a: near-degenerate clusters (gaps ≤ NEAR_DEGENERATE_EH) that span whole irreps.
     let mut taken = vec![false; n_mo];
+    for cluster in chain_clusters(&pending, eps, NEAR_DEGENERATE_EH) {
+        if cluster.len() < 2 {
+            continue;
+        }
+        if let Some(parts) = split_cluster(&cluster, &w, &dims) {
+            for (m, g) in parts {
+                for &i in &m {
+                    taken[i] = true;
+                }
+                sets.push((m, Some(g), false));
+            }
+        }
+    }
+    // Step 3b: one by one.
+    let mut fallback: Vec<usize> = Vec::new();
     for (pos, &i) in pending.iter().enumerate() {
         if taken[i] {
             continue;
@@ -140,7 +162,7 @@ pub fn label_orbitals(
                 .copied()
                 .filter(|&j| {
                     !taken[j]
-                        && (eps[j] - eps[i]).abs() <= NEAR_DEGENERATE_EH
+                        && (eps[j] - eps[i]).abs() <= SPLIT_LEVEL_EH
                         && best(&w[j]).0 == g
                         && best(&w[j]).1 >= PURITY_THRESHOLD
                 })
@@ -262,6 +284,18 @@ fn energy_clusters(order: &[usize], eps: &[f64], tol: f64) -> Vec<Vec<usize>> {
     for &i in order {
         match out.last_mut() {
             Some(cl) if (eps[i] - eps[cl[0]]).abs() <= tol => cl.push(i),
+            _ => out.push(vec![i]),
+        }
+    }
+    out
+}
+
+/// Orbitals (energy order) grouped while each gap to the previous one is at most `gap`.
+fn chain_clusters(order: &[usize], eps: &[f64], gap: f64) -> Vec<Vec<usize>> {
+    let mut out: Vec<Vec<usize>> = Vec::new();
+    for &i in order {
+        match out.last_mut() {
+            Some(cl) if eps[i] - eps[*cl.last().unwrap()] <= gap => cl.push(i),
             _ => out.push(vec![i]),
         }
     }
