@@ -1,1 +1,2 @@
 //! (module under construction)
+pub mod mo_transform;
