@@ -331,69 +331,109 @@ fn ket_pair_bra_transforms<E: AoQuartets + ?Sized>(
             }
         }
     }
-    work.iter()
+    // Blocks that share their first factor (X·C1 when n1 ≤ n2, C2ᵀ·X otherwise; EP2's two
+    // blocks share C1 = the targets) compute it once per ket function pair.
+    let firsts: Vec<Option<(bool, MatRef<'_, f64>)>> = work
+        .iter()
         .enumerate()
-        .map(|(w_idx, w)| {
+        .map(|(i, w)| {
+            active[i].then(|| {
+                if w.dims[0] <= w.dims[1] {
+                    (true, w.c1)
+                } else {
+                    (false, w.c2)
+                }
+            })
+        })
+        .collect();
+    let mut group_of = vec![usize::MAX; work.len()];
+    let mut groups: Vec<(bool, MatRef<'_, f64>)> = Vec::new();
+    for (i, f) in firsts.iter().enumerate() {
+        if let Some((right, m)) = *f {
+            let found = groups.iter().position(|(r, g)| {
+                *r == right
+                    && g.as_ptr() == m.as_ptr()
+                    && g.ncols() == m.ncols()
+                    && g.col_stride() == m.col_stride()
+            });
+            group_of[i] = match found {
+                Some(k) => k,
+                None => {
+                    groups.push((right, m));
+                    groups.len() - 1
+                }
+            };
+        }
+    }
+    let mut scratch: Vec<Mat<f64>> = groups
+        .iter()
+        .map(|(right, m)| {
+            if *right {
+                Mat::<f64>::zeros(n, m.ncols())
+            } else {
+                Mat::<f64>::zeros(m.ncols(), n)
+            }
+        })
+        .collect();
+    let mut ys: Vec<Vec<f64>> = work
+        .iter()
+        .enumerate()
+        .map(|(i, w)| {
+            if active[i] {
+                vec![0.0; ncd * w.dims[0] * w.dims[1]]
+            } else {
+                Vec::new()
+            }
+        })
+        .collect();
+    for kl in 0..ncd {
+        let xk = MatRef::from_column_major_slice(&x[kl * n * n..(kl + 1) * n * n], n, n);
+        for (g, (right, m)) in groups.iter().enumerate() {
+            if *right {
+                gemm(
+                    scratch[g].as_mut(),
+                    false,
+                    xk,
+                    false,
+                    *m,
+                    false,
+                    1.0,
+                    Par::Seq,
+                );
+            } else {
+                gemm(
+                    scratch[g].as_mut(),
+                    false,
+                    *m,
+                    true,
+                    xk,
+                    false,
+                    1.0,
+                    Par::Seq,
+                );
+            }
+        }
+        for (w_idx, w) in work.iter().enumerate() {
             if !active[w_idx] {
-                return Vec::new();
+                continue;
             }
             let [n1, n2, _, _] = w.dims;
             let n12 = n1 * n2;
-            let mut y = vec![0.0; ncd * n12];
-            let mut scratch = Mat::<f64>::zeros(n, n1.min(n2));
-            let mut scratch_t = Mat::<f64>::zeros(n2.min(n1), n);
-            for kl in 0..ncd {
-                let xk = MatRef::from_column_major_slice(&x[kl * n * n..(kl + 1) * n * n], n, n);
-                // Y (n2 × n1, column-major, so element (q, p) sits at p*n2 + q) = C2ᵀ X C1
-                let yk =
-                    MatMut::from_column_major_slice_mut(&mut y[kl * n12..(kl + 1) * n12], n2, n1);
-                if n1 <= n2 {
-                    gemm(
-                        scratch.as_mut(),
-                        false,
-                        xk,
-                        false,
-                        w.c1,
-                        false,
-                        1.0,
-                        Par::Seq,
-                    );
-                    gemm(
-                        yk,
-                        false,
-                        w.c2,
-                        true,
-                        scratch.as_ref(),
-                        false,
-                        1.0,
-                        Par::Seq,
-                    );
-                } else {
-                    gemm(
-                        scratch_t.as_mut(),
-                        false,
-                        w.c2,
-                        true,
-                        xk,
-                        false,
-                        1.0,
-                        Par::Seq,
-                    );
-                    gemm(
-                        yk,
-                        false,
-                        scratch_t.as_ref(),
-                        false,
-                        w.c1,
-                        false,
-                        1.0,
-                        Par::Seq,
-                    );
-                }
+            // Y (n2 × n1, column-major, so element (q, p) sits at p*n2 + q) = C2ᵀ X C1
+            let yk = MatMut::from_column_major_slice_mut(
+                &mut ys[w_idx][kl * n12..(kl + 1) * n12],
+                n2,
+                n1,
+            );
+            let sc = scratch[group_of[w_idx]].as_ref();
+            if groups[group_of[w_idx]].0 {
+                gemm(yk, false, w.c2, true, sc, false, 1.0, Par::Seq);
+            } else {
+                gemm(yk, false, sc, false, w.c1, false, 1.0, Par::Seq);
             }
-            y
-        })
-        .collect()
+        }
+    }
+    ys
 }
 
 /// H[pq][σ][r] += Σ_λ C3_λr Y_λσ[pq] over the ket pairs of one chunk, in order.

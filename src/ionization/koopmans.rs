@@ -9,7 +9,7 @@
 use crate::scf::{Reference, Wavefunction};
 
 /// Which spin an orbital belongs to.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, serde::Serialize)]
 #[serde(rename_all = "lowercase")]
 pub enum Spin {
     /// A doubly occupied spatial orbital of a restricted closed-shell reference.
