@@ -8,11 +8,11 @@
 //! - `normalize`, `solid_harmonics`, `evaluate`: AO normalisation, Cartesian → real solid
 //!   harmonics, AO values at a point.
 pub mod catalog;
+pub mod evaluate;
 pub mod load;
 pub mod names;
-pub mod schema;
-pub mod evaluate;
 pub mod normalize;
+pub mod schema;
 pub mod shell;
 pub mod solid_harmonics;
 
