@@ -46,24 +46,37 @@ impl OrbitalSet {
     }
 }
 
+/// Orbitals the symmetry analysis puts in one degenerate set are joined when their energies
+/// differ by less than this (hartree): slightly distorted input geometries split degenerate
+/// levels by more than `DEGENERACY_TOL` but keep their labels.
+pub const LABELLED_SPLIT_TOL: f64 = 1e-2;
+
 /// Group orbitals (any order) into degenerate sets, returned in order of increasing IE.
-/// `symmetry(spin, index)` gives the irrep of an orbital when known.
+/// `set_key(spin, index)` names the degenerate set the symmetry analysis put an orbital in
+/// (e.g. irrep and set number), when known: orbitals with equal keys join (within
+/// `LABELLED_SPLIT_TOL`), different keys never do, and without keys energies closer than
+/// `tol` decide.
 pub fn group_degenerate(
     orbitals: &[OrbitalIe],
-    symmetry: impl Fn(Spin, usize) -> Option<String>,
+    set_key: impl Fn(Spin, usize) -> Option<String>,
     tol: f64,
 ) -> Vec<OrbitalSet> {
     let mut sorted: Vec<&OrbitalIe> = orbitals.iter().collect();
     sorted.sort_by(|a, b| a.ie.total_cmp(&b.ie).then(a.index.cmp(&b.index)));
     let mut sets: Vec<(OrbitalSet, f64, Option<String>)> = Vec::new(); // (set, last ε, irrep)
     for o in sorted {
-        let irrep = symmetry(o.spin, o.index);
+        let irrep = set_key(o.spin, o.index);
         let join = sets
             .iter()
             .rposition(|(s, _, _)| s.spin == o.spin)
             .filter(|&k| {
-                let (_, last, sym) = &sets[k];
-                (o.epsilon - last).abs() < tol && *sym == irrep
+                let (_, last, key) = &sets[k];
+                let gap = (o.epsilon - last).abs();
+                match (key, &irrep) {
+                    (Some(a), Some(b)) => a == b && gap < LABELLED_SPLIT_TOL,
+                    (None, None) => gap < tol,
+                    _ => false,
+                }
             });
         match join {
             Some(k) => {

@@ -28,7 +28,11 @@ impl std::fmt::Display for Ep2Bench {
             f,
             "ep2: {} basis functions, {} valence bands, {} threads: SCF {:.2} s, EP2 {:.2} s \
              (HOMO IE {:.3} eV)",
-            self.n_basis, self.n_bands, self.threads, self.scf_seconds, self.ep2_seconds,
+            self.n_basis,
+            self.n_bands,
+            self.threads,
+            self.scf_seconds,
+            self.ep2_seconds,
             self.homo_ie_ev
         )
     }

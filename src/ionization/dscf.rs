@@ -85,7 +85,13 @@ fn cation_state(
 
 /// Weight of MO `target` of `c_ref` outside the space spanned by the occupied columns of
 /// `c` (metric `s`): 1 − Σ_j (c_refᵀ S c)_{t j}² over occupied j.
-pub fn hole_weight(s: &Mat<f64>, c_ref: &Mat<f64>, target: usize, c: &Mat<f64>, occ: &[f64]) -> f64 {
+pub fn hole_weight(
+    s: &Mat<f64>,
+    c_ref: &Mat<f64>,
+    target: usize,
+    c: &Mat<f64>,
+    occ: &[f64],
+) -> f64 {
     let n = s.nrows();
     let t = Mat::<f64>::from_fn(n, 1, |mu, _| c_ref[(mu, target)]);
     let st = mul(s.as_ref(), false, t.as_ref(), false);

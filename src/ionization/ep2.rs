@@ -148,15 +148,71 @@ impl SelfEnergy {
     }
 }
 
-/// Solve E = ε + Σ(E) for the root between the poles that enclose ε (f(E) = E − ε − Σ(E)
-/// rises monotonically between poles because dΣ/dE ≤ 0 for a diagonal self-energy),
-/// by Newton steps kept inside a shrinking bracket. Returns (E, P, Σ(E), iterations).
+/// Solve E = ε + Σ(E) for the quasiparticle root belonging to ε: returns (E, P, Σ(E),
+/// iterations).
+///
+/// Two searches start from ε: plain Newton steps (clamped to 0.1 Eh), which step over weak
+/// poles of Σ as the usual EP2 procedure does, and Newton steps kept inside the bracket of
+/// the two poles enclosing ε (f(E) = E − ε − Σ(E) rises monotonically between poles because
+/// dΣ/dE ≤ 0 for a diagonal self-energy, so that bracket holds exactly one root). Where the
+/// poles of Σ are dense (inner valence) the bracketed root can be a satellite of almost no
+/// strength; the root with the larger pole strength is returned.
 pub fn solve_dyson(
     eps: f64,
     sigma: &SelfEnergy,
     tol: f64,
     max_iter: usize,
 ) -> Result<(f64, f64, f64, usize)> {
+    let plain = newton_plain(eps, sigma, tol, max_iter);
+    let bracketed = newton_bracketed(eps, sigma, tol, max_iter);
+    match (plain, bracketed) {
+        (Some(a), Some(b)) => Ok(if a.1 >= b.1 { a } else { b }),
+        (Some(a), None) | (None, Some(a)) => Ok(a),
+        (None, None) => Err(Error::computation(format!(
+            "EP2: the Dyson equation did not converge in {max_iter} Newton steps (orbital \
+             energy {eps:.6} Eh)"
+        ))),
+    }
+}
+
+fn finish(sigma: &SelfEnergy, e: f64, it: usize) -> Option<(f64, f64, f64, usize)> {
+    let (s, ds) = sigma.eval(e);
+    let p = 1.0 / (1.0 - ds);
+    (p.is_finite() && p > 0.0).then_some((e, p, s, it))
+}
+
+fn newton_plain(
+    eps: f64,
+    sigma: &SelfEnergy,
+    tol: f64,
+    max_iter: usize,
+) -> Option<(f64, f64, f64, usize)> {
+    const MAX_STEP: f64 = 0.1;
+    let mut e = eps;
+    for it in 1..=max_iter {
+        let (s, ds) = sigma.eval(e);
+        let f = e - eps - s;
+        let mut step = -f / (1.0 - ds);
+        if !step.is_finite() {
+            return None;
+        }
+        if step.abs() > MAX_STEP {
+            step = MAX_STEP.copysign(step);
+        }
+        e += step;
+        if step.abs() < tol {
+            return finish(sigma, e, it);
+        }
+    }
+    None
+}
+
+fn newton_bracketed(
+    eps: f64,
+    sigma: &SelfEnergy,
+    tol: f64,
+    max_iter: usize,
+) -> Option<(f64, f64, f64, usize)> {
     let (mut lo, mut hi) = sigma.bracket(eps);
     let mut e = eps;
     const MAX_STEP: f64 = 0.25;
@@ -182,16 +238,12 @@ pub fn solve_dyson(
                 (false, false) => next,
             };
         }
-        if (next - e).abs() < tol && f.abs() < 1e3 * tol.max(1e-12) {
-            let (s, ds) = sigma.eval(next);
-            return Ok((next, 1.0 / (1.0 - ds), s, it));
+        if (next - e).abs() < tol {
+            return finish(sigma, next, it);
         }
         e = next;
     }
-    Err(Error::computation(format!(
-        "EP2: the Dyson equation did not converge in {max_iter} Newton steps (orbital energy \
-         {eps:.6} Eh, last estimate {e:.6} Eh)"
-    )))
+    None
 }
 
 /// EP2 ionization energies for the target occupied orbitals (MO indices) of a closed-shell

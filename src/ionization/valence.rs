@@ -11,9 +11,11 @@ use crate::basis::BasisSet;
 use crate::chem::Molecule;
 use crate::error::{Error, Result};
 use crate::integrals::EriEngine;
-use crate::ionization::annotate::{annotate, Annotations};
+use crate::ionization::annotate::Annotator;
 use crate::ionization::band::Band;
-use crate::ionization::bands::{group_degenerate, make_band, BandEnergy, OrbitalSet, DEGENERACY_TOL};
+use crate::ionization::bands::{
+    group_degenerate, make_band, BandEnergy, OrbitalSet, DEGENERACY_TOL,
+};
 use crate::ionization::dscf::dscf;
 use crate::ionization::ep2::{ep2, Ep2Options};
 use crate::ionization::frozen_core::core_orbitals;
@@ -27,8 +29,9 @@ use crate::units::ev;
 pub const LOW_POLE_STRENGTH: f64 = 0.85;
 
 /// Bands with Koopmans IEs up to this much above the window are computed as candidates,
-/// because correlated methods usually lower Koopmans' IEs (by up to ~2.5 eV, F2).
-const WINDOW_MARGIN_EV: f64 = 3.0;
+/// because correlated methods usually lower Koopmans' IEs (by 2.5 eV for F2, by 3.5 eV for
+/// some σ bands in a minimal basis).
+const WINDOW_MARGIN_EV: f64 = 5.0;
 
 /// Extra bands computed beyond `count` so that a band that overtakes one in the Koopmans
 /// order (N2's 3σg) is not lost.
@@ -169,10 +172,11 @@ pub fn predict_with(
         ));
     }
 
-    let notes: Annotations = annotate(mol, basis, wf, &valence, &mut warnings);
+    let s: Mat<f64> = crate::integrals::overlap(basis);
+    let notes = Annotator::new(mol, basis, wf, &s, &mut warnings);
     let sets = group_degenerate(
         &valence,
-        |spin, i| notes.orbital(spin, i).and_then(|n| n.symmetry.clone()),
+        |spin, i| notes.set_key(spin, i),
         opts.degeneracy_tol,
     );
 
@@ -185,18 +189,25 @@ pub fn predict_with(
         }
     }
     if let Some(c) = opts.count {
-        let extra = if opts.method == Method::Koopmans { 0 } else { COUNT_MARGIN };
+        let extra = if opts.method == Method::Koopmans {
+            0
+        } else {
+            COUNT_MARGIN
+        };
         candidates.truncate(c + extra);
     }
 
-    let energies = method_energies(mol, basis, wf, &candidates, opts, n_core, &mut warnings)?;
+    let energies = method_energies(mol, basis, wf, &s, &candidates, opts, n_core, &mut warnings)?;
 
     let mut rows: Vec<(Band, f64)> = candidates
         .iter()
         .zip(&energies)
         .map(|(set, e)| {
-            let n = notes.orbital(set.spin, set.representative()).cloned().unwrap_or_default();
-            (make_band(set, *e, &n, opts.method.name()), ev(set.koopmans_ie()))
+            let n = notes.notes(set);
+            (
+                make_band(set, *e, &n, opts.method.name()),
+                ev(set.koopmans_ie()),
+            )
         })
         .collect();
     rows.sort_by(|a, b| a.0.ie_ev.total_cmp(&b.0.ie_ev));
@@ -231,7 +242,7 @@ pub fn predict_with(
     Ok(ValenceResult {
         method: opts.method,
         basis: basis.name.clone(),
-        point_group: notes.point_group.clone(),
+        point_group: notes.point_group(),
         bands,
         koopmans_ev,
         warnings,
@@ -246,6 +257,7 @@ fn method_energies(
     mol: &Molecule,
     basis: &BasisSet,
     wf: &Wavefunction,
+    s: &Mat<f64>,
     sets: &[OrbitalSet],
     opts: &ValenceOptions,
     n_core: usize,
@@ -278,9 +290,9 @@ fn method_energies(
                 .collect())
         }
         Method::Dscf => {
-            let s: Mat<f64> = crate::integrals::overlap(basis);
-            let holes: Vec<(Spin, usize)> = sets.iter().map(|s| (s.spin, s.representative())).collect();
-            let res = dscf(mol, basis, wf, &s, &holes, &opts.scf)?;
+            let holes: Vec<(Spin, usize)> =
+                sets.iter().map(|s| (s.spin, s.representative())).collect();
+            let res = dscf(mol, basis, wf, s, &holes, &opts.scf)?;
             for (set, h) in sets.iter().zip(&res) {
                 if h.hole_moved {
                     warnings.push(format!(
