@@ -240,3 +240,21 @@ pub fn table(r: &ValenceResult, molecule: &str) -> String {
     let _ = writeln!(s, "{GUIDANCE}");
     s
 }
+
+/// `bandcast bench ep2 FILE.xyz --basis NAME`: time the SCF and EP2 for all valence bands.
+#[derive(clap::Args, Debug)]
+pub struct Ep2BenchArgs {
+    #[command(flatten)]
+    pub molecule: MoleculeArgs,
+    /// Basis set (default def2-TZVPP).
+    #[arg(long, value_name = "NAME", default_value = "def2-TZVPP")]
+    pub basis: String,
+}
+
+pub fn ep2_bench(args: Ep2BenchArgs) -> Result<()> {
+    let mol = args.molecule.load()?;
+    let basis = bandcast::basis::load(&args.basis, &mol, None)?;
+    let r = bandcast::ionization::bench::run_ep2_bench(&mol, &basis)?;
+    println!("{} / {}: {r}", args.molecule.file.display(), basis.name);
+    Ok(())
+}
