@@ -1,4 +1,5 @@
 //! Ionization methods and the bands they produce.
 pub mod band;
+pub mod core;
 
 pub use band::{Band, MakeupEntry, Region};
