@@ -18,7 +18,7 @@ use bandcast_linalg::{mul, Mat};
 
 use crate::basis::BasisSet;
 use crate::chem::Molecule;
-use crate::scf::{self, Guess, Occupation, Reference, ScfOptions, Wavefunction};
+use crate::scf::{Guess, Occupation, Reference, ScfContext, ScfOptions, Wavefunction};
 use crate::units::ev;
 
 use super::hole_check::{judge, HoleStatus};
@@ -62,7 +62,7 @@ fn base_options(setup: &HoleSetup) -> ScfOptions {
 }
 
 /// Run one start. `start` is "mom", "imom" or "rohf"; "rohf→uhf" is `from_rohf`.
-pub fn run_start(setup: &HoleSetup, start: &str) -> CationState {
+pub fn run_start(setup: &HoleSetup, ctx: &mut ScfContext, start: &str) -> CationState {
     let mut o = base_options(setup);
     o.reference = if start == "rohf" {
         Reference::Rohf
@@ -80,11 +80,11 @@ pub fn run_start(setup: &HoleSetup, start: &str) -> CationState {
         occ_beta: setup.occ_beta.clone(),
         initial: start == "imom",
     };
-    finish(setup, start, scf::run(setup.cation, setup.basis, &o))
+    finish(setup, start, ctx.run(setup.cation, &o, &mut |_| {}))
 }
 
 /// UHF + MOM started from a converged ROHF cation (its orbitals and occupations).
-pub fn run_from_rohf(setup: &HoleSetup, rohf: &Wavefunction) -> CationState {
+pub fn run_from_rohf(setup: &HoleSetup, ctx: &mut ScfContext, rohf: &Wavefunction) -> CationState {
     let mut o = base_options(setup);
     o.reference = Reference::Uhf;
     o.guess = Guess::Orbitals {
@@ -98,7 +98,7 @@ pub fn run_from_rohf(setup: &HoleSetup, rohf: &Wavefunction) -> CationState {
         occ_beta: rohf.occ_beta.clone(),
         initial: false,
     };
-    finish(setup, "rohf→uhf", scf::run(setup.cation, setup.basis, &o))
+    finish(setup, "rohf→uhf", ctx.run(setup.cation, &o, &mut |_| {}))
 }
 
 fn finish(setup: &HoleSetup, start: &str, r: crate::Result<Wavefunction>) -> CationState {

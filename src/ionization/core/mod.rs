@@ -18,15 +18,26 @@
 //! | hole_check.rs | escaped / collapsed / spin-contaminated verdicts |
 //! | lifetime.rs | natural widths of 1s holes where known |
 //! | result.rs | result records and conversion to bands |
+//! | cation.rs | the SCF starts for one hole (MOM, IMOM, ROHF) |
+//! | predict.rs | the driver (`predict`) |
+//! | ovov.rs | (ia\|jb) integrals for MP2 |
+//! | mp2.rs | RMP2 / UMP2 energies for ΔMP2 |
+//! | bench.rs | the `bandcast bench core` workload |
+pub mod bench;
+pub mod cation;
 pub mod flexibility;
 pub mod hole_check;
 pub mod lifetime;
 pub mod localize;
+pub mod mp2;
 pub mod options;
+pub mod ovov;
 pub mod population;
+pub mod predict;
 pub mod result;
 pub mod targets;
 
 pub use hole_check::HoleStatus;
+pub use predict::{predict, predict_with_progress};
 pub use options::{CoreBasis, CoreOptions, ShiftReference, TargetSelection};
 pub use result::{CoreLevel, CoreResult, HoleAttempt, ShiftReferenceLevel};

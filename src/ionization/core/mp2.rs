@@ -17,8 +17,9 @@ use bandcast_linalg::Mat;
 
 use crate::basis::BasisSet;
 use crate::error::{Error, Result};
-use crate::integrals::mo_transform::{check_budget, mo_eri_block, BlockSpec};
 use crate::integrals::EriEngine;
+
+use super::ovov::{bra_half, check_budget, estimate_bytes, ket_half};
 use crate::scf::{Reference, Wavefunction};
 
 /// Memory the (ia|jb) blocks and the transformation may use (bytes).
@@ -39,19 +40,18 @@ fn split(occ: &[f64]) -> (Vec<usize>, Vec<usize>) {
 
 /// The second-order correlation energy (hartree) of `wf` in `basis`.
 pub fn mp2_energy(basis: &BasisSet, wf: &Wavefunction) -> Result<f64> {
+    let n = basis.n_basis;
     let engine = EriEngine::new(basis);
     let (oa, va) = split(&wf.occ_alpha);
     let ca_o = columns(&wf.c_alpha, &oa);
     let ca_v = columns(&wf.c_alpha, &va);
     let ea_o: Vec<f64> = oa.iter().map(|&k| wf.eps_alpha[k]).collect();
     let ea_v: Vec<f64> = va.iter().map(|&k| wf.eps_alpha[k]).collect();
+    let (no, nv) = (oa.len(), va.len());
     if wf.reference == Reference::Rhf {
-        check_budget(
-            basis,
-            &[BlockSpec::new(&ca_o, &ca_v, &ca_o, &ca_v)],
-            MP2_MEMORY_BYTES,
-        )?;
-        let g = mo_eri_block(&engine, basis, &ca_o, &ca_v, &ca_o, &ca_v);
+        check_budget(estimate_bytes(n, no, nv, no, nv), MP2_MEMORY_BYTES)?;
+        let h = ket_half(&engine, basis, &ca_o, &ca_v);
+        let g = bra_half(&h, &ca_o, &ca_v, no, nv);
         return closed_shell(&g, &ea_o, &ea_v);
     }
     let (ob, vb) = split(&wf.occ_beta);
@@ -59,18 +59,17 @@ pub fn mp2_energy(basis: &BasisSet, wf: &Wavefunction) -> Result<f64> {
     let cb_v = columns(&wf.c_beta, &vb);
     let eb_o: Vec<f64> = ob.iter().map(|&k| wf.eps_beta[k]).collect();
     let eb_v: Vec<f64> = vb.iter().map(|&k| wf.eps_beta[k]).collect();
+    let (nob, nvb) = (ob.len(), vb.len());
     check_budget(
-        basis,
-        &[
-            BlockSpec::new(&ca_o, &ca_v, &ca_o, &ca_v),
-            BlockSpec::new(&cb_o, &cb_v, &cb_o, &cb_v),
-            BlockSpec::new(&ca_o, &ca_v, &cb_o, &cb_v),
-        ],
+        estimate_bytes(n, no, nv, no, nv) + estimate_bytes(n, no.max(nob), nv.max(nvb), nob, nvb),
         MP2_MEMORY_BYTES,
     )?;
-    let gaa = mo_eri_block(&engine, basis, &ca_o, &ca_v, &ca_o, &ca_v);
-    let gbb = mo_eri_block(&engine, basis, &cb_o, &cb_v, &cb_o, &cb_v);
-    let gab = mo_eri_block(&engine, basis, &ca_o, &ca_v, &cb_o, &cb_v);
+    let ha = ket_half(&engine, basis, &ca_o, &ca_v);
+    let gaa = bra_half(&ha, &ca_o, &ca_v, no, nv);
+    drop(ha);
+    let hb = ket_half(&engine, basis, &cb_o, &cb_v);
+    let gbb = bra_half(&hb, &cb_o, &cb_v, nob, nvb);
+    let gab = bra_half(&hb, &ca_o, &ca_v, nob, nvb);
     Ok(same_spin(&gaa, &ea_o, &ea_v)?
         + same_spin(&gbb, &eb_o, &eb_v)?
         + opposite_spin(&gab, &ea_o, &ea_v, &eb_o, &eb_v)?)

@@ -15,15 +15,14 @@ use crate::basis::{self, BasisSet};
 use crate::chem::elements::symbol;
 use crate::chem::Molecule;
 use crate::error::{Error, Result};
-use crate::integrals;
-use crate::scf::{self, Reference, ScfOptions, Wavefunction};
+use crate::scf::{Reference, ScfContext, ScfOptions, Wavefunction};
 use crate::units::ev;
 
 use super::cation::{run_from_rohf, run_start, CationState, HoleSetup};
 use super::flexibility::{replace_atoms, uncontract};
 use super::hole_check::{spin_contaminated, HoleStatus};
 use super::lifetime::lifetime_fwhm_ev;
-use super::localize::{localise_core_hole, LocalisedHole};
+use super::localize::localise_core_hole;
 use super::mp2::mp2_energy;
 use super::options::{CoreBasis, CoreOptions, ShiftReference, TargetSelection};
 use super::population::sqrt_overlap;
@@ -76,27 +75,34 @@ pub fn predict_with_progress(
     let plain = basis::load(basis_name, mol, opts.harmonics)?;
     let work = flexible_basis(&plain, mol, &hole_atoms, &opts.core_basis)?;
 
-    let s = integrals::overlap(&work);
+    let total = hole_atoms.len();
+    // One SCF context (integrals, in-core ERI store) per concurrent task, shared by all the
+    // SCFs that task runs; the memory budget is split between them.
+    let n_ctx = rayon::current_num_threads().max(1).min(total).max(1);
+    let budget = MEMORY_BUDGET_BYTES / n_ctx;
+    let lindep = ScfOptions::default().lindep_threshold;
+    let mut ctx0 = ScfContext::new(mol, &work, lindep)?;
+    let s = ctx0.s.clone();
     let s_half = sqrt_overlap(&s);
-    let threads = rayon::current_num_threads().max(1);
-    let neutral = scf::run(
-        mol,
-        &work,
-        &ScfOptions {
-            reference: Reference::Rhf,
-            memory_budget_bytes: MEMORY_BUDGET_BYTES,
-            ..ScfOptions::default()
-        },
-    )
-    .map_err(|e| Error::computation(format!("neutral Hartree–Fock: {e}")))?;
+    let neutral = ctx0
+        .run(
+            mol,
+            &ScfOptions {
+                reference: Reference::Rhf,
+                memory_budget_bytes: budget,
+                ..ScfOptions::default()
+            },
+            &mut |_| {},
+        )
+        .map_err(|e| Error::computation(format!("neutral Hartree–Fock: {e}")))?;
     let neutral_mp2 = if opts.mp2 {
         Some(mp2_energy(&work, &neutral)?)
     } else {
         None
     };
 
-    let total = hole_atoms.len();
     let done = std::sync::atomic::AtomicUsize::new(0);
+    let pool = std::sync::Mutex::new(vec![ctx0]);
     let ctx = Context {
         mol,
         basis: &work,
@@ -105,7 +111,9 @@ pub fn predict_with_progress(
         neutral: &neutral,
         neutral_mp2,
         opts,
-        memory_budget_bytes: MEMORY_BUDGET_BYTES / threads.min(total).max(1),
+        memory_budget_bytes: budget,
+        pool: &pool,
+        lindep,
     };
     let results: Vec<Result<CoreLevel>> = hole_atoms
         .par_iter()
@@ -252,6 +260,8 @@ struct Context<'a> {
     neutral_mp2: Option<f64>,
     opts: &'a CoreOptions,
     memory_budget_bytes: usize,
+    pool: &'a std::sync::Mutex<Vec<ScfContext>>,
+    lindep: f64,
 }
 
 /// The 1s hole of one atom: localise, try the starts, keep the best that holds.
@@ -290,7 +300,15 @@ fn ionise_atom(ctx: &Context, atom: usize) -> Result<CoreLevel> {
         localised: ctx.opts.localise || !loc.rotated(),
         memory_budget_bytes: ctx.memory_budget_bytes,
     };
-    let states = search(&setup, ctx.opts.thorough);
+    let taken = ctx.pool.lock().map(|mut p| p.pop()).unwrap_or(None);
+    let mut scf = match taken {
+        Some(c) => c,
+        None => ScfContext::new(ctx.mol, ctx.basis, ctx.lindep)?,
+    };
+    let states = search(&setup, &mut scf, ctx.opts.thorough);
+    if let Ok(mut p) = ctx.pool.lock() {
+        p.push(scf);
+    }
     let label = atom_label(ctx.mol, atom);
     let best = states
         .iter()
@@ -393,23 +411,23 @@ fn ionise_atom(ctx: &Context, atom: usize) -> Result<CoreLevel> {
 
 /// The starts for one hole. Thorough: all of them. Otherwise stop at the first start that
 /// holds the hole with a clean ⟨S²⟩.
-fn search(setup: &HoleSetup, thorough: bool) -> Vec<CationState> {
+fn search(setup: &HoleSetup, scf: &mut ScfContext, thorough: bool) -> Vec<CationState> {
     let mut states: Vec<CationState> = Vec::new();
     let good = |s: &CationState| {
         s.attempt.status == HoleStatus::Held && !spin_contaminated(s.attempt.s2.unwrap_or(9.0))
     };
     for start in ["mom", "imom"] {
-        let st = run_start(setup, start);
+        let st = run_start(setup, scf, start);
         let ok = good(&st);
         states.push(st);
         if ok && !thorough {
             return states;
         }
     }
-    let rohf = run_start(setup, "rohf");
+    let rohf = run_start(setup, scf, "rohf");
     let from = rohf.wf.is_some() && rohf.attempt.status == HoleStatus::Held;
     if from {
-        let u = run_from_rohf(setup, rohf.wf.as_ref().expect("converged"));
+        let u = run_from_rohf(setup, scf, rohf.wf.as_ref().expect("converged"));
         states.push(rohf);
         states.push(u);
     } else {
@@ -427,5 +445,3 @@ fn status_word(s: HoleStatus) -> &'static str {
     }
 }
 
-#[allow(dead_code)]
-fn _unused(_: &LocalisedHole) {}
