@@ -18,6 +18,8 @@ pub struct Args {
 pub enum Workload {
     /// ERI throughput per angular-momentum class and wall time for all ERIs of molecules.
     Integrals(IntegralsArgs),
+    /// SCF wall time, iterations, peak memory and 1→N-thread speed-up (see `bandcast bench scf --help`).
+    Scf(super::scf::BenchArgs),
 }
 
 #[derive(clap::Args, Debug)]
@@ -46,6 +48,7 @@ pub struct IntegralsArgs {
 pub fn run(args: Args) -> Result<()> {
     match args.workload {
         Workload::Integrals(a) => integrals(a),
+        Workload::Scf(a) => super::scf::bench(a),
     }
 }
 
