@@ -18,6 +18,8 @@ pub struct Args {
 pub enum Workload {
     /// ERI throughput per angular-momentum class and wall time for all ERIs of molecules.
     Integrals(IntegralsArgs),
+    /// Carbon 1s levels (ΔSCF) of an all-trans n-alkane built from standard geometry.
+    Core(super::core::BenchArgs),
 }
 
 #[derive(clap::Args, Debug)]
@@ -46,6 +48,7 @@ pub struct IntegralsArgs {
 pub fn run(args: Args) -> Result<()> {
     match args.workload {
         Workload::Integrals(a) => integrals(a),
+        Workload::Core(a) => super::core::bench(a),
     }
 }
 
