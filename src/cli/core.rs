@@ -135,6 +135,10 @@ pub fn run(args: Args) -> Result<()> {
 
 fn opt(v: Option<f64>, width: usize, digits: usize) -> String {
     match v {
+        // No "-0.00" for a shift that is zero to print precision.
+        Some(x) if x.abs() < 0.5 * 10f64.powi(-(digits as i32)) => {
+            format!("{:>width$.digits$}", 0.0)
+        }
         Some(x) => format!("{x:>width$.digits$}"),
         None => format!("{:>width$}", "–"),
     }
