@@ -22,6 +22,8 @@ pub enum Workload {
     Ep2(super::ionize::Ep2BenchArgs),
     /// SCF wall time, iterations, peak memory and 1→N-thread speed-up (see `bandcast bench scf --help`).
     Scf(super::scf::BenchArgs),
+    /// Carbon 1s levels (ΔSCF) of an all-trans n-alkane built from standard geometry.
+    Core(super::core::BenchArgs),
 }
 
 #[derive(clap::Args, Debug)]
@@ -52,6 +54,7 @@ pub fn run(args: Args) -> Result<()> {
         Workload::Integrals(a) => integrals(a),
         Workload::Ep2(a) => super::ionize::ep2_bench(a),
         Workload::Scf(a) => super::scf::bench(a),
+        Workload::Core(a) => super::core::bench(a),
     }
 }
 
