@@ -10,6 +10,7 @@ pub mod annotate;
 pub mod band;
 pub mod bands;
 pub mod bench;
+pub mod core;
 pub mod dscf;
 pub mod ep2;
 pub mod frozen_core;
