@@ -165,10 +165,7 @@ mod tests {
             })
             .collect();
         let peaks = [12.6, 15.1, 18.8];
-        let mopt = MatchOptions {
-            cap_ev: 1.5,
-            window: (10.0, 21.0),
-        };
+        let mopt = MatchOptions { cap_ev: 1.5 };
         let aopt = AlignOptions {
             max_shift_ev: 5.0,
             step_ev: 0.02,

@@ -3,8 +3,10 @@
 //!
 //! Cost of pairing band i (aligned energy a_i) with peak j (energy m_j): |m_j − a_i| (eV).
 //! Leaving a band or a peak unmatched costs `cap/2` each, so a pair is only made when its
-//! residual is below `cap` (a pair saves cap − |d|); a band whose aligned energy lies
-//! outside the measured window costs nothing to leave out. This is solved exactly as a
+//! residual is below `cap` (a pair saves cap − |d|). A band outside the measured window
+//! costs the same to leave out as one inside, so no alignment gains by pushing bands out
+//! of the window; the constant cost of bands that lie outside for every shift changes
+//! nothing. This is solved exactly as a
 //! square assignment problem of size n + m with dummy rows and columns (common practice)
 //! by the Hungarian method (hungarian.rs).
 //!
@@ -46,8 +48,6 @@ impl Alignment {
 pub struct MatchOptions {
     /// Largest residual (eV) a pair may have.
     pub cap_ev: f64,
-    /// Measured window (lo, hi) in eV; bands outside it need no partner.
-    pub window: (f64, f64),
 }
 
 /// The result of one matching.
@@ -79,8 +79,7 @@ fn cost_matrix(
             }
         }
         // band i unmatched: its own dummy column m + i
-        let inside = aligned[i] >= opt.window.0 && aligned[i] <= opt.window.1;
-        c[i][m + i] = if inside { half } else { 0.0 };
+        c[i][m + i] = half;
     }
     for j in 0..m {
         // peak j unmatched: dummy row n + j, column j
@@ -103,13 +102,7 @@ pub fn match_lines(
     let n = aligned.len();
     let m = peaks.len();
     if n == 0 || m == 0 {
-        let cost = m as f64 * 0.5 * opt.cap_ev
-            + aligned
-                .iter()
-                .filter(|&&a| a >= opt.window.0 && a <= opt.window.1)
-                .count() as f64
-                * 0.5
-                * opt.cap_ev;
+        let cost = (n + m) as f64 * 0.5 * opt.cap_ev;
         return Matching {
             pairs: Vec::new(),
             total_cost: cost,
@@ -226,20 +219,14 @@ mod tests {
 
     #[test]
     fn leaves_far_bands_unmatched() {
-        let opt = MatchOptions {
-            cap_ev: 1.0,
-            window: (10.0, 20.0),
-        };
+        let opt = MatchOptions { cap_ev: 1.0 };
         let m = match_lines(&[12.0, 15.0, 18.0], &[12.1, 17.9], &opt, None);
         assert_eq!(m.pairs, vec![(0, 0), (2, 1)]);
     }
 
     #[test]
     fn close_pair_is_low_confidence() {
-        let opt = MatchOptions {
-            cap_ev: 1.5,
-            window: (10.0, 20.0),
-        };
+        let opt = MatchOptions { cap_ev: 1.5 };
         let lines = vec![line("a", 13.0), line("b", 13.1)];
         let id = Alignment {
             shift_ev: 0.0,

@@ -115,10 +115,7 @@ pub fn compare(
     }
     let peak_e: Vec<f64> = peaks.iter().map(|p| p.energy_ev).collect();
     let window = (x[0], x[x.len() - 1]);
-    let mopt = MatchOptions {
-        cap_ev: opt.cap_ev,
-        window,
-    };
+    let mopt = MatchOptions { cap_ev: opt.cap_ev };
     let aopt = AlignOptions {
         max_shift_ev: opt.max_shift_ev,
         step_ev: 0.02,
