@@ -77,6 +77,17 @@ pub fn nice_ticks(lo: f64, hi: f64, target: usize) -> (Vec<f64>, f64) {
     (t, step)
 }
 
+/// Ticks every `step` inside [lo, hi].
+fn nice_ticks_step(lo: f64, hi: f64, step: f64) -> (Vec<f64>, f64) {
+    let mut t = Vec::new();
+    let mut k = (lo / step).ceil();
+    while k * step <= hi + 1e-9 * step {
+        t.push(k * step);
+        k += 1.0;
+    }
+    (t, step)
+}
+
 fn fmt_tick(v: f64, step: f64) -> String {
     let decimals = if step >= 1.0 {
         0
@@ -165,6 +176,22 @@ impl Plot {
         );
         // ticks and grid
         let (ticks, step) = nice_ticks(x0, x1, 8);
+        // minor ticks halfway (or a fifth of the way for 5 × 10^k steps)
+        let minor = if (step / 10f64.powf(step.log10().floor()) - 5.0).abs() < 1e-9 {
+            step / 5.0
+        } else {
+            step / 2.0
+        };
+        let (mticks, _) = nice_ticks_step(x0, x1, minor);
+        for t in &mticks {
+            let x = px(*t);
+            let _ = writeln!(
+                o,
+                r##"<line x1="{x:.1}" y1="{:.1}" x2="{x:.1}" y2="{:.1}" stroke="#333" stroke-width="0.8"/>"##,
+                mt + ph,
+                mt + ph + 3.0
+            );
+        }
         for t in &ticks {
             let x = px(*t);
             let _ = writeln!(
