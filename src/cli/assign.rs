@@ -340,7 +340,7 @@ fn print_table(cmp: &Comparison, args: &Args, method: &str) {
         };
         println!(
             "  {:>9.2}  {:<w$}  {:>9.2}  {:>9.2}  {:>+8.2}  {:>10.2}{flag}",
-            a.measured_ev, a.label, a.predicted_ev, a.aligned_ev, a.residual_ev, a.confidence
+            a.measured_ev, a.label, a.predicted_ev, a.aligned_ev, bandcast::report::html::tidy(a.residual_ev), a.confidence
         );
     }
     for p in &cmp.unassigned_peaks {

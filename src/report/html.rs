@@ -24,6 +24,11 @@ padding:5px 12px;text-align:right}th{background:#f2f4f7}td.l,th.l{text-align:lef
 tr.low td{background:#fff4e0}.note{border-left:4px solid #d9731a;background:#fdf7ef;padding:8px 12px;\
 font-size:14px}.small{font-size:12.5px;color:#555}";
 
+/// Round to the printed 0.01 eV so that −0.004 prints as +0.00, not −0.00.
+pub fn tidy(v: f64) -> f64 {
+    (v * 100.0).round() / 100.0 + 0.0
+}
+
 /// The report page. `svg` is an inline SVG document (from `svg::Plot::render`).
 pub fn assignment_report(ctx: &ReportContext, cmp: &Comparison, svg: &str) -> String {
     let mut o = String::new();
@@ -71,7 +76,7 @@ pub fn assignment_report(ctx: &ReportContext, cmp: &Comparison, svg: &str) -> St
             escape(&a.label),
             a.predicted_ev,
             a.aligned_ev,
-            a.residual_ev,
+            tidy(a.residual_ev),
             a.confidence,
             flag
         );
