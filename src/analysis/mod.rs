@@ -1,1 +1,5 @@
-//! (module under construction)
+//! Orbital analysis: point-group symmetry and irrep labels, Mulliken make-up of orbitals,
+//! bonding character.
+pub mod bonding;
+pub mod population;
+pub mod symmetry;

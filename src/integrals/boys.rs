@@ -23,6 +23,16 @@ pub const T_SWITCH: f64 = 40.0;
 const N_GRID: usize = (T_SWITCH / GRID_STEP) as usize + 2;
 const N_COLS: usize = M_MAX + N_TAYLOR + 1;
 
+/// exp(−T₀) at the grid points.
+fn exp_table() -> &'static [f64] {
+    static TABLE: OnceLock<Vec<f64>> = OnceLock::new();
+    TABLE.get_or_init(|| {
+        (0..N_GRID)
+            .map(|g| (-(g as f64) * GRID_STEP).exp())
+            .collect()
+    })
+}
+
 fn table() -> &'static [f64] {
     static TABLE: OnceLock<Vec<f64>> = OnceLock::new();
     TABLE.get_or_init(|| {
@@ -80,7 +90,14 @@ pub fn boys_array(m_max: usize, t: f64, out: &mut [f64]) {
     }
     out[m_max] = f;
     if m_max > 0 {
-        let ex = (-t).exp();
+        // e^{−T} = e^{−T₀} e^{T₀−T}, the second factor by its Taylor series (|T₀−T| ≤ 0.025).
+        let e = 1.0
+            + dt * (1.0
+                + dt * (0.5
+                    + dt * (1.0 / 6.0
+                        + dt * (1.0 / 24.0
+                            + dt * (1.0 / 120.0 + dt * (1.0 / 720.0 + dt / 5040.0))))));
+        let ex = exp_table()[g] * e;
         let t2 = 2.0 * t;
         for m in (0..m_max).rev() {
             out[m] = (t2 * out[m + 1] + ex) / (2 * m + 1) as f64;
