@@ -18,7 +18,9 @@ use bandcast::spectrum::predicted::{sticks_from_bands, IntensityModel, Stick, St
 use bandcast::{Error, Result};
 
 use super::common::MoleculeArgs;
-use super::spectrum::{check_fwhm, parse_axis, parse_photon, parse_region, predict_bands};
+use super::spectrum::{
+    check_fwhm, parse_axis, parse_element_arg, parse_photon, parse_region, predict_bands,
+};
 
 #[derive(clap::Args, Debug)]
 pub struct Args {
@@ -42,6 +44,9 @@ pub struct Args {
     pub photon: Option<Photon>,
     #[arg(long, value_name = "valence|core", default_value = "valence", value_parser = parse_region)]
     pub region: Region,
+    /// Core levels of one element only, e.g. `--element C` (default: every heavy atom).
+    #[arg(long, value_name = "SYMBOL", value_parser = parse_element_arg)]
+    pub element: Option<u32>,
     /// Fit a linear scale as well as a shift (needs three assigned peaks or more).
     #[arg(long)]
     pub fit_scale: bool,
@@ -105,7 +110,13 @@ pub fn run(args: Args) -> Result<()> {
         measured = measured.kinetic_to_binding(p.energy_ev());
     }
     let mol = args.molecule.load()?;
-    let (bands, method) = predict_bands(&mol, &args.basis, args.method.as_deref(), args.region)?;
+    let (bands, method) = predict_bands(
+        &mol,
+        &args.basis,
+        args.method.as_deref(),
+        args.region,
+        args.element,
+    )?;
     let photon = args.photon.unwrap_or(match args.region {
         Region::Valence => Photon::He1,
         Region::Core => Photon::AlKa,
@@ -340,7 +351,12 @@ fn print_table(cmp: &Comparison, args: &Args, method: &str) {
         };
         println!(
             "  {:>9.2}  {:<w$}  {:>9.2}  {:>9.2}  {:>+8.2}  {:>10.2}{flag}",
-            a.measured_ev, a.label, a.predicted_ev, a.aligned_ev, bandcast::report::html::tidy(a.residual_ev), a.confidence
+            a.measured_ev,
+            a.label,
+            a.predicted_ev,
+            a.aligned_ev,
+            bandcast::report::html::tidy(a.residual_ev),
+            a.confidence
         );
     }
     for p in &cmp.unassigned_peaks {

@@ -37,6 +37,9 @@ pub struct Args {
     /// Valence bands (UPS) or core levels (XPS).
     #[arg(long, value_name = "valence|core", default_value = "valence", value_parser = parse_region)]
     pub region: Region,
+    /// Core levels of one element only, e.g. `--element C` (default: every heavy atom).
+    #[arg(long, value_name = "SYMBOL", value_parser = parse_element_arg)]
+    pub element: Option<u32>,
     /// Photon source: he1, he2, mgka, alka, or an energy in eV.
     #[arg(long, value_name = "he1|he2|mgka|alka|ENERGY_EV", value_parser = parse_photon)]
     pub photon: Photon,
@@ -76,6 +79,10 @@ pub fn parse_region(s: &str) -> std::result::Result<Region, String> {
         "core" => Ok(Region::Core),
         _ => Err(format!("'{s}' is not valence or core")),
     }
+}
+pub fn parse_element_arg(s: &str) -> std::result::Result<u32, String> {
+    bandcast::chem::elements::parse_element(s)
+        .ok_or_else(|| format!("'{s}' is not an element symbol"))
 }
 pub fn parse_photon(s: &str) -> std::result::Result<Photon, String> {
     Photon::parse(s)
@@ -123,8 +130,9 @@ pub fn predict_bands(
     basis: &str,
     method: Option<&str>,
     region: Region,
+    element: Option<u32>,
 ) -> Result<(Vec<Band>, String)> {
-    let _ = (mol, basis, method, region);
+    let _ = (mol, basis, method, region, element);
     Err(Error::computation(
         "band prediction is not available in this build yet (the ionization modules are still being merged)",
     ))
@@ -311,8 +319,13 @@ pub fn run(args: Args) -> Result<()> {
     let mut method_used = String::new();
     for inp in &inputs {
         let mol = args.state.load(&inp.path)?;
-        let (bands, method) =
-            predict_bands(&mol, &args.basis, args.method.as_deref(), args.region)?;
+        let (bands, method) = predict_bands(
+            &mol,
+            &args.basis,
+            args.method.as_deref(),
+            args.region,
+            args.element,
+        )?;
         method_used = method;
         per_input.push((bands, inp.weight, component_name(&inp.path)));
     }
