@@ -18,6 +18,8 @@ pub struct Args {
 pub enum Workload {
     /// ERI throughput per angular-momentum class and wall time for all ERIs of molecules.
     Integrals(IntegralsArgs),
+    /// SCF and EP2 valence IEs of one molecule (args in cli/ionize.rs).
+    Ep2(super::ionize::Ep2BenchArgs),
 }
 
 #[derive(clap::Args, Debug)]
@@ -46,6 +48,7 @@ pub struct IntegralsArgs {
 pub fn run(args: Args) -> Result<()> {
     match args.workload {
         Workload::Integrals(a) => integrals(a),
+        Workload::Ep2(a) => super::ionize::ep2_bench(a),
     }
 }
 
