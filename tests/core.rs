@@ -13,7 +13,9 @@ use std::process::Command;
 
 use bandcast::chem::xyz::{parse_xyz, read_xyz, LengthUnit};
 use bandcast::chem::Molecule;
-use bandcast::ionization::core::{predict, CoreOptions, CoreResult, ShiftReference, TargetSelection};
+use bandcast::ionization::core::{
+    predict, CoreOptions, CoreResult, ShiftReference, TargetSelection,
+};
 use bandcast::ionization::Region;
 
 const BASIS: &str = "cc-pVDZ";
@@ -30,8 +32,11 @@ fn load(name: &str) -> Molecule {
 /// Diatomic Molecules* (1979), from memory). The GW100 file in /work/shared gives 1.283 Å,
 /// which is not the CO molecule's bond length, so it is not used here.
 fn carbon_monoxide() -> Molecule {
-    let mut m = parse_xyz("2\ncarbon monoxide\nC 0 0 0\nO 0 0 1.1283\n", LengthUnit::Angstrom)
-        .unwrap();
+    let mut m = parse_xyz(
+        "2\ncarbon monoxide\nC 0 0 0\nO 0 0 1.1283\n",
+        LengthUnit::Angstrom,
+    )
+    .unwrap();
     m.name = "carbon monoxide".into();
     m
 }
@@ -50,7 +55,9 @@ fn one(mol: &Molecule, z: u32) -> bandcast::ionization::core::CoreLevel {
 }
 
 fn check_level(what: &str, dscf: f64, koopmans: f64, s2: f64, published: f64, tol: f64) {
-    eprintln!("{what}: ΔSCF {dscf:.3} eV (published {published}), Koopmans {koopmans:.3}, ⟨S²⟩ {s2:.4}");
+    eprintln!(
+        "{what}: ΔSCF {dscf:.3} eV (published {published}), Koopmans {koopmans:.3}, ⟨S²⟩ {s2:.4}"
+    );
     assert!(
         (dscf - published).abs() < tol,
         "{what}: ΔSCF {dscf:.3} eV vs published {published} eV"
@@ -97,8 +104,15 @@ fn carbon_dioxide_oxygen_1s_is_localised() {
         // Wang et al., J. Electron Spectrosc. Relat. Phenom. 251 (2021) 147103:
         // CO2 O 1s 541.253 eV (vertical).
         check_level("CO2 O 1s", l.dscf_ev, l.koopmans_ev, l.s2, 541.253, 1.0);
-        assert!(l.localised, "the two O are equivalent: the hole must be localised");
-        assert!(l.hole_population > 0.9, "hole population {}", l.hole_population);
+        assert!(
+            l.localised,
+            "the two O are equivalent: the hole must be localised"
+        );
+        assert!(
+            l.hole_population > 0.9,
+            "hole population {}",
+            l.hole_population
+        );
     }
     // The two equivalent atoms give the same number.
     assert!((r.core_levels[0].dscf_ev - r.core_levels[1].dscf_ev).abs() < 1e-4);
@@ -214,7 +228,12 @@ fn json_has_the_documented_fields() {
         .args(["--basis", BASIS, "--json", "--reference-atom", "1"])
         .output()
         .unwrap();
-    assert_eq!(out.status.code(), Some(0), "{}", String::from_utf8_lossy(&out.stderr));
+    assert_eq!(
+        out.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
     let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
     assert_eq!(v["basis"].as_str().unwrap().to_ascii_lowercase(), "cc-pvdz");
     let l = &v["core_levels"][0];

@@ -47,6 +47,9 @@ pub struct Args {
     /// Core levels of one element only, e.g. `--element C` (default: every heavy atom).
     #[arg(long, value_name = "SYMBOL", value_parser = parse_element_arg)]
     pub element: Option<u32>,
+    /// Core levels: stop at the first SCF start that holds the hole (faster, less safe).
+    #[arg(long)]
+    pub quick: bool,
     /// Fit a linear scale as well as a shift (needs three assigned peaks or more).
     #[arg(long)]
     pub fit_scale: bool,
@@ -116,6 +119,7 @@ pub fn run(args: Args) -> Result<()> {
         args.method.as_deref(),
         args.region,
         args.element,
+        args.quick,
     )?;
     let photon = args.photon.unwrap_or(match args.region {
         Region::Valence => Photon::He1,

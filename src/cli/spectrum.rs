@@ -40,6 +40,9 @@ pub struct Args {
     /// Core levels of one element only, e.g. `--element C` (default: every heavy atom).
     #[arg(long, value_name = "SYMBOL", value_parser = parse_element_arg)]
     pub element: Option<u32>,
+    /// Core levels: stop at the first SCF start that holds the hole (faster, less safe).
+    #[arg(long)]
+    pub quick: bool,
     /// Photon source: he1, he2, mgka, alka, or an energy in eV.
     #[arg(long, value_name = "he1|he2|mgka|alka|ENERGY_EV", value_parser = parse_photon)]
     pub photon: Photon,
@@ -124,18 +127,58 @@ pub fn check_fwhm(v: Option<f64>) -> Result<Option<f64>> {
     }
 }
 
-/// Predicted bands of one molecule for a region (valence or core) by `method`.
+/// Predicted bands of one molecule for a region, and the name of the method used.
+///
+/// Valence: `ionization::valence::predict` with `--method` (default: the module's default
+/// for the molecule, EP2 for closed shells). Core: `ionization::core::predict` by ΔSCF
+/// (`--method dscf`, default) or ΔMP2 (`--method dmp2`), for every heavy atom or the atoms
+/// of one element (`element`).
 pub fn predict_bands(
     mol: &Molecule,
     basis: &str,
     method: Option<&str>,
     region: Region,
     element: Option<u32>,
+    quick: bool,
 ) -> Result<(Vec<Band>, String)> {
-    let _ = (mol, basis, method, region, element);
-    Err(Error::computation(
-        "band prediction is not available in this build yet (the ionization modules are still being merged)",
-    ))
+    match region {
+        Region::Valence => {
+            use bandcast::ionization::valence::{default_method, predict, ValenceOptions};
+            use bandcast::ionization::Method;
+            let m = match method {
+                Some(name) => Method::parse(name)?,
+                None => default_method(mol),
+            };
+            let set = bandcast::basis::load(basis, mol, None)?;
+            let opts = ValenceOptions {
+                method: m,
+                ..ValenceOptions::default()
+            };
+            let r = predict(mol, &set, &opts)?;
+            Ok((r.bands, m.name().to_string()))
+        }
+        Region::Core => {
+            use bandcast::ionization::core::{predict, CoreOptions, TargetSelection};
+            let mut opts = CoreOptions::default();
+            match method.map(|m| m.to_ascii_lowercase()) {
+                None => {}
+                Some(m) if m == "dscf" => {}
+                Some(m) if m == "dmp2" => opts.mp2 = true,
+                Some(m) => {
+                    return Err(Error::input(format!(
+                        "core levels are computed by dscf or dmp2, not '{m}'"
+                    )))
+                }
+            }
+            if let Some(z) = element {
+                opts.targets = TargetSelection::Element(z);
+            }
+            opts.thorough = !quick;
+            let r = predict(mol, basis, &opts)?;
+            let name = if opts.mp2 { "dmp2" } else { "dscf" };
+            Ok((r.bands(), name.to_string()))
+        }
+    }
 }
 
 /// Everything `bandcast spectrum` prints in `--json`.
@@ -325,6 +368,7 @@ pub fn run(args: Args) -> Result<()> {
             args.method.as_deref(),
             args.region,
             args.element,
+            args.quick,
         )?;
         method_used = method;
         per_input.push((bands, inp.weight, component_name(&inp.path)));
