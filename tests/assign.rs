@@ -176,6 +176,170 @@ fn shift_and_scale_are_recovered() {
     }
 }
 
+/// Valence bands of a molecule predicted by bandcast itself (default method, small basis),
+/// as lines for the comparison (He I reach, occupation × degeneracy × pole strength).
+fn predicted_lines(xyz: &str, basis: &str) -> Vec<PredictedLine> {
+    use bandcast::chem::xyz::{parse_xyz, LengthUnit};
+    use bandcast::ionization::valence::{default_method, predict, ValenceOptions};
+    use bandcast::spectrum::predicted::{sticks_from_bands, IntensityModel, StickOptions};
+    use bandcast::spectrum::Photon;
+    let mol = parse_xyz(xyz, LengthUnit::Angstrom).unwrap();
+    let set = bandcast::basis::load(basis, &mol, None).unwrap();
+    let opts = ValenceOptions {
+        method: default_method(&mol),
+        ..ValenceOptions::default()
+    };
+    let r = predict(&mol, &set, &opts).unwrap();
+    let mut notes = Vec::new();
+    let (sticks, _) = sticks_from_bands(
+        &r.bands,
+        &StickOptions {
+            photon: Photon::He1,
+            intensity: IntensityModel::Occupation,
+            gaussian_fwhm_ev: 0.3,
+            weight: 1.0,
+            component: 0,
+        },
+        &mut notes,
+    );
+    sticks
+        .iter()
+        .map(|s| PredictedLine {
+            label: s.label.clone(),
+            energy_ev: s.binding_ev,
+            intensity: s.intensity,
+        })
+        .collect()
+}
+
+/// Water geometry of REFERENCE-DATA §1 (Crawford group programming projects), in Å.
+const WATER_XYZ: &str = "3\nwater\nO 0.000000 -0.075791844 0.0\nH 0.866811829 0.601435779 0.0\nH -0.866811829 0.601435779 0.0\n";
+/// N2 at the GW100 experimental bond length 1.0977 Å (van Setten et al. 2015).
+const N2_XYZ: &str = "2\nnitrogen\nN 0 0 0\nN 0 0 1.0977\n";
+
+#[test]
+fn water_assigned_with_the_real_prediction() {
+    // Kimura et al. (1981) He I band positions, as in water_he1_bands_are_assigned; the
+    // prediction is bandcast's default valence method in cc-pVDZ.
+    let measured = synthetic(
+        &[12.62, 14.74, 18.51],
+        &[1.0, 0.7, 0.5],
+        11.0,
+        20.5,
+        0.01,
+        7,
+    );
+    let pred = predicted_lines(WATER_XYZ, "cc-pvdz");
+    let c = compare(
+        &pred,
+        &measured,
+        &CompareOptions::defaults(Region::Valence, 0.35),
+    )
+    .unwrap();
+    let got: Vec<(&str, f64)> = c
+        .assignments
+        .iter()
+        .map(|a| (a.label.as_str(), a.measured_ev))
+        .collect();
+    assert_eq!(got.len(), 3, "{c:?}");
+    for ((label, e), (want_label, want_e)) in
+        got.iter()
+            .zip([("1b1", 12.62), ("3a1", 14.74), ("1b2", 18.51)])
+    {
+        assert_eq!(*label, want_label, "{c:?}");
+        assert!((e - want_e).abs() < 0.03);
+    }
+}
+
+#[test]
+fn nitrogen_assigned_with_the_real_prediction() {
+    // Kimura (1981) / Turner (1970) N2 positions; textbook order 3σg, 1πu, 2σu.
+    let measured = synthetic(
+        &[15.58, 16.93, 18.75],
+        &[1.0, 0.9, 0.4],
+        14.5,
+        20.0,
+        0.01,
+        11,
+    );
+    let pred = predicted_lines(N2_XYZ, "cc-pvdz");
+    let c = compare(
+        &pred,
+        &measured,
+        &CompareOptions::defaults(Region::Valence, 0.35),
+    )
+    .unwrap();
+    let labels: Vec<&str> = c.assignments.iter().map(|a| a.label.as_str()).collect();
+    assert_eq!(labels, vec!["3σg", "1πu", "2σu"], "{c:?}");
+}
+
+#[test]
+fn assign_command_json_schema() {
+    // End to end: `bandcast assign --json` on a synthetic water trace (Kimura 1981 positions).
+    let dir = std::env::temp_dir().join(format!("bandcast-assign-json-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let m = synthetic(
+        &[12.62, 14.74, 18.51],
+        &[1.0, 0.7, 0.5],
+        11.0,
+        20.5,
+        0.01,
+        9,
+    );
+    let mut text = String::from("# synthetic test trace\nenergy,intensity\n");
+    for (e, y) in m.energy_ev.iter().zip(&m.intensity) {
+        text.push_str(&format!("{e:.3},{y:.6}\n"));
+    }
+    let data = dir.join("water-he1.csv");
+    std::fs::write(&data, text).unwrap();
+    let xyz = dir.join("water.xyz");
+    std::fs::write(&xyz, WATER_XYZ).unwrap();
+    let html = dir.join("report.html");
+    let out = std::process::Command::new(env!("CARGO_BIN_EXE_bandcast"))
+        .args([
+            "assign",
+            xyz.to_str().unwrap(),
+            "--basis",
+            "cc-pvdz",
+            "--photon",
+            "he1",
+            "--measured",
+            data.to_str().unwrap(),
+            "--json",
+            "--html",
+            html.to_str().unwrap(),
+        ])
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    assert!(v["shift_ev"].is_f64());
+    assert_eq!(v["scale"].as_f64(), Some(1.0));
+    let a = v["assignments"].as_array().unwrap();
+    assert_eq!(a.len(), 3);
+    for key in [
+        "measured_ev",
+        "label",
+        "predicted_ev",
+        "residual_ev",
+        "confidence",
+    ] {
+        assert!(a.iter().all(|x| !x[key].is_null()), "{key}");
+    }
+    assert_eq!(a[0]["label"], "1b1");
+    let page = std::fs::read_to_string(&html).unwrap();
+    assert!(page.contains("<svg") && page.contains("1b1"));
+    // self-contained: nothing loaded from elsewhere, no scripts
+    for bad in ["src=", "href=", "<script", "<link", "@import"] {
+        assert!(!page.contains(bad), "{bad}");
+    }
+    std::fs::remove_dir_all(&dir).unwrap();
+}
+
 #[test]
 fn malformed_measured_file_exits_2_naming_the_line() {
     let dir = std::env::temp_dir().join(format!("bandcast-assign-{}", std::process::id()));
