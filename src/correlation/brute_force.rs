@@ -260,9 +260,10 @@ impl FockSpace {
         (e, r1, r2)
     }
 
-    /// Eigenvalues (real parts, ascending) of H̄ − E_CC in the 1h + 2h1p space of the
-    /// N−1 electron sector with one β electron removed, plus the ⟨S²⟩-free count of states.
-    pub fn ip_spectrum(&self, t1: &Tensor, t2: &Tensor) -> Vec<f64> {
+    /// Eigenvalues (real, imaginary; ascending real part) of H̄ − E_CC in the 1h + 2h1p space of the
+    /// N−1 electron sector with one β electron removed (doublets and quartets), built from
+    /// the connected matrix elements ⟨μ|[H̄, R_ν]|Φ⟩ so that it holds for any amplitudes.
+    pub fn ip_spectrum(&self, t1: &Tensor, t2: &Tensor) -> Vec<(f64, f64)> {
         let o = self.nocc;
         let r0 = self.reference();
         let occ_mask = r0;
@@ -286,20 +287,37 @@ impl FockSpace {
         }
         let mut phi = vec![0.0; self.dim()];
         phi[r0 as usize] = 1.0;
-        let e0 = self.apply_hbar(t1, t2, &phi)[r0 as usize];
+        let hphi = self.apply_hbar(t1, t2, &phi);
         let m = basis.len();
         let mut h = bandcast_linalg::Mat::<f64>::zeros(m, m);
         for (nu, &dn) in basis.iter().enumerate() {
+            // R_ν as an operator string with |ν⟩ = sign · R_ν |Φ⟩.
+            let holes: Vec<usize> = (0..2 * o).filter(|p| dn & (1 << p) == 0).collect();
+            let parts: Vec<usize> = (2 * o..2 * self.n).filter(|p| dn & (1 << p) != 0).collect();
+            let mut ops: Vec<(usize, bool)> = parts.iter().map(|&p| (p, true)).collect();
+            ops.extend(holes.iter().rev().map(|&p| (p, false)));
+            let (d, sign) = apply_string(r0, &ops).unwrap();
+            assert_eq!(d, dn);
             let mut x = vec![0.0; self.dim()];
             x[dn as usize] = 1.0;
             let y = self.apply_hbar(t1, t2, &x);
+            // connected part ⟨μ|[H̄, R_ν]|Φ⟩ = ⟨μ|H̄|ν⟩ − ⟨μ|R_ν H̄|Φ⟩: exact EOM matrix for
+            // any amplitudes (the second term vanishes only at CC convergence).
+            let mut z = vec![0.0; self.dim()];
+            for (det, &c) in hphi.iter().enumerate() {
+                if c != 0.0 {
+                    if let Some((dd, sg)) = apply_string(det as u64, &ops) {
+                        z[dd as usize] += sign * sg * c;
+                    }
+                }
+            }
             for (mu, &dm) in basis.iter().enumerate() {
-                h[(mu, nu)] = y[dm as usize] - if mu == nu { e0 } else { 0.0 };
+                h[(mu, nu)] = y[dm as usize] - z[dm as usize];
             }
         }
-        let (re, _im, _, _) = bandcast_linalg::eig_general(h.as_ref()).unwrap();
-        let mut re = re;
-        re.sort_by(|a, b| a.total_cmp(b));
-        re
+        let (re, im, _, _) = bandcast_linalg::eig_general(h.as_ref()).unwrap();
+        let mut ev: Vec<(f64, f64)> = re.into_iter().zip(im).collect();
+        ev.sort_by(|a, b| a.0.total_cmp(&b.0));
+        ev
     }
 }

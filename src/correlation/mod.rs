@@ -14,3 +14,5 @@ pub mod tensor;
 
 #[cfg(test)]
 pub(crate) mod brute_force;
+pub mod eom_ip_intermediates;
+pub mod eom_ip_sigma;

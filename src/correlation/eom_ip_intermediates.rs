@@ -1,0 +1,116 @@
+//! Elements of the similarity-transformed Hamiltonian H̄ = e^{−T} H e^{T} that the
+//! EOM-IP sigma vectors need, for a closed-shell reference.
+//!
+//! Spin-orbital definitions: Stanton & Gauss, J. Chem. Phys. 101 (1994) 8938, and Gauss &
+//! Stanton, J. Chem. Phys. 103 (1995) 3561, Table III (H̄_me, H̄_mi, H̄_ae, H̄_mnij,
+//! H̄_mnie, H̄_mbej, H̄_mbij). Each is reduced here to its αβ spin block(s) over spatial
+//! orbitals; the names give the index order of the arrays:
+//!
+//! - `fov[m,e]` = H̄_me, `loo[m,i]` = H̄_mi, `lvv[a,e]` = H̄_ae (all spin-diagonal);
+//! - `woooo[m,n,i,j]` = H̄_{mα nβ iα jβ}, `wooov[m,n,i,e]` = H̄_{mα nβ iα eβ};
+//! - `wovvo[m,b,e,j]` = H̄_{mα bβ eα jβ} and `wovov[m,b,j,e]` = H̄_{mα bβ jα eβ}
+//!   (the two spin couplings of H̄_mbej; the same-spin block is their difference);
+//! - `wovoo[m,b,i,j]` = H̄_{mα bβ iα jβ};
+//! - `woovv[m,n,e,f]` = ⟨mn|ef⟩ = (me|nf).
+//!
+//! With T1 = 0 and first-order T2 the same expressions give EOM-IP-MBPT2 (Stanton & Gauss,
+//! J. Chem. Phys. 103 (1995) 1064).
+
+use super::ccsd_intermediates as imd;
+use super::integrals::MoIntegrals;
+use super::tensor::{einsum, Tensor};
+
+pub struct IpHbar {
+    pub fov: Tensor,
+    pub loo: Tensor,
+    pub lvv: Tensor,
+    pub woooo: Tensor,
+    pub wooov: Tensor,
+    pub wovvo: Tensor,
+    pub wovov: Tensor,
+    pub wovoo: Tensor,
+    pub woovv: Tensor,
+    pub t2: Tensor,
+}
+
+/// 2 t_ij^ab − t_ij^ba.
+fn t2_tilde(t2: &Tensor) -> Tensor {
+    let mut x = t2.permute(&[0, 1, 3, 2]);
+    x.scale(-1.0);
+    x.axpy(2.0, t2);
+    x
+}
+
+impl IpHbar {
+    pub fn new(ints: &MoIntegrals, t1: &Tensor, t2: &Tensor) -> Self {
+        let ovov = &ints.ovov;
+        let ovoo = &ints.ovoo;
+        let tau = imd::tau(t1, t2);
+        let t2x = t2_tilde(t2);
+        let fov = imd::fov(ints, t1);
+        let foo = imd::foo(ints, &tau);
+        let fvv = imd::fvv(ints, &tau);
+        let lvv_x = imd::lvv_ovvv_part(ints, t1);
+        let loo = imd::loo(ints, t1, &foo);
+        let lvv = imd::lvv(ints, t1, &fvv, &lvv_x);
+        let woooo = imd::woooo(ints, t1, &tau);
+
+        // H̄_mnie: (mi|ne) + Σ_f t_i^f (mf|ne)
+        let mut wooov = ovoo.permute(&[2, 0, 3, 1]);
+        wooov.axpy(1.0, &einsum("ic,kcld->klid", t1, ovov));
+
+        // H̄_mbej, direct coupling
+        let mut wovvo = ovov.permute(&[0, 3, 1, 2]);
+        wovvo.axpy(-1.0, &einsum("menj,nb->mbej", ovoo, t1));
+        wovvo.axpy(1.0, &einsum("menf,jnbf->mbej", ovov, &t2x));
+        wovvo.axpy(-1.0, &einsum("mfne,jnbf->mbej", ovov, t2));
+        let z = einsum("menf,jf->menj", ovov, t1);
+        wovvo.axpy(-1.0, &einsum("menj,nb->mbej", &z, t1));
+
+        // H̄_mbej, exchange coupling (stored as H̄_mbje)
+        let mut wovov = ints.oovv.permute(&[0, 2, 1, 3]);
+        wovov.axpy(-1.0, &einsum("nemj,nb->mbje", ovoo, t1));
+        wovov.axpy(-1.0, &einsum("mfne,jnfb->mbje", ovov, t2));
+        let z = einsum("mfne,jf->mnej", ovov, t1);
+        wovov.axpy(-1.0, &einsum("mnej,nb->mbje", &z, t1));
+
+        // H̄_mbij
+        let mut wovoo = ovoo.permute(&[2, 1, 3, 0]);
+        wovoo.axpy(1.0, &einsum("me,ijeb->mbij", &fov, t2));
+        wovoo.axpy(-1.0, &einsum("mnij,nb->mbij", &woooo, t1));
+        wovoo.axpy(1.0, &einsum("nemi,jnbe->mbij", ovoo, &t2x));
+        wovoo.axpy(-1.0, &einsum("meni,jnbe->mbij", ovoo, t2));
+        wovoo.axpy(-1.0, &einsum("menj,ineb->mbij", ovoo, t2));
+        wovoo.axpy(1.0, &einsum("mejb,ie->mbij", ovov, t1));
+        let mut x = einsum("menf,njfb->mejb", ovov, &t2x);
+        x.axpy(-1.0, &einsum("mfne,njfb->mejb", ovov, t2));
+        wovoo.axpy(1.0, &einsum("mejb,ie->mbij", &x, t1));
+        wovoo.axpy(1.0, &einsum("mibe,je->mbij", &ints.oovv, t1));
+        let y = einsum("mfne,infb->meib", ovov, t2);
+        wovoo.axpy(-1.0, &einsum("meib,je->mbij", &y, t1));
+
+        // (ov|vv) contributions, batched over the occupied index m.
+        for (k0, k1) in ints.ovvv_batches(2) {
+            let s = ints.ovvv_slice(k0, k1);
+            let p = einsum("mebf,jf->mbej", &s, t1);
+            imd::add_slice_along(&mut wovvo, &p, 0, k0);
+            let p = einsum("mfbe,jf->mbje", &s, t1);
+            imd::add_slice_along(&mut wovov, &p, 0, k0);
+            let p = einsum("mebf,ijef->mbij", &s, &tau);
+            imd::add_slice_along(&mut wovoo, &p, 0, k0);
+        }
+        let woovv = ovov.permute(&[0, 2, 1, 3]);
+        IpHbar {
+            fov,
+            loo,
+            lvv,
+            woooo,
+            wooov,
+            wovvo,
+            wovov,
+            wovoo,
+            woovv,
+            t2: t2.clone(),
+        }
+    }
+}
