@@ -1,1 +1,28 @@
-//! (module under construction)
+//! Molecular integrals over contracted Gaussian shells, in the final AO basis
+//! (every AO normalised; pure shells as real solid harmonics). See DEVELOPERS.md,
+//! section "Integrals", for the equations and conventions.
+//!
+//! - `boys`: the Boys function F_m(T).
+//! - `cartesian`: Cartesian component order.
+//! - `hermite_expansion`, `hermite_coulomb`: McMurchie–Davidson E and R quantities.
+//! - `overlap`, `kinetic`, `nuclear`, `dipole`: one-electron matrices (driver in `one_electron`).
+//! - `shell_pair`, `eri`: the two-electron engine; `schwarz` screening helpers.
+pub mod boys;
+pub mod cartesian;
+pub mod dipole;
+pub mod eri;
+pub mod hermite_coulomb;
+pub mod hermite_expansion;
+pub mod kinetic;
+pub mod nuclear;
+pub mod one_electron;
+pub mod overlap;
+pub mod schwarz;
+pub mod shell_pair;
+pub mod transform;
+
+pub use dipole::dipole;
+pub use eri::{eri_tensor, eri_tensor_with, EriEngine};
+pub use kinetic::kinetic;
+pub use nuclear::{nuclear, nuclear_from_charges};
+pub use overlap::overlap;
