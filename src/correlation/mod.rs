@@ -7,6 +7,7 @@
 //! the `ionize` entry point), memory.rs (estimates before anything large is allocated).
 pub mod ccsd;
 pub mod ccsd_intermediates;
+pub mod cholesky;
 pub mod davidson;
 pub mod diis;
 pub mod integrals;
