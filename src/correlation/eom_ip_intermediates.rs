@@ -11,7 +11,7 @@
 //! - `wovvo[m,b,e,j]` = H̄_{mα bβ eα jβ} and `wovov[m,b,j,e]` = H̄_{mα bβ jα eβ}
 //!   (the two spin couplings of H̄_mbej; the same-spin block is their difference);
 //! - `wovoo[m,b,i,j]` = H̄_{mα bβ iα jβ};
-//! - `woovv[m,n,e,f]` = ⟨mn|ef⟩ = (me|nf).
+//! - the three-body term reads ⟨mn|ef⟩ = (me|nf) and the ground-state T2.
 //!
 //! With T1 = 0 and first-order T2 the same expressions give EOM-IP-MBPT2 (Stanton & Gauss,
 //! J. Chem. Phys. 103 (1995) 1064).
@@ -20,17 +20,23 @@ use super::ccsd_intermediates as imd;
 use super::integrals::MoIntegrals;
 use super::tensor::{einsum, Tensor};
 
+/// H̄ blocks, the large ones stored in the index order the sigma contractions read
+/// (so no per-iteration transposition of o²v² arrays is needed).
 pub struct IpHbar {
     pub fov: Tensor,
     pub loo: Tensor,
     pub lvv: Tensor,
     pub woooo: Tensor,
     pub wooov: Tensor,
-    pub wovvo: Tensor,
-    pub wovov: Tensor,
+    /// H̄_{mα bβ eα jβ} stored as [b,j,m,e]
+    pub wovvo_bjme: Tensor,
+    /// H̄_{mα bβ jα eβ} stored as [b,j,m,e]
+    pub wovov_bjme: Tensor,
     pub wovoo: Tensor,
-    pub woovv: Tensor,
-    pub t2: Tensor,
+    /// 2(ld|kc) − (kd|lc) stored as [c,k,l,d]
+    pub w3_cklb: Tensor,
+    /// t_ij^cb stored as [c,i,j,b]
+    pub t2_cijb: Tensor,
 }
 
 /// 2 t_ij^ab − t_ij^ba.
@@ -99,18 +105,21 @@ impl IpHbar {
             let p = einsum("mebf,ijef->mbij", &s, &tau);
             imd::add_slice_along(&mut wovoo, &p, 0, k0);
         }
-        let woovv = ovov.permute(&[0, 2, 1, 3]);
+        // three-body term: Σ_kld [2 (ld|kc) − (kd|lc)] R2[k,l,d], as [c,k,l,d]
+        let mut w3 = ovov.permute(&[3, 2, 0, 1]); // (ld|kc): ovov[l,d,k,c] → [c,k,l,d]
+        w3.scale(2.0);
+        w3.axpy(-1.0, &ovov.permute(&[3, 0, 2, 1])); // (kd|lc): ovov[k,d,l,c] → [c,k,l,d]
         IpHbar {
             fov,
             loo,
             lvv,
             woooo,
             wooov,
-            wovvo,
-            wovov,
+            wovvo_bjme: wovvo.permute(&[1, 3, 0, 2]),
+            wovov_bjme: wovov.permute(&[1, 2, 0, 3]),
             wovoo,
-            woovv,
-            t2: t2.clone(),
+            w3_cklb: w3,
+            t2_cijb: t2.permute(&[2, 0, 1, 3]),
         }
     }
 }

@@ -70,16 +70,15 @@ pub fn sigma(h: &IpHbar, space: &IpSpace, x: &[f64]) -> Vec<f64> {
     s2.axpy(-1.0, &einsum("ki,kjb->ijb", &h.loo, &r2));
     s2.axpy(-1.0, &einsum("lj,ilb->ijb", &h.loo, &r2));
     s2.axpy(1.0, &einsum("klij,klb->ijb", &h.woooo, &r2));
-    s2.axpy(2.0, &einsum("lbdj,ild->ijb", &h.wovvo, &r2));
-    s2.axpy(-1.0, &einsum("kbdj,kid->ijb", &h.wovvo, &r2));
-    s2.axpy(-1.0, &einsum("lbjd,ild->ijb", &h.wovov, &r2));
-    s2.axpy(-1.0, &einsum("kbid,kjd->ijb", &h.wovov, &r2));
-    // three-body term through the ground-state doubles
-    let mut w = h.woovv.permute(&[1, 0, 2, 3]);
-    w.scale(2.0);
-    w.axpy(-1.0, &h.woovv);
-    let c = einsum("kldc,kld->c", &w, &r2);
-    s2.axpy(-1.0, &einsum("c,ijcb->ijb", &c, &h.t2));
+    // ring terms: W_ovvo[l,b,d,j] and W_ovov[l,b,j,d], both stored as [b,j,l,d]
+    s2.axpy(2.0, &einsum("bjld,ild->ijb", &h.wovvo_bjme, &r2));
+    s2.axpy(-1.0, &einsum("bjkd,kid->ijb", &h.wovvo_bjme, &r2));
+    s2.axpy(-1.0, &einsum("bjld,ild->ijb", &h.wovov_bjme, &r2));
+    s2.axpy(-1.0, &einsum("bikd,kjd->ijb", &h.wovov_bjme, &r2));
+    // three-body term through the ground-state doubles:
+    // −Σ_c t_ij^cb Σ_kld [2(ld|kc) − (kd|lc)] R2[k,l,d]
+    let c = einsum("ckld,kld->c", &h.w3_cklb, &r2);
+    s2.axpy(-1.0, &einsum("c,cijb->ijb", &c, &h.t2_cijb));
     let mut out = s1.data;
     out.extend_from_slice(&s2.data);
     out

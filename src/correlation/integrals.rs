@@ -48,7 +48,7 @@ pub struct MoIntegrals {
     pub lovov: Tensor,
     /// (ia|bc) as [i,a,b,c] when stored.
     pub ovvv: Option<Tensor>,
-    /// (ab|cd) as [a,b,c,d] when stored (small virtual spaces only).
+    /// (ac|bd) as [a,b,c,d] (ladder order) when stored (small virtual spaces only).
     pub vvvv: Option<Tensor>,
     pub factors: MoFactors,
 }
@@ -205,7 +205,7 @@ impl MoIntegrals {
         lovov.scale(-1.0);
         lovov.axpy(2.0, &ovov);
         let ovvv = store_ovvv.then(|| factors.ovvv_slice(0, o));
-        let vvvv = store_vvvv.then(|| factors.vvvv());
+        let vvvv = store_vvvv.then(|| factors.vvvv().permute(&[0, 2, 1, 3]));
         MoIntegrals {
             nocc: o,
             nvir: v,
@@ -247,8 +247,7 @@ impl MoIntegrals {
         match &self.vvvv {
             Some(vv) => {
                 let (o, v) = (self.nocc, self.nvir);
-                // vvvv[a,c,b,d] → [a,b][c,d]
-                let w = vv.permute(&[0, 2, 1, 3]);
+                let w = vv;
                 let mut out = Tensor::zeros(&[o, o, v, v]);
                 gemm_rm(
                     &mut out.data,
@@ -378,7 +377,7 @@ pub(crate) mod toy {
         }
         let a = ints_s.ladder(&x);
         let b = ints_d.ladder(&x);
-        let vv = ints_s.vvvv.as_ref().unwrap();
+        let vv = &ints_s.factors.vvvv();
         for i in 0..o {
             for j in 0..o {
                 for aa in 0..v {

@@ -170,6 +170,14 @@ pub fn gemm_rm(
     );
 }
 
+fn permuted<'a>(t: &'a Tensor, perm: &[usize]) -> std::borrow::Cow<'a, Tensor> {
+    if perm.iter().enumerate().all(|(k, &p)| k == p) {
+        std::borrow::Cow::Borrowed(t)
+    } else {
+        std::borrow::Cow::Owned(t.permute(perm))
+    }
+}
+
 /// Binary contraction, e.g. `einsum("kcld,ilcd->ki", &a, &b)`.
 pub fn einsum(spec: &str, a: &Tensor, b: &Tensor) -> Tensor {
     let (lhs, out) = spec.split_once("->").expect("einsum spec needs ->");
@@ -229,8 +237,8 @@ pub fn einsum(spec: &str, a: &Tensor, b: &Tensor) -> Tensor {
         .chain(free_b.iter())
         .map(|c| ib.iter().position(|x| x == c).unwrap())
         .collect();
-    let ap = a.permute(&pa);
-    let bp = b.permute(&pb);
+    let ap = permuted(a, &pa);
+    let bp = permuted(b, &pb);
     let m: usize = free_a.iter().map(|&c| dim(c)).product();
     let k: usize = contracted.iter().map(|&c| dim(c)).product();
     let n: usize = free_b.iter().map(|&c| dim(c)).product();
@@ -242,7 +250,11 @@ pub fn einsum(spec: &str, a: &Tensor, b: &Tensor) -> Tensor {
         .iter()
         .map(|ch| mid.iter().position(|x| x == ch).expect("output index"))
         .collect();
-    c.permute(&po)
+    if po.iter().enumerate().all(|(k, &p)| k == p) {
+        c
+    } else {
+        c.permute(&po)
+    }
 }
 
 #[cfg(test)]
