@@ -66,13 +66,13 @@ pub fn energy(ints: &MoIntegrals, t1: &Tensor, t2: &Tensor) -> f64 {
 
 /// Residuals (R1[i,a], R2[i,j,a,b]); zero at the CCSD solution.
 pub fn residual(ints: &MoIntegrals, t1: &Tensor, t2: &Tensor) -> (Tensor, Tensor) {
-    let (o, v) = (ints.nocc, ints.nvir);
     let fov0 = &ints.fov;
     let tau = imd::tau(t1, t2);
     let fov = imd::fov(ints, t1);
     let foo = imd::foo(ints, &tau);
     let fvv = imd::fvv(ints, &tau);
-    let lvv_x = imd::lvv_ovvv_part(ints, t1);
+    let ov3 = imd::ovvv_pass(ints, t1, Some((t2, &tau)));
+    let lvv_x = &ov3.lvv_x;
 
     // ---- T1 ----
     let mut r1 = fov0.clone();
@@ -86,7 +86,8 @@ pub fn residual(ints: &MoIntegrals, t1: &Tensor, t2: &Tensor) -> (Tensor, Tensor
     r1.axpy(1.0, &einsum("ki,ka->ia", &z, t1));
     r1.axpy(2.0, &einsum("kcia,kc->ia", &ints.ovov, t1));
     r1.axpy(-1.0, &einsum("kiac,kc->ia", &ints.oovv, t1));
-    r1.axpy(1.0, &einsum("ac,ic->ia", &lvv_x, t1));
+    r1.axpy(1.0, &einsum("ac,ic->ia", lvv_x, t1));
+    r1.axpy(1.0, &ov3.r1);
     r1.axpy(-2.0, &einsum("lcki,klac->ia", &ints.ovoo, t2));
     r1.axpy(1.0, &einsum("kcli,klac->ia", &ints.ovoo, t2));
     let z = einsum("lcki,lc->ki", &ints.ovoo, t1);
@@ -97,21 +98,7 @@ pub fn residual(ints: &MoIntegrals, t1: &Tensor, t2: &Tensor) -> (Tensor, Tensor
     // ---- T2 ----
     let mut r2 = ints.ovov.permute(&[0, 2, 1, 3]);
     // P(ia,jb) Σ_c [(ia|bc) − Σ_k (ki|bc) t_k^a] t_j^c
-    let mut tmp = Tensor::zeros(&[o, o, v, v]);
-    let mut y_part = Tensor::zeros(&[o, v, o, o]); // Y[k,a,i,j] = Σ_cd (kd|ac) τ_ij^cd
-    let t2ki = t2.permute(&[1, 0, 2, 3]); // [k,i,c,d]
-    for (k0, k1) in ints.ovvv_batches(4) {
-        let s = ints.ovvv_slice(k0, k1);
-        // T1 ← 2 (kd|ac) t_ik^cd − (kc|ad) t_ik^cd, with k in the batch.
-        let t2k = imd::rows(&t2ki, k0, k1);
-        r1.axpy(2.0, &einsum("kdac,kicd->ia", &s, &t2k));
-        r1.axpy(-1.0, &einsum("kcad,kicd->ia", &s, &t2k));
-        // (ia|bc) with i in the batch
-        let part = einsum("iabc,jc->ijab", &s, t1);
-        imd::add_slice_along(&mut tmp, &part, 0, k0);
-        let y = einsum("kdac,ijcd->kaij", &s, &tau);
-        imd::add_slice_along(&mut y_part, &y, 0, k0);
-    }
+    let mut tmp = ov3.t2_tmp.clone();
     let z = einsum("kibc,ka->abic", &ints.oovv, t1);
     tmp.axpy(-1.0, &einsum("abic,jc->ijab", &z, t1));
     add_sym(&mut r2, 1.0, &tmp);
@@ -122,15 +109,15 @@ pub fn residual(ints: &MoIntegrals, t1: &Tensor, t2: &Tensor) -> (Tensor, Tensor
     add_sym(&mut r2, -1.0, &tmp);
 
     let loo = imd::loo(ints, t1, &foo);
-    let lvv = imd::lvv(ints, t1, &fvv, &lvv_x);
+    let lvv = imd::lvv(ints, t1, &fvv, lvv_x);
     let woooo = imd::woooo(ints, t1, &tau);
-    let wvoov = imd::wvoov(ints, t1, t2);
-    let wvovo = imd::wvovo(ints, t1, t2);
+    let wvoov = imd::wvoov(ints, t1, t2, &ov3.wvoov);
+    let wvovo = imd::wvovo(ints, t1, t2, &ov3.wvovo);
 
     r2.axpy(1.0, &einsum("klij,klab->ijab", &woooo, &tau));
     // Ladder with W_abcd = (ac|bd) − Σ_k t_k^b (kd|ac) − Σ_k t_k^a (kc|bd)
     r2.axpy(1.0, &ints.ladder(&tau));
-    let tmp = einsum("kaij,kb->ijab", &y_part, t1);
+    let tmp = einsum("kaij,kb->ijab", &ov3.y, t1);
     add_sym(&mut r2, -1.0, &tmp);
 
     let tmp = einsum("ac,ijcb->ijab", &lvv, t2);

@@ -64,18 +64,77 @@ pub fn loo(ints: &MoIntegrals, t1: &Tensor, foo: &Tensor) -> Tensor {
     l
 }
 
-/// The (ov|vv) part of L_ac: Σ_kd [2(kd|ac) − (kc|ad)] t_k^d, accumulated over batches.
-pub fn lvv_ovvv_part(ints: &MoIntegrals, t1: &Tensor) -> Tensor {
+/// Everything the CCSD residual takes from the (ov|vv) block, in one pass over occupied
+/// slices k of (kc|ab). With Q[k,a,c,d] = (kd|ac) and L = 2Q − Q(c↔d):
+/// `lvv_x[a,c]` = Σ_kd L[k,a,c,d] t_k^d (part of L_ac), `r1[i,a]` = Σ_kcd L[k,a,c,d] t_ik^cd,
+/// `t2_tmp[i,j,a,b]` = Σ_c (ia|bc) t_j^c, `y[k,a,i,j]` = Σ_cd (kd|ac) τ_ij^cd,
+/// `wvoov[a,k,i,c]` = Σ_d (kc|ad) t_i^d, `wvovo[a,k,c,i]` = Σ_d (kd|ac) t_i^d.
+pub struct OvvvTerms {
+    pub lvv_x: Tensor,
+    pub r1: Tensor,
+    pub t2_tmp: Tensor,
+    pub y: Tensor,
+    pub wvoov: Tensor,
+    pub wvovo: Tensor,
+}
+
+/// One pass over (ov|vv); with `t2 = None` only `lvv_x` is formed.
+pub fn ovvv_pass(ints: &MoIntegrals, t1: &Tensor, t2: Option<(&Tensor, &Tensor)>) -> OvvvTerms {
     let (o, v) = (ints.nocc, ints.nvir);
-    let mut x = Tensor::zeros(&[v, v]);
-    for (k0, k1) in ints.ovvv_batches(4) {
+    let mut out = OvvvTerms {
+        lvv_x: Tensor::zeros(&[v, v]),
+        r1: Tensor::zeros(&[o, v]),
+        t2_tmp: Tensor::zeros(&[o, o, v, v]),
+        y: Tensor::zeros(&[o, v, o, o]),
+        wvoov: Tensor::zeros(&[v, o, o, v]),
+        wvovo: Tensor::zeros(&[v, o, v, o]),
+    };
+    let t2ki = t2.map(|(t2, _)| t2.permute(&[1, 0, 2, 3])); // [k,i,c,d]
+    for (k0, k1) in ints.ovvv_batches(0) {
         let s = ints.ovvv_slice(k0, k1);
+        let q = s.permute(&[0, 2, 3, 1]); // (kd|ac) as [k,a,c,d]
+        let mut l = q.permute(&[0, 1, 3, 2]);
+        l.scale(-1.0);
+        l.axpy(2.0, &q);
         let t1s = rows(t1, k0, k1);
-        x.axpy(2.0, &einsum("kdac,kd->ac", &s, &t1s));
-        x.axpy(-1.0, &einsum("kcad,kd->ac", &s, &t1s));
+        // Σ_kd L[k,a,c,d] t_k^d, k by k (contiguous slices, no transposition)
+        let vvv = v * v * v;
+        for k in 0..k1 - k0 {
+            let lk = Tensor {
+                shape: vec![v, v, v],
+                data: l.data[k * vvv..(k + 1) * vvv].to_vec(),
+            };
+            let tk = Tensor {
+                shape: vec![v],
+                data: t1s.data[k * v..(k + 1) * v].to_vec(),
+            };
+            out.lvv_x.axpy(1.0, &einsum("acd,d->ac", &lk, &tk));
+            if let Some(t2ki) = &t2ki {
+                let tk2 = Tensor {
+                    shape: vec![o, v, v],
+                    data: t2ki.data[(k0 + k) * o * v * v..(k0 + k + 1) * o * v * v].to_vec(),
+                };
+                out.r1.axpy(1.0, &einsum("acd,icd->ia", &lk, &tk2));
+            }
+        }
+        drop(l);
+        if let Some((_, tau)) = t2 {
+            let part = einsum("iabc,jc->ijab", &s, t1);
+            add_slice_along(&mut out.t2_tmp, &part, 0, k0);
+            let y = einsum("kacd,ijcd->kaij", &q, tau);
+            add_slice_along(&mut out.y, &y, 0, k0);
+            let p = einsum("kcad,id->akic", &s, t1);
+            add_slice_along(&mut out.wvoov, &p, 1, k0);
+            let p = einsum("kacd,id->akci", &q, t1);
+            add_slice_along(&mut out.wvovo, &p, 1, k0);
+        }
     }
-    let _ = o;
-    x
+    out
+}
+
+/// The (ov|vv) part of L_ac: Σ_kd [2(kd|ac) − (kc|ad)] t_k^d.
+pub fn lvv_ovvv_part(ints: &MoIntegrals, t1: &Tensor) -> Tensor {
+    ovvv_pass(ints, t1, None).lvv_x
 }
 
 /// L_ac = F_ac − Σ_k f_kc t_k^a + (ov|vv) part.
@@ -124,15 +183,12 @@ pub fn add_slice_along(dst: &mut Tensor, src: &Tensor, axis: usize, k0: usize) {
 }
 
 /// W_akic (ring, "direct" coupling) of the closed-shell equations.
-pub fn wvoov(ints: &MoIntegrals, t1: &Tensor, t2: &Tensor) -> Tensor {
+/// `ovvv_part` is `OvvvTerms::wvoov`.
+pub fn wvoov(ints: &MoIntegrals, t1: &Tensor, t2: &Tensor, ovvv_part: &Tensor) -> Tensor {
     let ovov = &ints.ovov;
     // (kc|ai) = ovov[k,c,i,a] → [a,k,i,c]
     let mut w = ovov.permute(&[3, 0, 2, 1]);
-    for (k0, k1) in ints.ovvv_batches(4) {
-        let s = ints.ovvv_slice(k0, k1);
-        let part = einsum("kcad,id->akic", &s, t1);
-        add_slice_along(&mut w, &part, 1, k0);
-    }
+    w.axpy(1.0, ovvv_part);
     w.axpy(-1.0, &einsum("kcli,la->akic", &ints.ovoo, t1));
     w.axpy(-0.5, &einsum("ldkc,ilda->akic", ovov, t2));
     w.axpy(-0.5, &einsum("lckd,ilad->akic", ovov, t2));
@@ -143,15 +199,12 @@ pub fn wvoov(ints: &MoIntegrals, t1: &Tensor, t2: &Tensor) -> Tensor {
 }
 
 /// W_akci (ring, "exchange" coupling) of the closed-shell equations.
-pub fn wvovo(ints: &MoIntegrals, t1: &Tensor, t2: &Tensor) -> Tensor {
+/// `ovvv_part` is `OvvvTerms::wvovo`.
+pub fn wvovo(ints: &MoIntegrals, t1: &Tensor, t2: &Tensor, ovvv_part: &Tensor) -> Tensor {
     let ovov = &ints.ovov;
     // (ki|ac) = oovv[k,i,a,c] → [a,k,c,i]
     let mut w = ints.oovv.permute(&[2, 0, 3, 1]);
-    for (k0, k1) in ints.ovvv_batches(4) {
-        let s = ints.ovvv_slice(k0, k1);
-        let part = einsum("kdac,id->akci", &s, t1);
-        add_slice_along(&mut w, &part, 1, k0);
-    }
+    w.axpy(1.0, ovvv_part);
     w.axpy(-1.0, &einsum("lcki,la->akci", &ints.ovoo, t1));
     w.axpy(-0.5, &einsum("lckd,ilda->akci", ovov, t2));
     let z = einsum("lckd,id->lkci", ovov, t1);

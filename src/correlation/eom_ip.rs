@@ -557,15 +557,32 @@ mod explore {
     fn explore_gw100() {
         let name = std::env::var("MOL").unwrap_or("water".into());
         let bas = std::env::var("BASIS").unwrap_or("def2-tzvpp".into());
-        let mol = read_xyz(std::path::Path::new(&format!("/work/shared/data/gw100/{name}.xyz")), LengthUnit::Angstrom).unwrap();
+        let mol = read_xyz(
+            std::path::Path::new(&format!("/work/shared/data/gw100/{name}.xyz")),
+            LengthUnit::Angstrom,
+        )
+        .unwrap();
         let basis = crate::basis::load(&bas, &mol, None).unwrap();
         let t = std::time::Instant::now();
         let wfn = rhf(&mol, &basis);
-        eprintln!("SCF {} ({:.1}s) HOMO {:.4} eV", wfn.energy, t.elapsed().as_secs_f64(), -wfn.eps_alpha[wfn.n_alpha()-1]*HARTREE_TO_EV);
+        eprintln!(
+            "SCF {} ({:.1}s) HOMO {:.4} eV",
+            wfn.energy,
+            t.elapsed().as_secs_f64(),
+            -wfn.eps_alpha[wfn.n_alpha() - 1] * HARTREE_TO_EV
+        );
         for m in [EomMethod::Mbpt2, EomMethod::Ccsd] {
             let t = std::time::Instant::now();
-            let opts = EomOptions { method: m, roots: RootSpec::Lowest(4), ..Default::default() };
-            let t0 = std::time::Instant::now(); let rep = ionize_report(&mol, &basis, &wfn, &opts, &mut |l| eprintln!("[{:.2}] {l}", t0.elapsed().as_secs_f64())).unwrap();
+            let opts = EomOptions {
+                method: m,
+                roots: RootSpec::Lowest(4),
+                ..Default::default()
+            };
+            let t0 = std::time::Instant::now();
+            let rep = ionize_report(&mol, &basis, &wfn, &opts, &mut |l| {
+                eprintln!("[{:.2}] {l}", t0.elapsed().as_secs_f64())
+            })
+            .unwrap();
             eprintln!("{} {:.1}s", m.name(), t.elapsed().as_secs_f64());
             let _ = rep;
         }

@@ -224,12 +224,15 @@ impl MoIntegrals {
     }
 
     /// Occupied-index batches of (kc|ab): (k0, slice [k,c,a,b]).
+    /// `batch` = 0 picks a batch size keeping each slice near 64 M words.
     pub fn ovvv_batches(&self, batch: usize) -> Vec<(usize, usize)> {
         let o = self.nocc;
-        if self.ovvv.is_some() {
-            return vec![(0, o)];
-        }
-        let b = batch.max(1);
+        let v = self.nvir.max(1);
+        let b = if batch == 0 {
+            ((1usize << 26) / (v * v * v)).clamp(1, o.max(1))
+        } else {
+            batch
+        };
         (0..o.div_ceil(b))
             .map(|k| (k * b, ((k + 1) * b).min(o)))
             .collect()
@@ -238,7 +241,14 @@ impl MoIntegrals {
     pub fn ovvv_slice(&self, k0: usize, k1: usize) -> std::borrow::Cow<'_, Tensor> {
         match &self.ovvv {
             Some(t) if k0 == 0 && k1 == self.nocc => std::borrow::Cow::Borrowed(t),
-            _ => std::borrow::Cow::Owned(self.factors.ovvv_slice(k0, k1)),
+            Some(t) => {
+                let inner = self.nvir.pow(3);
+                std::borrow::Cow::Owned(Tensor {
+                    shape: vec![k1 - k0, self.nvir, self.nvir, self.nvir],
+                    data: t.data[k0 * inner..k1 * inner].to_vec(),
+                })
+            }
+            None => std::borrow::Cow::Owned(self.factors.ovvv_slice(k0, k1)),
         }
     }
 
