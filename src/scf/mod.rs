@@ -1,4 +1,30 @@
-//! Hartree–Fock SCF.
+//! Hartree–Fock SCF: RHF, UHF and ROHF with DIIS, SAD/core/orbital guesses, aufbau or MOM
+//! occupations, and Fock builders behind a trait.
+//!
+//! Files: `context` (`run`, integrals, guesses, the finished `Wavefunction`), `options` (what to do), `driver` (the iterations), `fock/` (J and K builders),
+//! `diis`, `convergence` (DIIS / level shift / damping control), `occupation` (aufbau, MOM),
+//! `orthogonalize` (canonical orthogonalisation), `guess` (core, SAD), `rohf` (effective Fock
+//! matrix), `spin` (⟨S²⟩), `wavefunction` (the result every later method reads).
+pub mod bench;
+pub mod context;
+pub mod convergence;
+pub mod diis;
+pub mod driver;
+pub mod fock;
+pub mod guess;
+pub mod occupation;
+pub mod options;
+pub mod orthogonalize;
+pub mod rohf;
+pub mod spin;
 pub mod wavefunction;
 
+pub use context::{core_hamiltonian, dipole_moment, run, run_logged, sad_density, ScfContext};
+pub use driver::{IterationInfo, Problem, Solution, Start};
+pub use fock::{FockBuilder, Jk};
+pub use options::{FockMethod, Guess, Occupation, ScfOptions};
+pub use orthogonalize::Orthogonalizer;
 pub use wavefunction::{Reference, Wavefunction};
+
+#[cfg(test)]
+mod model_tests;
