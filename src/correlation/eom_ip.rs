@@ -551,7 +551,6 @@ mod tests {
 mod explore {
     use super::*;
     use crate::chem::xyz::{read_xyz, LengthUnit};
-    use crate::correlation::test_rhf::rhf;
     #[test]
     #[ignore]
     fn explore_gw100() {
@@ -564,18 +563,27 @@ mod explore {
         .unwrap();
         let basis = crate::basis::load(&bas, &mol, None).unwrap();
         let t = std::time::Instant::now();
-        let wfn = rhf(&mol, &basis);
+        let wfn = crate::scf::run(&mol, &basis, &crate::scf::ScfOptions::default()).unwrap();
         eprintln!(
             "SCF {} ({:.1}s) HOMO {:.4} eV",
             wfn.energy,
             t.elapsed().as_secs_f64(),
             -wfn.eps_alpha[wfn.n_alpha() - 1] * HARTREE_TO_EV
         );
-        for m in [EomMethod::Mbpt2, EomMethod::Ccsd] {
+        let methods: Vec<EomMethod> = match std::env::var("METHODS").as_deref() {
+            Ok("mp2") => vec![EomMethod::Mbpt2],
+            Ok("ccsd") => vec![EomMethod::Ccsd],
+            _ => vec![EomMethod::Mbpt2, EomMethod::Ccsd],
+        };
+        let nroots: usize = std::env::var("NROOTS")
+            .ok()
+            .and_then(|x| x.parse().ok())
+            .unwrap_or(4);
+        for m in methods {
             let t = std::time::Instant::now();
             let opts = EomOptions {
                 method: m,
-                roots: RootSpec::Lowest(4),
+                roots: RootSpec::Lowest(nroots),
                 ..Default::default()
             };
             let t0 = std::time::Instant::now();
