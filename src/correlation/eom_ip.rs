@@ -126,6 +126,10 @@ pub struct EomReport {
     pub memory_estimate: f64,
     /// Human-readable notes on how the job was run (integral treatment, storage).
     pub notes: Vec<String>,
+    /// Wall times (s): integrals (decomposition + MO blocks), ground state, EOM.
+    pub seconds_integrals: f64,
+    pub seconds_ground: f64,
+    pub seconds_eom: f64,
 }
 
 /// Number of core orbitals kept frozen for an element (chemical core, common practice).
@@ -247,6 +251,7 @@ pub fn ionize_report(
     };
 
     // Integrals.
+    let clock = std::time::Instant::now();
     let eng = EriEngine::new(basis);
     let cd = cholesky::decompose(
         basis,
@@ -300,7 +305,9 @@ pub fn ionize_report(
         notes.push("all electrons correlated".into());
     }
 
+    let seconds_integrals = clock.elapsed().as_secs_f64();
     // Ground state.
+    let clock = std::time::Instant::now();
     let (e_mp2, t2_mp2) = mp2::mp2(&ints);
     log(&format!("MP2 correlation energy {e_mp2:.10} Eh"));
     let (t1, t2, e_cc, iters) = match opts.method {
@@ -311,7 +318,9 @@ pub fn ionize_report(
         EomMethod::Mbpt2 => (Tensor::zeros(&[o, v]), t2_mp2, None, 0),
     };
 
+    let seconds_ground = clock.elapsed().as_secs_f64();
     // EOM.
+    let clock = std::time::Instant::now();
     let hbar = IpHbar::new(&ints, &t1, &t2);
     drop(ints);
     let space = IpSpace { nocc: o, nvir: v };
@@ -383,6 +392,7 @@ pub fn ionize_report(
         })
         .collect();
     states.sort_by(|a, b| a.ie_hartree.total_cmp(&b.ie_hartree));
+    let seconds_eom = clock.elapsed().as_secs_f64();
     for s in &states {
         log(&format!(
             "{} state: IE {:.4} eV, orbital {}, one-hole weight {:.3}",
@@ -406,6 +416,9 @@ pub fn ionize_report(
         cholesky_threshold: opts.cholesky_threshold,
         memory_estimate: plan.peak_bytes,
         notes,
+        seconds_integrals,
+        seconds_ground,
+        seconds_eom,
     })
 }
 
@@ -424,6 +437,9 @@ fn empty_report(opts: &EomOptions, wfn: &Wavefunction, nf: usize, o: usize, v: u
         cholesky_threshold: opts.cholesky_threshold,
         memory_estimate: 0.0,
         notes: Vec::new(),
+        seconds_integrals: 0.0,
+        seconds_ground: 0.0,
+        seconds_eom: 0.0,
     }
 }
 

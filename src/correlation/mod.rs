@@ -5,6 +5,7 @@
 //! tensors and contractions through matrix products), mp2.rs, ccsd_intermediates.rs,
 //! ccsd.rs, diis.rs, davidson.rs (non-symmetric Davidson), eom_ip.rs (sigma vectors and
 //! the `ionize` entry point), memory.rs (estimates before anything large is allocated).
+pub mod bench;
 pub mod ccsd;
 pub mod ccsd_intermediates;
 pub mod cholesky;
