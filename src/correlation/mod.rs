@@ -21,6 +21,7 @@ pub mod eom_ip;
 pub mod eom_ip_intermediates;
 pub mod eom_ip_sigma;
 pub mod memory;
+pub mod method_choice;
 
 #[cfg(test)]
 pub(crate) mod test_rhf;
