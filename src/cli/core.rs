@@ -1,10 +1,205 @@
-//! `bandcast core` (being built).
+//! `bandcast core`: 1s binding energies and chemical shifts by ΔSCF with a localised hole.
 
+use std::io::IsTerminal;
+use std::path::PathBuf;
+
+use bandcast::chem::elements::parse_element;
+use bandcast::ionization::core::targets::parse_atom_list;
+use bandcast::ionization::core::{
+    predict_with_progress, CoreBasis, CoreOptions, CoreResult, ShiftReference, TargetSelection,
+};
 use bandcast::{Error, Result};
 
-#[derive(clap::Args, Debug)]
-pub struct Args {}
+use super::common::{MoleculeArgs, StateArgs};
 
-pub fn run(_args: Args) -> Result<()> {
-    Err(Error::computation("'bandcast core' is not built yet"))
+/// Core-level (1s) binding energies: Koopmans, ΔSCF with the hole kept on one atom by the
+/// maximum overlap method, optional ΔMP2, and chemical shifts against a reference.
+///
+/// Default targets: every atom heavier than helium. Atoms are numbered from 1 in the order
+/// of the XYZ file. The computed energies are vertical binding energies of an isolated
+/// molecule (no relativistic correction): they guide a measurement, they do not replace it.
+#[derive(clap::Args, Debug)]
+pub struct Args {
+    #[command(flatten)]
+    pub molecule: MoleculeArgs,
+    /// Basis set (name of a bundled set or a basis file).
+    #[arg(long, value_name = "NAME")]
+    pub basis: String,
+    /// Ionise every atom of this element (symbol or atomic number).
+    #[arg(long, value_name = "SYMBOL", conflicts_with = "atoms")]
+    pub element: Option<String>,
+    /// Ionise these atoms, numbered from 1: "1,3,5" or "2-4".
+    #[arg(long, value_name = "LIST")]
+    pub atoms: Option<String>,
+    /// Shifts against the same element's 1s in this molecule (its first atom of the element).
+    #[arg(long, value_name = "FILE.xyz", conflicts_with = "reference_atom")]
+    pub reference: Option<PathBuf>,
+    /// Shifts against this atom (from 1) of the same molecule.
+    #[arg(long, value_name = "N")]
+    pub reference_atom: Option<usize>,
+    /// Core flexibility on the hole atoms: plain, uncontract (split the s shells into
+    /// primitives; default), uncontract-sp, or the name of a set whose functions replace the
+    /// hole atoms' (e.g. a core-valence set).
+    #[arg(long, value_name = "plain|uncontract|NAME", default_value = "uncontract")]
+    pub core_basis: String,
+    /// Keep the canonical (delocalised) 1s as the hole instead of localising it.
+    #[arg(long)]
+    pub canonical_hole: bool,
+    /// Add the second-order (ΔMP2) correction.
+    #[arg(long)]
+    pub mp2: bool,
+    /// Stop at the first SCF start that holds the hole instead of trying all of them.
+    #[arg(long)]
+    pub quick: bool,
+    /// Machine-readable result on stdout.
+    #[arg(long)]
+    pub json: bool,
+}
+
+/// Build the library options from the arguments (everything the user can get wrong is
+/// reported as an input error, exit 2).
+pub fn options(args: &Args) -> Result<CoreOptions> {
+    let targets = match (&args.element, &args.atoms) {
+        (Some(e), _) => TargetSelection::Element(parse_element(e).ok_or_else(|| {
+            Error::input(format!("--element: '{e}' is not an element symbol (H–Kr)"))
+        })?),
+        (None, Some(list)) => TargetSelection::Atoms(parse_atom_list(list)?),
+        (None, None) => TargetSelection::AllHeavy,
+    };
+    let reference = match (&args.reference, args.reference_atom) {
+        (Some(path), _) => {
+            let state = StateArgs {
+                bohr: args.molecule.state.bohr,
+                charge: 0,
+                multiplicity: None,
+            };
+            ShiftReference::Molecule(Box::new(state.load(path)?))
+        }
+        (None, Some(0)) => {
+            return Err(Error::input(
+                "--reference-atom: atoms are numbered from 1, not 0",
+            ))
+        }
+        (None, Some(n)) => ShiftReference::Atom(n - 1),
+        (None, None) => ShiftReference::None,
+    };
+    Ok(CoreOptions {
+        targets,
+        reference,
+        core_basis: CoreBasis::parse(&args.core_basis),
+        localise: !args.canonical_hole,
+        mp2: args.mp2,
+        thorough: !args.quick,
+        harmonics: None,
+    })
+}
+
+pub fn run(args: Args) -> Result<()> {
+    let mol = args.molecule.load()?;
+    let opts = options(&args)?;
+    let bar = if std::io::stderr().is_terminal() {
+        let b = indicatif::ProgressBar::new(0);
+        b.set_style(
+            indicatif::ProgressStyle::with_template("{msg} [{bar:30}] {pos}/{len} holes")
+                .unwrap_or_else(|_| indicatif::ProgressStyle::default_bar()),
+        );
+        b.set_message("core holes");
+        Some(b)
+    } else {
+        None
+    };
+    let tick = |done: usize, total: usize| {
+        if let Some(b) = &bar {
+            b.set_length(total as u64);
+            b.set_position(done as u64);
+        }
+    };
+    let result = predict_with_progress(&mol, &args.basis, &opts, &tick);
+    if let Some(b) = &bar {
+        b.finish_and_clear();
+    }
+    let result = result?;
+    if args.json {
+        let text = serde_json::to_string_pretty(&result)
+            .map_err(|e| Error::computation(format!("JSON output: {e}")))?;
+        println!("{text}");
+    } else {
+        print!("{}", table(&result));
+    }
+    Ok(())
+}
+
+fn opt(v: Option<f64>, width: usize, digits: usize) -> String {
+    match v {
+        Some(x) => format!("{x:>width$.digits$}"),
+        None => format!("{:>width$}", "–"),
+    }
+}
+
+/// Human-readable table of a result.
+pub fn table(r: &CoreResult) -> String {
+    let mut s = String::new();
+    s.push_str(&format!(
+        "Core levels of {} — {} basis, {} ({} functions)\n",
+        if r.molecule.is_empty() { "molecule" } else { &r.molecule },
+        r.basis,
+        r.core_basis,
+        r.n_basis
+    ));
+    s.push_str(&format!(
+        "Neutral Hartree–Fock energy {:.8} Eh\n",
+        r.neutral_energy_hartree
+    ));
+    for rf in &r.references {
+        s.push_str(&format!(
+            "Shift reference: {} 1s of {} (atom {}) at {:.2} eV\n",
+            rf.element, rf.molecule, rf.atom, rf.dscf_ev
+        ));
+    }
+    s.push('\n');
+    let has_mp2 = r.core_levels.iter().any(|l| l.dmp2_ev.is_some());
+    s.push_str("level      Koopmans/eV  ΔSCF/eV");
+    if has_mp2 {
+        s.push_str("  ΔMP2/eV");
+    }
+    s.push_str("  shift/eV   ⟨S²⟩   hole  localised  kept start\n");
+    for l in &r.core_levels {
+        s.push_str(&format!(
+            "{:<10} {:>11.2} {:>8.2}",
+            l.label, l.koopmans_ev, l.dscf_ev
+        ));
+        if has_mp2 {
+            s.push_str(&format!(" {}", opt(l.dmp2_ev, 8, 2)));
+        }
+        s.push_str(&format!(
+            " {}  {:>6.3}  {:>4.2}  {:<9}  {}\n",
+            opt(l.shift_ev, 8, 2),
+            l.s2,
+            l.hole_population,
+            if l.localised { "yes" } else { "no" },
+            l.start
+        ));
+    }
+    let mut notes: Vec<String> = r.notes.clone();
+    for l in &r.core_levels {
+        for n in &l.notes {
+            notes.push(format!("{}: {n}", l.label));
+        }
+        if let (Some(a), Some(b)) = (l.shift_ev, l.shift_dmp2_ev) {
+            notes.push(format!(
+                "{}: shift {a:.2} eV (ΔSCF), {b:.2} eV (ΔMP2)",
+                l.label
+            ));
+        }
+    }
+    notes.push(
+        "hole = Löwdin population of the final vacancy on the atom; predictions guide a \
+         measurement, they do not replace it"
+            .into(),
+    );
+    s.push('\n');
+    for n in notes {
+        s.push_str(&format!("note: {n}\n"));
+    }
+    s
 }

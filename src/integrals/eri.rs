@@ -13,14 +13,16 @@
 
 use crate::basis::normalize::contracted_coefficients;
 use crate::basis::solid_harmonics;
-use crate::basis::BasisSet;
-use crate::integrals::cartesian::{components, n_cartesian};
+use crate::basis::{BasisSet, Shell};
+use crate::integrals::boys::boys_array;
+use crate::integrals::cartesian::{components, n_cartesian, MAX_L};
 use crate::integrals::hermite_coulomb::{hermite_r, r_index, RScratch};
 use crate::integrals::hermite_expansion::e_index;
 use crate::integrals::shell_pair::ShellPair;
 use crate::integrals::transform::{is_identity, transform_axis};
 use rayon::prelude::*;
 use std::cell::RefCell;
+use std::sync::OnceLock;
 
 #[derive(Debug, Clone)]
 struct ShellMeta {
@@ -37,6 +39,8 @@ pub struct EriEngine {
     n_shells: usize,
     shells: Vec<ShellMeta>,
     pairs: Vec<ShellPair>,
+    /// Position in `pairs` of the ordered pair (a, b), index a·n + b (u32::MAX: not kept).
+    pair_index: Vec<u32>,
     schwarz: Vec<f64>,
 }
 
@@ -51,12 +55,116 @@ struct KetTerm {
 struct Scratch {
     cart: Vec<f64>,
     inner: Vec<f64>,
+    inner_t: Vec<f64>,
     ket_terms: Vec<KetTerm>,
     ket_ranges: Vec<(usize, usize)>,
     bra_base: Vec<usize>,
-    herm_index: Vec<usize>,
     rs: RScratch,
     tmp: Vec<f64>,
+}
+
+const TWO_PI_52: f64 = 2.0 * 17.493418327624862; // 2 π^{5/2}
+
+/// (ss|ss) for contracted s shells: Σ_pq 2π^{5/2}/(pq√(p+q)) c_p c_q E_p E_q F_0(α R_PQ²)
+/// (the general formula with L = 0).
+fn ssss(pab: &ShellPair, pcd: &ShellPair) -> f64 {
+    let mut sum = 0.0;
+    let mut f = [0.0; 1];
+    for (kp, pp) in pab.prims.iter().enumerate() {
+        // E^{00}_0 of x carries exp(−μ|AB|²); y and z tables are 1
+        let cp = pp.coef_over_p * pab.tables(kp).0[0];
+        let mut inner = 0.0;
+        for (kq, qq) in pcd.prims.iter().enumerate() {
+            let psum = pp.p + qq.p;
+            let inv_sqrt = 1.0 / psum.sqrt();
+            let alpha = pp.p * qq.p * (inv_sqrt * inv_sqrt);
+            let r2 = (pp.center[0] - qq.center[0]).powi(2)
+                + (pp.center[1] - qq.center[1]).powi(2)
+                + (pp.center[2] - qq.center[2]).powi(2);
+            boys_array(0, alpha * r2, &mut f);
+            inner += qq.coef_over_p * pcd.tables(kq).0[0] * f[0] * inv_sqrt;
+        }
+        sum += cp * inner;
+    }
+    TWO_PI_52 * sum
+}
+
+/// One (component pair, Hermite index) entry of a pair's expansion: the Cartesian pair
+/// index, the positions of E^{ij}_t in the x, y, z tables, (t, u, v) and its index in
+/// [`hermite_list`].
+#[derive(Clone, Copy)]
+struct TermIdx {
+    pair: u32,
+    ix: u16,
+    iy: u16,
+    iz: u16,
+    t: u8,
+    u: u8,
+    v: u8,
+    h: u16,
+}
+
+/// (t, u, v) with t + u + v ≤ l, t outermost.
+fn hermite_list(l: usize) -> &'static [[usize; 3]] {
+    static LISTS: OnceLock<Vec<Vec<[usize; 3]>>> = OnceLock::new();
+    &LISTS.get_or_init(|| {
+        (0..=2 * MAX_L)
+            .map(|l| {
+                let mut v = Vec::new();
+                for t in 0..=l {
+                    for u in 0..=l - t {
+                        for w in 0..=l - t - u {
+                            v.push([t, u, w]);
+                        }
+                    }
+                }
+                v
+            })
+            .collect()
+    })[l]
+}
+
+/// Static expansion structure of a shell pair with angular momenta (la, lb).
+fn term_table(la: usize, lb: usize) -> &'static [TermIdx] {
+    static TABLES: OnceLock<Vec<Vec<TermIdx>>> = OnceLock::new();
+    let t = TABLES.get_or_init(|| {
+        let mut all = Vec::new();
+        for la in 0..=MAX_L {
+            for lb in 0..=MAX_L {
+                let lab = la + lb;
+                let list = hermite_list(lab);
+                let hidx = |t: usize, u: usize, v: usize| {
+                    list.iter().position(|&x| x == [t, u, v]).unwrap()
+                };
+                let ca = components(la);
+                let cb = components(lb);
+                let mut terms = Vec::new();
+                for (ia, a) in ca.iter().enumerate() {
+                    for (ib, b) in cb.iter().enumerate() {
+                        for t in 0..=a[0] + b[0] {
+                            for u in 0..=a[1] + b[1] {
+                                for v in 0..=a[2] + b[2] {
+                                    terms.push(TermIdx {
+                                        pair: (ia * cb.len() + ib) as u32,
+                                        ix: e_index(lb, a[0], b[0], t, lab) as u16,
+                                        iy: e_index(lb, a[1], b[1], u, lab) as u16,
+                                        iz: e_index(lb, a[2], b[2], v, lab) as u16,
+                                        t: t as u8,
+                                        u: u as u8,
+                                        v: v as u8,
+                                        h: hidx(t, u, v) as u16,
+                                    });
+                                }
+                            }
+                        }
+                    }
+                }
+                all.push(terms);
+            }
+        }
+        all
+    });
+    &t[la * (MAX_L + 1) + lb]
 }
 
 thread_local! {
@@ -65,10 +173,21 @@ thread_local! {
 
 impl EriEngine {
     pub fn new(basis: &BasisSet) -> Self {
-        let n = basis.shells.len();
         let coefs: Vec<Vec<f64>> = basis.shells.iter().map(contracted_coefficients).collect();
-        let shells: Vec<ShellMeta> = basis
-            .shells
+        Self::build(&basis.shells, &coefs, &|_, _| true)
+    }
+
+    /// Engine over `shells` with normalised coefficients `coefs` (see
+    /// `crate::basis::normalize`), keeping pair data only for the pairs (a, b) where
+    /// `wanted(a, b)` (called with a ≥ b; the pair (b, a) is kept with it). Quartets may only
+    /// use kept pairs. Schwarz bounds of pairs not kept are zero.
+    pub(crate) fn build(
+        shells_in: &[Shell],
+        coefs: &[Vec<f64>],
+        wanted: &(dyn Fn(usize, usize) -> bool + Sync),
+    ) -> Self {
+        let n = shells_in.len();
+        let shells: Vec<ShellMeta> = shells_in
             .iter()
             .map(|s| {
                 let t = solid_harmonics::transform(s.l, s.pure);
@@ -81,21 +200,35 @@ impl EriEngine {
                 }
             })
             .collect();
-        let pairs: Vec<ShellPair> = (0..n * n)
-            .into_par_iter()
-            .map(|ab| {
-                let (a, b) = (ab / n, ab % n);
-                ShellPair::new(&basis.shells[a], &basis.shells[b], &coefs[a], &coefs[b])
-            })
+        let list: Vec<(usize, usize)> = (0..n)
+            .flat_map(|a| (0..n).map(move |b| (a, b)))
+            .filter(|&(a, b)| wanted(a.max(b), a.min(b)))
             .collect();
+        let pairs: Vec<ShellPair> = list
+            .par_iter()
+            .map(|&(a, b)| ShellPair::new(&shells_in[a], &shells_in[b], &coefs[a], &coefs[b]))
+            .collect();
+        let mut pair_index = vec![u32::MAX; n * n];
+        for (k, &(a, b)) in list.iter().enumerate() {
+            pair_index[a * n + b] = k as u32;
+        }
         let mut eng = EriEngine {
             n_shells: n,
             shells,
             pairs,
+            pair_index,
             schwarz: Vec::new(),
         };
-        let diag: Vec<(usize, usize, f64)> = (0..n)
-            .flat_map(|a| (0..=a).map(move |b| (a, b)))
+        let diag: Vec<(usize, usize, f64)> = list
+            .iter()
+            .filter(|&&(a, b)| {
+                a >= b
+                    && !eng.pairs[eng.pair_index[a * n + b] as usize]
+                        .prims
+                        .iter()
+                        .any(|p| p.p <= 0.0)
+            })
+            .copied()
             .collect::<Vec<_>>()
             .into_par_iter()
             .map(|(a, b)| {
@@ -150,8 +283,8 @@ impl EriEngine {
         s: &mut Scratch,
     ) {
         let n = self.n_shells;
-        let pab = &self.pairs[a * n + b];
-        let pcd = &self.pairs[c * n + d];
+        let pab = &self.pairs[self.pair_index[a * n + b] as usize];
+        let pcd = &self.pairs[self.pair_index[c * n + d] as usize];
         let (sa, sb, sc, sd) = (
             &self.shells[a],
             &self.shells[b],
@@ -159,6 +292,11 @@ impl EriEngine {
             &self.shells[d],
         );
         let (la, lb, lc, ld) = (sa.l, sb.l, sc.l, sd.l);
+        if la + lb + lc + ld == 0 {
+            out.clear();
+            out.push(ssss(pab, pcd));
+            return;
+        }
         let (lab, lcd) = (la + lb, lc + ld);
         let big_l = lab + lcd;
         let dim = big_l + 1;
@@ -167,59 +305,41 @@ impl EriEngine {
         let Scratch {
             cart,
             inner,
+            inner_t,
             ket_terms,
             ket_ranges,
             bra_base,
-            herm_index,
             rs,
             tmp,
         } = s;
 
-        // Hermite functions of the bra: (t,u,v), t+u+v ≤ lab; R offsets and a lookup cube.
-        let hd = lab + 1;
+        // Hermite functions of the bra (t,u,v), t+u+v ≤ lab, in `hermite_list` order:
+        // their offsets in the R cube.
         bra_base.clear();
-        herm_index.clear();
-        herm_index.resize(hd * hd * hd, usize::MAX);
-        for t in 0..=lab {
-            for u in 0..=lab - t {
-                for v in 0..=lab - t - u {
-                    herm_index[(t * hd + u) * hd + v] = bra_base.len();
-                    bra_base.push(r_index(dim, t, u, v));
-                }
-            }
+        for &[t, u, v] in hermite_list(lab) {
+            bra_base.push(r_index(dim, t, u, v));
         }
         let nh = bra_base.len();
 
         // Ket Hermite terms per ket primitive pair, sign (−1)^{τ+ν+φ} folded in.
         ket_terms.clear();
         ket_ranges.clear();
-        let comps_c = components(lc);
-        let comps_d = components(ld);
+        let ket_table = term_table(lc, ld);
         for q in 0..pcd.prims.len() {
             let (ex, ey, ez) = pcd.tables(q);
             let start = ket_terms.len();
-            for (ic, cc) in comps_c.iter().enumerate() {
-                for (id, dd) in comps_d.iter().enumerate() {
-                    let cd = (ic * comps_d.len() + id) as u32;
-                    for tau in 0..=cc[0] + dd[0] {
-                        let vx = ex[e_index(ld, cc[0], dd[0], tau, lcd)];
-                        for nu in 0..=cc[1] + dd[1] {
-                            let vxy = vx * ey[e_index(ld, cc[1], dd[1], nu, lcd)];
-                            for phi in 0..=cc[2] + dd[2] {
-                                let val = vxy * ez[e_index(ld, cc[2], dd[2], phi, lcd)];
-                                if val == 0.0 {
-                                    continue;
-                                }
-                                let sign = if (tau + nu + phi) % 2 == 0 { 1.0 } else { -1.0 };
-                                ket_terms.push(KetTerm {
-                                    cd,
-                                    off: r_index(dim, tau, nu, phi) as u32,
-                                    val: sign * val,
-                                });
-                            }
-                        }
-                    }
+            for tm in ket_table {
+                let val = ex[tm.ix as usize] * ey[tm.iy as usize] * ez[tm.iz as usize];
+                if val == 0.0 {
+                    continue;
                 }
+                let (t, u, v) = (tm.t as usize, tm.u as usize, tm.v as usize);
+                let sign = if (t + u + v) % 2 == 0 { 1.0 } else { -1.0 };
+                ket_terms.push(KetTerm {
+                    cd: tm.pair,
+                    off: r_index(dim, t, u, v) as u32,
+                    val: sign * val,
+                });
             }
             ket_ranges.push((start, ket_terms.len()));
         }
@@ -227,52 +347,57 @@ impl EriEngine {
         cart.clear();
         cart.resize(nab * ncd, 0.0);
         inner.resize(ncd * nh, 0.0);
-        let two_pi_52 = 2.0 * std::f64::consts::PI.powf(2.5);
-        let comps_a = components(la);
-        let comps_b = components(lb);
+        inner_t.resize(ncd * nh, 0.0);
+        let bra_table = term_table(la, lb);
         for (kp, pp) in pab.prims.iter().enumerate() {
             inner.iter_mut().for_each(|x| *x = 0.0);
             for (kq, qq) in pcd.prims.iter().enumerate() {
                 let psum = pp.p + qq.p;
-                let alpha = pp.p * qq.p / psum;
+                let inv_sqrt = 1.0 / psum.sqrt();
+                let alpha = pp.p * qq.p * (inv_sqrt * inv_sqrt);
                 let pq = [
                     pp.center[0] - qq.center[0],
                     pp.center[1] - qq.center[1],
                     pp.center[2] - qq.center[2],
                 ];
-                let pref = two_pi_52 / (pp.p * qq.p * psum.sqrt()) * pp.coef * qq.coef;
+                let pref = TWO_PI_52 * inv_sqrt * pp.coef_over_p * qq.coef_over_p;
                 let r = hermite_r(big_l, alpha, pq, pref, rs);
                 let (t0, t1) = ket_ranges[kq];
+                if nh == 1 {
+                    // bra (ss|: one Hermite function, a plain scatter over the ket terms
+                    for term in &ket_terms[t0..t1] {
+                        inner[term.cd as usize] += term.val * r[term.off as usize];
+                    }
+                    continue;
+                }
                 for term in &ket_terms[t0..t1] {
                     let row = &mut inner[term.cd as usize * nh..(term.cd as usize + 1) * nh];
                     let rr = &r[term.off as usize..];
+                    let val = term.val;
                     for (x, &bb) in row.iter_mut().zip(bra_base.iter()) {
-                        *x += term.val * rr[bb];
+                        *x += val * rr[bb];
                     }
+                }
+            }
+            // transpose to [h][cd] so the bra step runs over contiguous rows
+            for cdi in 0..ncd {
+                for h in 0..nh {
+                    inner_t[h * ncd + cdi] = inner[cdi * nh + h];
                 }
             }
             // apply the bra Hermite coefficients
             let (ex, ey, ez) = pab.tables(kp);
-            for (ia, ca) in comps_a.iter().enumerate() {
-                for (ib, cb) in comps_b.iter().enumerate() {
-                    let ab = ia * comps_b.len() + ib;
-                    let dst = &mut cart[ab * ncd..(ab + 1) * ncd];
-                    for t in 0..=ca[0] + cb[0] {
-                        let vx = ex[e_index(lb, ca[0], cb[0], t, lab)];
-                        for u in 0..=ca[1] + cb[1] {
-                            let vxy = vx * ey[e_index(lb, ca[1], cb[1], u, lab)];
-                            for v in 0..=ca[2] + cb[2] {
-                                let val = vxy * ez[e_index(lb, ca[2], cb[2], v, lab)];
-                                if val == 0.0 {
-                                    continue;
-                                }
-                                let h = herm_index[(t * hd + u) * hd + v];
-                                for (cdi, x) in dst.iter_mut().enumerate() {
-                                    *x += val * inner[cdi * nh + h];
-                                }
-                            }
-                        }
-                    }
+            for tm in bra_table {
+                let val = ex[tm.ix as usize] * ey[tm.iy as usize] * ez[tm.iz as usize];
+                if val == 0.0 {
+                    continue;
+                }
+                let ab = tm.pair as usize;
+                let h = tm.h as usize;
+                let dst = &mut cart[ab * ncd..(ab + 1) * ncd];
+                let src = &inner_t[h * ncd..(h + 1) * ncd];
+                for (x, &y) in dst.iter_mut().zip(src) {
+                    *x += val * y;
                 }
             }
         }

@@ -7,13 +7,18 @@
 //! - `hermite_expansion`, `hermite_coulomb`: McMurchie–Davidson E and R quantities.
 //! - `overlap`, `kinetic`, `nuclear`, `dipole`: one-electron matrices (driver in `one_electron`).
 //! - `shell_pair`, `eri`: the two-electron engine; `schwarz` screening helpers.
+//! - `density_fitting`: (P|Q) and (P|μν) for density fitting.
+//! - `bench`: workloads behind `bandcast bench integrals`.
+pub mod bench;
 pub mod boys;
 pub mod cartesian;
+pub mod density_fitting;
 pub mod dipole;
 pub mod eri;
 pub mod hermite_coulomb;
 pub mod hermite_expansion;
 pub mod kinetic;
+pub mod mo_transform;
 pub mod nuclear;
 pub mod one_electron;
 pub mod overlap;
@@ -21,6 +26,7 @@ pub mod schwarz;
 pub mod shell_pair;
 pub mod transform;
 
+pub use density_fitting::{eri2c, eri3c, eri3c_bytes, DfEngine};
 pub use dipole::dipole;
 pub use eri::{eri_tensor, eri_tensor_with, EriEngine};
 pub use kinetic::kinetic;

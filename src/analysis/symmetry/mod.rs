@@ -1,0 +1,26 @@
+//! Point-group symmetry: detection from the geometry, the standard orientation, character
+//! tables, the action of operations on atomic orbitals, and irrep labels of molecular
+//! orbitals.
+//!
+//! - `ops`: 3×3 operations; `tables`: character tables in the standard frame;
+//! - `detect`: finding the group of a geometry; `orient`: the standard frame;
+//! - `group`: the group placed on a molecule (operations in the input frame);
+//! - `subgroup`: the abelian subgroup used as fallback;
+//! - `angular`: D(R) on the AOs of one shell; `labels`: irrep labels of MOs.
+pub mod angular;
+pub mod detect;
+pub mod group;
+pub mod labels;
+pub mod ops;
+pub mod orient;
+pub mod subgroup;
+pub mod tables;
+
+pub use detect::{detect_point_group, DEFAULT_TOLERANCE};
+pub use group::{PointGroup, SymOp};
+pub use labels::{degenerate_sets, label_orbitals, OrbitalLabel};
+pub use orient::Frame;
+pub use tables::CharacterTable;
+
+/// The name used for the detected group in the shared interface plan.
+pub type PointGroupInfo = PointGroup;

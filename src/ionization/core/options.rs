@@ -1,0 +1,95 @@
+//! What a core-level run is asked to do: which atoms, against which reference, with what
+//! core flexibility, and which extras (ΔMP2).
+
+use crate::basis::Harmonics;
+use crate::chem::Molecule;
+
+/// Which atoms get a 1s hole.
+#[derive(Debug, Clone, PartialEq, Eq, Default)]
+pub enum TargetSelection {
+    /// Every atom heavier than helium (H and He have no core level below their valence).
+    #[default]
+    AllHeavy,
+    /// Every atom of one element (atomic number).
+    Element(u32),
+    /// These atoms (0-based input order).
+    Atoms(Vec<usize>),
+}
+
+/// What a chemical shift is measured against.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub enum ShiftReference {
+    #[default]
+    None,
+    /// A separate molecule: the first atom of each target's element is ionised there.
+    Molecule(Box<Molecule>),
+    /// Another atom (0-based) of the same molecule, same element as the targets.
+    Atom(usize),
+}
+
+/// Extra flexibility given to the hole atoms' basis functions (see `flexibility.rs`).
+#[derive(Debug, Clone, PartialEq, Eq, Default)]
+pub enum CoreBasis {
+    /// The basis as named, nothing added.
+    Plain,
+    /// Every s shell of the hole atoms split into its primitives (the default).
+    #[default]
+    Uncontract,
+    /// Every s and p shell of the hole atoms split into primitives.
+    UncontractSp,
+    /// The hole atoms take their functions from another set (e.g. a core-valence set).
+    Named(String),
+}
+
+impl CoreBasis {
+    /// Parse the `--core-basis` value: plain | uncontract | uncontract-sp | a set name.
+    pub fn parse(text: &str) -> CoreBasis {
+        match text.trim().to_ascii_lowercase().as_str() {
+            "plain" => CoreBasis::Plain,
+            "uncontract" | "uncontracted" => CoreBasis::Uncontract,
+            "uncontract-sp" => CoreBasis::UncontractSp,
+            _ => CoreBasis::Named(text.trim().to_string()),
+        }
+    }
+    /// Short description for reports.
+    pub fn describe(&self) -> String {
+        match self {
+            CoreBasis::Plain => "plain".into(),
+            CoreBasis::Uncontract => "uncontracted s on hole atoms".into(),
+            CoreBasis::UncontractSp => "uncontracted s and p on hole atoms".into(),
+            CoreBasis::Named(n) => format!("{n} on hole atoms"),
+        }
+    }
+}
+
+/// Options of `predict`.
+#[derive(Debug, Clone, PartialEq)]
+pub struct CoreOptions {
+    pub targets: TargetSelection,
+    pub reference: ShiftReference,
+    pub core_basis: CoreBasis,
+    /// Localise the hole on the target atom before the MOM search (true unless a
+    /// delocalised, canonical hole is asked for on purpose).
+    pub localise: bool,
+    /// Second-order (ΔMP2) correction beside ΔSCF.
+    pub mp2: bool,
+    /// Try every start (MOM, IMOM, ROHF) and keep the lowest state that holds the hole; when
+    /// false only the first start that succeeds is used (faster, less safe).
+    pub thorough: bool,
+    /// Harmonics override for the main basis (None: each set's published convention).
+    pub harmonics: Option<Harmonics>,
+}
+
+impl Default for CoreOptions {
+    fn default() -> Self {
+        CoreOptions {
+            targets: TargetSelection::AllHeavy,
+            reference: ShiftReference::None,
+            core_basis: CoreBasis::Uncontract,
+            localise: true,
+            mp2: false,
+            thorough: true,
+            harmonics: None,
+        }
+    }
+}

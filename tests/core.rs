@@ -1,0 +1,232 @@
+//! `bandcast core` against published gas-phase core-electron binding energies.
+//!
+//! Method: ΔSCF (UHF cation, MOM-held localised 1s hole) in cc-pVDZ with the hole atoms'
+//! s shells uncontracted (the command's default). The basis keeps the suite fast (14
+//! functions per first-row atom, +6 for the hole atom) while the uncontracted s shells give
+//! the 1s and the valence the freedom to contract around the hole, which is what moves a
+//! contracted valence basis most (README, "bandcast core", measures plain vs uncontracted).
+//! Hartree–Fock ΔSCF has no relativistic correction and no correlation: absolute values
+//! within about 1 eV is the common-practice expectation (REFERENCE-DATA.md §4).
+
+use std::path::{Path, PathBuf};
+use std::process::Command;
+
+use bandcast::chem::xyz::{parse_xyz, read_xyz, LengthUnit};
+use bandcast::chem::Molecule;
+use bandcast::ionization::core::{predict, CoreOptions, CoreResult, ShiftReference, TargetSelection};
+use bandcast::ionization::Region;
+
+const BASIS: &str = "cc-pVDZ";
+
+fn gw100(name: &str) -> PathBuf {
+    Path::new("/work/shared/data/gw100").join(format!("{name}.xyz"))
+}
+
+fn load(name: &str) -> Molecule {
+    read_xyz(&gw100(name), LengthUnit::Angstrom).expect("benchmark geometry")
+}
+
+/// CO at its experimental bond length r_e = 1.1283 Å (Huber & Herzberg, *Constants of
+/// Diatomic Molecules* (1979), from memory). The GW100 file in /work/shared gives 1.283 Å,
+/// which is not the CO molecule's bond length, so it is not used here.
+fn carbon_monoxide() -> Molecule {
+    let mut m = parse_xyz("2\ncarbon monoxide\nC 0 0 0\nO 0 0 1.1283\n", LengthUnit::Angstrom)
+        .unwrap();
+    m.name = "carbon monoxide".into();
+    m
+}
+
+fn run(mol: &Molecule, targets: TargetSelection) -> CoreResult {
+    let opts = CoreOptions {
+        targets,
+        ..CoreOptions::default()
+    };
+    predict(mol, BASIS, &opts).expect("core-level run")
+}
+
+fn one(mol: &Molecule, z: u32) -> bandcast::ionization::core::CoreLevel {
+    let r = run(mol, TargetSelection::Element(z));
+    r.core_levels[0].clone()
+}
+
+fn check_level(what: &str, dscf: f64, koopmans: f64, s2: f64, published: f64, tol: f64) {
+    eprintln!("{what}: ΔSCF {dscf:.3} eV (published {published}), Koopmans {koopmans:.3}, ⟨S²⟩ {s2:.4}");
+    assert!(
+        (dscf - published).abs() < tol,
+        "{what}: ΔSCF {dscf:.3} eV vs published {published} eV"
+    );
+    // Koopmans 1s energies lie 10–20 eV above experiment: the other electrons relax around
+    // the hole (common practice).
+    let relax = koopmans - published;
+    assert!(
+        (10.0..=22.0).contains(&relax),
+        "{what}: Koopmans {koopmans:.2} eV is {relax:.2} eV above experiment"
+    );
+    assert!((s2 - 0.75).abs() < 0.1, "{what}: ⟨S²⟩ = {s2}");
+}
+
+#[test]
+fn methane_carbon_1s() {
+    let l = one(&load("methane"), 6);
+    // Thomas, J. Chem. Phys. 53 (1970) 1744: CH4 C 1s 290.8 eV (CO 296.2 − 5.4).
+    check_level("CH4 C 1s", l.dscf_ev, l.koopmans_ev, l.s2, 290.8, 1.0);
+    assert!(!l.localised, "a single carbon needs no localisation");
+}
+
+#[test]
+fn water_oxygen_1s() {
+    let l = one(&load("water"), 8);
+    // Wang, Carroll, Thomas, Sæthre & Børve, J. Electron Spectrosc. Relat. Phenom. 251
+    // (2021) 147103: H2O O 1s 539.827 eV (vertical).
+    check_level("H2O O 1s", l.dscf_ev, l.koopmans_ev, l.s2, 539.827, 1.0);
+}
+
+#[test]
+fn neon_1s() {
+    let l = one(&load("neon"), 10);
+    // X-ray Data Booklet (Cardona & Ley 1978 values): Ne 1s 870.2 eV. The relativistic
+    // correction (≈ +0.8 eV for Ne, from memory) is not included, hence the wider tolerance.
+    check_level("Ne 1s", l.dscf_ev, l.koopmans_ev, l.s2, 870.2, 2.0);
+}
+
+#[test]
+fn carbon_dioxide_oxygen_1s_is_localised() {
+    let r = run(&load("carbon-dioxide"), TargetSelection::Element(8));
+    assert_eq!(r.core_levels.len(), 2);
+    for l in &r.core_levels {
+        // Wang et al., J. Electron Spectrosc. Relat. Phenom. 251 (2021) 147103:
+        // CO2 O 1s 541.253 eV (vertical).
+        check_level("CO2 O 1s", l.dscf_ev, l.koopmans_ev, l.s2, 541.253, 1.0);
+        assert!(l.localised, "the two O are equivalent: the hole must be localised");
+        assert!(l.hole_population > 0.9, "hole population {}", l.hole_population);
+    }
+    // The two equivalent atoms give the same number.
+    assert!((r.core_levels[0].dscf_ev - r.core_levels[1].dscf_ev).abs() < 1e-4);
+}
+
+#[test]
+fn nitrogen_localised_hole_lies_below_the_delocalised_one() {
+    let n2 = load("nitrogen");
+    let loc = run(&n2, TargetSelection::Atoms(vec![0]));
+    let l = &loc.core_levels[0];
+    // X-ray Data Booklet (Cardona & Ley 1978 values): N2 N 1s 409.9 eV.
+    check_level("N2 N 1s", l.dscf_ev, l.koopmans_ev, l.s2, 409.9, 1.0);
+    assert!(l.localised);
+    let deloc = predict(
+        &n2,
+        BASIS,
+        &CoreOptions {
+            targets: TargetSelection::Atoms(vec![0]),
+            localise: false,
+            ..CoreOptions::default()
+        },
+    )
+    .expect("canonical-hole run");
+    let d = &deloc.core_levels[0];
+    eprintln!(
+        "N2 N 1s: localised {:.3} eV, delocalised {:.3} eV",
+        l.dscf_ev, d.dscf_ev
+    );
+    // Localised core holes in N2 relax much more than a hole in the symmetric 1σg / 1σu
+    // orbital (Bagus & Schaefer, J. Chem. Phys. 56 (1972) 224, for the analogous O2 case;
+    // common practice): the localised ΔSCF energy is lower by several eV.
+    assert!(l.dscf_ev < d.dscf_ev - 1.0);
+}
+
+#[test]
+fn carbon_monoxide_levels_and_shift_from_methane() {
+    let co = carbon_monoxide();
+    let ch4 = load("methane");
+    let mut opts = CoreOptions {
+        targets: TargetSelection::AllHeavy,
+        reference: ShiftReference::Molecule(Box::new(ch4)),
+        ..CoreOptions::default()
+    };
+    let r = predict(&co, BASIS, &opts).expect("CO run");
+    let c = r.core_levels.iter().find(|l| l.element == "C").unwrap();
+    let o = r.core_levels.iter().find(|l| l.element == "O").unwrap();
+    // Thomas, J. Chem. Phys. 53 (1970) 1744: CO C 1s 296.2 eV.
+    check_level("CO C 1s", c.dscf_ev, c.koopmans_ev, c.s2, 296.2, 1.0);
+    // Wang et al. (2021): CO O 1s 542.495 eV (vertical).
+    check_level("CO O 1s", o.dscf_ev, o.koopmans_ev, o.s2, 542.495, 1.0);
+    // Thomas (1970): the C 1s shift CO − CH4 is 5.4 eV.
+    let shift = c.shift_ev.expect("shift against CH4");
+    eprintln!("CO − CH4 C 1s shift: ΔSCF {shift:.3} eV (published 5.4)");
+    assert!((shift - 5.4).abs() < 0.7, "shift {shift}");
+    assert!(o.shift_ev.is_none(), "CH4 has no oxygen");
+    // Bands for the spectrum module.
+    let bands = r.bands();
+    assert_eq!(bands.len(), 2);
+    assert!(bands.iter().all(|b| b.region == Region::Core));
+    assert!(bands.iter().any(|b| b.label == "C1 1s"));
+
+    // ΔMP2 beside ΔSCF, for the shift only (the command's --mp2).
+    opts.targets = TargetSelection::Element(6);
+    opts.mp2 = true;
+    let r2 = predict(&co, BASIS, &opts).expect("CO ΔMP2 run");
+    let c2 = &r2.core_levels[0];
+    let s_mp2 = c2.shift_dmp2_ev.expect("ΔMP2 shift");
+    eprintln!(
+        "CO − CH4 C 1s shift: ΔSCF {:.3} eV, ΔMP2 {s_mp2:.3} eV (published 5.4); CO C 1s ΔMP2 {:.3} eV",
+        c2.shift_ev.unwrap(),
+        c2.dmp2_ev.unwrap()
+    );
+    assert!((c2.dscf_ev - c.dscf_ev).abs() < 1e-6);
+    assert!((s_mp2 - 5.4).abs() < 1.0, "ΔMP2 shift {s_mp2}");
+    assert!((c2.dmp2_ev.unwrap() - 296.2).abs() < 1.5);
+}
+
+fn bandcast() -> Command {
+    Command::new(env!("CARGO_BIN_EXE_bandcast"))
+}
+
+#[test]
+fn bad_atom_index_is_an_input_error_naming_it() {
+    let out = bandcast()
+        .args(["core"])
+        .arg(gw100("water"))
+        .args(["--basis", "sto-3g", "--atoms", "1,7"])
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(err.contains("atom 7"), "{err}");
+}
+
+#[test]
+fn missing_element_is_an_input_error() {
+    let out = bandcast()
+        .args(["core"])
+        .arg(gw100("water"))
+        .args(["--basis", "sto-3g", "--element", "N"])
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(err.contains("N is not in the molecule"), "{err}");
+}
+
+#[test]
+fn json_has_the_documented_fields() {
+    let out = bandcast()
+        .args(["core"])
+        .arg(gw100("water"))
+        .args(["--basis", BASIS, "--json", "--reference-atom", "1"])
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(0), "{}", String::from_utf8_lossy(&out.stderr));
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    assert_eq!(v["basis"].as_str().unwrap().to_ascii_lowercase(), "cc-pvdz");
+    let l = &v["core_levels"][0];
+    assert_eq!(l["atom"], 1);
+    assert_eq!(l["element"], "O");
+    assert_eq!(l["shell"], "1s");
+    for k in ["koopmans_ev", "dscf_ev", "s2"] {
+        assert!(l[k].is_f64(), "{k}");
+    }
+    assert!(l["dmp2_ev"].is_null());
+    // Shift of an atom against itself is zero.
+    assert!(l["shift_ev"].as_f64().unwrap().abs() < 1e-9);
+    assert!(l["localised"].is_boolean());
+    assert!(l["notes"].is_array());
+}
