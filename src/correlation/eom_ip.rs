@@ -280,7 +280,10 @@ pub fn ionize_report(
             0.0
         }
     });
-    let ints = MoIntegrals::new(factors, &fock, plan.store_ovvv, plan.store_vvvv);
+    let mut ints = MoIntegrals::new(factors, &fock, plan.store_ovvv, plan.store_vvvv);
+    if plan.store_vvvv_packed {
+        ints.vvvv_packed = Some(super::integrals::PackedVvvv::build(&ints.factors));
+    }
     let mut notes = vec![format!(
         "two-electron integrals: Cholesky decomposition, threshold {:.0e} Eh, {n_chol} vectors \
          (no auxiliary-basis density fitting)",
@@ -295,6 +298,8 @@ pub fn ionize_report(
         },
         if plan.store_vvvv {
             "from the stored (vv|vv) block"
+        } else if plan.store_vvvv_packed {
+            "from (vv|vv) stored packed with its 8-fold symmetry"
         } else {
             "contracted directly from the Cholesky factors"
         }
@@ -579,7 +584,11 @@ mod explore {
         .unwrap();
         let basis = crate::basis::load(&bas, &mol, None).unwrap();
         let t = std::time::Instant::now();
-        let wfn = crate::scf::run(&mol, &basis, &crate::scf::ScfOptions::default()).unwrap();
+        let wfn = if std::env::var("CDSCF").is_ok() {
+            crate::correlation::test_rhf::rhf_cholesky(&mol, &basis, 1e-6)
+        } else {
+            crate::scf::run(&mol, &basis, &crate::scf::ScfOptions::default()).unwrap()
+        };
         eprintln!(
             "SCF {} ({:.1}s) HOMO {:.4} eV",
             wfn.energy,

@@ -24,6 +24,9 @@ pub struct MemoryPlan {
     pub store_ovvv: bool,
     /// Whether the (vv|vv) block is stored (small virtual spaces only).
     pub store_vvvv: bool,
+    /// Whether (vv|vv) is stored packed with its 8-fold symmetry (v⁴/8 words) for the CCSD
+    /// ladder; otherwise the ladder is rebuilt from the factors every iteration.
+    pub store_vvvv_packed: bool,
     /// Largest number of Cholesky vectors the budget allows.
     pub max_cholesky_vectors: usize,
     pub budget_bytes: f64,
@@ -120,12 +123,19 @@ pub fn plan(
     if store_vvvv {
         peak += 2.0 * vvvv;
     }
+    let packed = super::integrals::PackedVvvv::words(nvir) * w;
+    let store_vvvv_packed =
+        stage == Stage::EomCcsd && !store_vvvv && peak + packed < 0.85 * budget_bytes;
+    if store_vvvv_packed {
+        peak += packed;
+    }
     let room = (budget_bytes - factors * w - 2.0 * 256.0 * npair * w).max(0.0);
     let max_cholesky_vectors = ((room / (npair * w)) as usize).min(npair as usize).max(1);
     Ok(MemoryPlan {
         peak_bytes: peak,
         store_ovvv,
         store_vvvv,
+        store_vvvv_packed,
         max_cholesky_vectors,
         budget_bytes,
     })
@@ -139,10 +149,12 @@ mod tests {
     /// array) is never planned for storage, and a tiny budget is refused with a hint.
     #[test]
     fn plans_and_refusals() {
-        let p = plan(Stage::EomCcsd, 222, 15, 201, 1e-5, 8, 60, 16e9).unwrap();
-        assert!(!p.store_vvvv);
+        let p = plan(Stage::EomCcsd, 270, 15, 249, 1e-5, 8, 60, 16e9).unwrap();
+        assert!(!p.store_vvvv && p.store_vvvv_packed);
+        let p = plan(Stage::EomCcsd, 270, 15, 249, 1e-5, 8, 60, 8e9).unwrap();
+        assert!(!p.store_vvvv && !p.store_vvvv_packed);
         assert!(p.peak_bytes < 16e9);
-        let e = plan(Stage::EomCcsd, 222, 15, 201, 1e-5, 8, 60, 0.2e9).unwrap_err();
+        let e = plan(Stage::EomCcsd, 270, 15, 249, 1e-5, 8, 60, 0.2e9).unwrap_err();
         assert!(matches!(e, Error::TooLarge(_)));
         assert!(e.to_string().contains("eom-mp2"));
         let small = plan(Stage::EomCcsd, 24, 4, 19, 1e-8, 8, 60, 16e9).unwrap();
