@@ -20,6 +20,8 @@ pub enum Workload {
     Integrals(IntegralsArgs),
     /// SCF wall time, iterations, peak memory and 1→N-thread speed-up (see `bandcast bench scf --help`).
     Scf(super::scf::BenchArgs),
+    /// SCF and EP2 valence IEs of one molecule (args in cli/ionize.rs).
+    Ep2(super::ionize::Ep2BenchArgs),
 }
 
 #[derive(clap::Args, Debug)]
@@ -49,6 +51,7 @@ pub fn run(args: Args) -> Result<()> {
     match args.workload {
         Workload::Integrals(a) => integrals(a),
         Workload::Scf(a) => super::scf::bench(a),
+        Workload::Ep2(a) => super::ionize::ep2_bench(a),
     }
 }
 

@@ -363,6 +363,13 @@ impl EriEngine {
                 let pref = TWO_PI_52 * inv_sqrt * pp.coef_over_p * qq.coef_over_p;
                 let r = hermite_r(big_l, alpha, pq, pref, rs);
                 let (t0, t1) = ket_ranges[kq];
+                if nh == 1 {
+                    // bra (ss|: one Hermite function, a plain scatter over the ket terms
+                    for term in &ket_terms[t0..t1] {
+                        inner[term.cd as usize] += term.val * r[term.off as usize];
+                    }
+                    continue;
+                }
                 for term in &ket_terms[t0..t1] {
                     let row = &mut inner[term.cd as usize * nh..(term.cd as usize + 1) * nh];
                     let rr = &r[term.off as usize..];
