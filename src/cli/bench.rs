@@ -20,6 +20,8 @@ pub enum Workload {
     Integrals(IntegralsArgs),
     /// Carbon 1s levels (ΔSCF) of an all-trans n-alkane built from standard geometry.
     Core(super::core::BenchArgs),
+    /// SCF and EP2 valence IEs of one molecule (args in cli/ionize.rs).
+    Ep2(super::ionize::Ep2BenchArgs),
 }
 
 #[derive(clap::Args, Debug)]
@@ -49,6 +51,7 @@ pub fn run(args: Args) -> Result<()> {
     match args.workload {
         Workload::Integrals(a) => integrals(a),
         Workload::Core(a) => super::core::bench(a),
+        Workload::Ep2(a) => super::ionize::ep2_bench(a),
     }
 }
 

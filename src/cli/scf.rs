@@ -145,9 +145,14 @@ pub fn run(args: Args) -> Result<()> {
             }
         );
     }
+    let t0 = std::time::Instant::now();
     let mut log = |i: &IterationInfo| {
         if show {
-            eprintln!("{}", progress_line(i));
+            eprintln!(
+                "{}  [{:.2} s]",
+                progress_line(i),
+                t0.elapsed().as_secs_f64()
+            );
         }
     };
     let wf = ctx.run(&mol, &opts, &mut log)?;

@@ -16,7 +16,7 @@ use std::sync::OnceLock;
 
 /// Highest order the table serves (4·l_max for l = 5 plus headroom).
 pub const M_MAX: usize = 32;
-const N_TAYLOR: usize = 7;
+const N_TAYLOR: usize = 7; // terms k = 0..6 (the evaluation below is written out for 7)
 const GRID_STEP: f64 = 0.05;
 /// Above this T the large-argument form is used.
 pub const T_SWITCH: f64 = 40.0;
@@ -71,9 +71,12 @@ pub fn series(m: usize, t: f64) -> f64 {
 pub fn boys_array(m_max: usize, t: f64, out: &mut [f64]) {
     debug_assert!(m_max <= M_MAX && out.len() > m_max);
     if t >= T_SWITCH {
-        let ex = (-t).exp();
         let inv2t = 0.5 / t;
         out[0] = 0.5 * (std::f64::consts::PI / t).sqrt();
+        if m_max == 0 {
+            return;
+        }
+        let ex = (-t).exp();
         for m in 0..m_max {
             out[m + 1] = ((2 * m + 1) as f64 * out[m] - ex) * inv2t;
         }
@@ -82,27 +85,49 @@ pub fn boys_array(m_max: usize, t: f64, out: &mut [f64]) {
     let tab = table();
     let g = (t / GRID_STEP + 0.5) as usize;
     let dt = g as f64 * GRID_STEP - t;
-    let row = &tab[g * N_COLS..];
-    // Taylor expansion for F_{m_max}.
-    let mut f = row[m_max + N_TAYLOR - 1];
-    for k in (1..N_TAYLOR).rev() {
-        f = row[m_max + k - 1] + f * dt / k as f64;
-    }
+    let row = &tab[g * N_COLS + m_max..g * N_COLS + m_max + N_TAYLOR];
+    // Taylor terms dt^k / k! evaluated independently (short dependency chains).
+    let d2 = dt * dt;
+    let d3 = d2 * dt;
+    let p = [
+        1.0,
+        dt,
+        d2 * 0.5,
+        d3 * (1.0 / 6.0),
+        d2 * d2 * (1.0 / 24.0),
+        d2 * d3 * (1.0 / 120.0),
+        d3 * d3 * (1.0 / 720.0),
+    ];
+    let f = (row[0] + row[1] * p[1])
+        + (row[2] * p[2] + row[3] * p[3])
+        + ((row[4] * p[4] + row[5] * p[5]) + row[6] * p[6]);
     out[m_max] = f;
     if m_max > 0 {
         // e^{−T} = e^{−T₀} e^{T₀−T}, the second factor by its Taylor series (|T₀−T| ≤ 0.025).
-        let e = 1.0
-            + dt * (1.0
-                + dt * (0.5
-                    + dt * (1.0 / 6.0
-                        + dt * (1.0 / 24.0
-                            + dt * (1.0 / 120.0 + dt * (1.0 / 720.0 + dt / 5040.0))))));
+        let e =
+            (p[0] + p[1]) + (p[2] + p[3]) + (p[4] + p[5] + p[6]) + d3 * d2 * d2 * (1.0 / 5040.0);
         let ex = exp_table()[g] * e;
         let t2 = 2.0 * t;
+        let inv = inv_odd();
         for m in (0..m_max).rev() {
-            out[m] = (t2 * out[m + 1] + ex) / (2 * m + 1) as f64;
+            out[m] = (t2 * out[m + 1] + ex) * inv[m];
         }
     }
+}
+
+/// 1/(2m+1) for m = 0..M_MAX.
+#[inline(always)]
+fn inv_odd() -> &'static [f64; M_MAX + 1] {
+    const INV: [f64; M_MAX + 1] = {
+        let mut a = [0.0; M_MAX + 1];
+        let mut m = 0;
+        while m <= M_MAX {
+            a[m] = 1.0 / (2 * m + 1) as f64;
+            m += 1;
+        }
+        a
+    };
+    &INV
 }
 
 /// A single F_m(T).

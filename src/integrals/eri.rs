@@ -72,18 +72,19 @@ fn ssss(pab: &ShellPair, pcd: &ShellPair) -> f64 {
     let mut f = [0.0; 1];
     for (kp, pp) in pab.prims.iter().enumerate() {
         // E^{00}_0 of x carries exp(−μ|AB|²); y and z tables are 1
-        let cp = pp.coef * pab.tables(kp).0[0];
+        let cp = pp.coef_over_p * pab.tables(kp).0[0];
         let mut inner = 0.0;
         for (kq, qq) in pcd.prims.iter().enumerate() {
             let psum = pp.p + qq.p;
-            let alpha = pp.p * qq.p / psum;
+            let inv_sqrt = 1.0 / psum.sqrt();
+            let alpha = pp.p * qq.p * (inv_sqrt * inv_sqrt);
             let r2 = (pp.center[0] - qq.center[0]).powi(2)
                 + (pp.center[1] - qq.center[1]).powi(2)
                 + (pp.center[2] - qq.center[2]).powi(2);
             boys_array(0, alpha * r2, &mut f);
-            inner += qq.coef * pcd.tables(kq).0[0] * f[0] / (qq.p * psum.sqrt());
+            inner += qq.coef_over_p * pcd.tables(kq).0[0] * f[0] * inv_sqrt;
         }
-        sum += cp * inner / pp.p;
+        sum += cp * inner;
     }
     TWO_PI_52 * sum
 }
@@ -352,15 +353,23 @@ impl EriEngine {
             inner.iter_mut().for_each(|x| *x = 0.0);
             for (kq, qq) in pcd.prims.iter().enumerate() {
                 let psum = pp.p + qq.p;
-                let alpha = pp.p * qq.p / psum;
+                let inv_sqrt = 1.0 / psum.sqrt();
+                let alpha = pp.p * qq.p * (inv_sqrt * inv_sqrt);
                 let pq = [
                     pp.center[0] - qq.center[0],
                     pp.center[1] - qq.center[1],
                     pp.center[2] - qq.center[2],
                 ];
-                let pref = TWO_PI_52 / (pp.p * qq.p * psum.sqrt()) * pp.coef * qq.coef;
+                let pref = TWO_PI_52 * inv_sqrt * pp.coef_over_p * qq.coef_over_p;
                 let r = hermite_r(big_l, alpha, pq, pref, rs);
                 let (t0, t1) = ket_ranges[kq];
+                if nh == 1 {
+                    // bra (ss|: one Hermite function, a plain scatter over the ket terms
+                    for term in &ket_terms[t0..t1] {
+                        inner[term.cd as usize] += term.val * r[term.off as usize];
+                    }
+                    continue;
+                }
                 for term in &ket_terms[t0..t1] {
                     let row = &mut inner[term.cd as usize * nh..(term.cd as usize + 1) * nh];
                     let rr = &r[term.off as usize..];

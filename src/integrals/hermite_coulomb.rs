@@ -125,6 +125,15 @@ pub fn hermite_r<'s>(
         s.buf[0] = prefactor * s.boys[0];
         return &s.buf[..1];
     }
+    if l == 1 {
+        // R_000 = F_0, R_100 = X·(−2a F_1), etc. (cube side 2: index 4t + 2u + v)
+        let f1 = -2.0 * a * prefactor * s.boys[1];
+        s.buf[0] = prefactor * s.boys[0];
+        s.buf[1] = pc[2] * f1;
+        s.buf[2] = pc[1] * f1;
+        s.buf[4] = pc[0] * f1;
+        return &s.buf[..8];
+    }
     let plan = &s.plans[l];
     let buf = &mut s.buf[..];
     // zero slots of both buffers

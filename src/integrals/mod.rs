@@ -18,6 +18,7 @@ pub mod eri;
 pub mod hermite_coulomb;
 pub mod hermite_expansion;
 pub mod kinetic;
+pub mod mo_transform;
 pub mod nuclear;
 pub mod one_electron;
 pub mod overlap;

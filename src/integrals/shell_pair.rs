@@ -16,6 +16,8 @@ pub struct PrimitivePair {
     pub center: [f64; 3],
     /// Product of the two normalised contraction coefficients.
     pub coef: f64,
+    /// coef / p (used in the two-electron prefactor 2π^{5/2}/(pq√(p+q))).
+    pub coef_over_p: f64,
 }
 
 #[derive(Debug, Clone)]
@@ -63,7 +65,12 @@ impl ShellPair {
                         &mut e[base + d * el..base + (d + 1) * el],
                     );
                 }
-                prims.push(PrimitivePair { p, center, coef });
+                prims.push(PrimitivePair {
+                    p,
+                    center,
+                    coef,
+                    coef_over_p: coef / p,
+                });
             }
         }
         ShellPair {

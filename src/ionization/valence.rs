@@ -1,0 +1,332 @@
+//! Valence photoelectron bands of a molecule: SCF reference, occupied orbitals grouped into
+//! bands, one ionization method for their energies, labels and make-up from the orbital
+//! analysis, and flags where the band order is in doubt.
+//!
+//! This is the entry point other modules (spectrum, assignment, the CLI) call:
+//! [`predict`] (runs the SCF) or [`predict_with`] (reuses a converged reference).
+
+use bandcast_linalg::Mat;
+
+use crate::basis::BasisSet;
+use crate::chem::Molecule;
+use crate::error::{Error, Result};
+use crate::integrals::EriEngine;
+use crate::ionization::annotate::Annotator;
+use crate::ionization::band::Band;
+use crate::ionization::bands::{
+    group_degenerate, make_band, BandEnergy, OrbitalSet, DEGENERACY_TOL,
+};
+use crate::ionization::dscf::dscf;
+use crate::ionization::ep2::{ep2, Ep2Options};
+use crate::ionization::frozen_core::core_orbitals;
+use crate::ionization::koopmans::{koopmans, Spin};
+use crate::ionization::method::Method;
+use crate::ionization::uncertainty::{disagreements, merge, within_error, UncertainPair};
+use crate::scf::{Reference, ScfOptions, Wavefunction};
+use crate::units::ev;
+
+/// Pole strengths below this get a warning: the one-hole picture is failing (inner valence).
+pub const LOW_POLE_STRENGTH: f64 = 0.85;
+
+/// Bands with Koopmans IEs up to this much above the window are computed as candidates,
+/// because correlated methods usually lower Koopmans' IEs (by 2.5 eV for F2, by 3.5 eV for
+/// some σ bands in a minimal basis).
+const WINDOW_MARGIN_EV: f64 = 5.0;
+
+/// Extra bands computed beyond `count` so that a band that overtakes one in the Koopmans
+/// order (N2's 3σg) is not lost.
+const COUNT_MARGIN: usize = 2;
+
+#[derive(Debug, Clone)]
+pub struct ValenceOptions {
+    pub method: Method,
+    /// Keep the `count` lowest-IE bands.
+    pub count: Option<usize>,
+    /// Keep bands with IE up to this value (eV), e.g. 21.2 for a He I lamp.
+    pub window_ev: Option<f64>,
+    /// Leave core orbitals out of the EP2 sums (common practice; they are never listed as
+    /// valence bands anyway).
+    pub frozen_core: bool,
+    /// Also order the bands by Koopmans and flag pairs the two methods order differently.
+    pub compare_with_koopmans: bool,
+    /// Orbital energies closer than this (hartree) form one band.
+    pub degeneracy_tol: f64,
+    /// Memory for MO integrals (bytes).
+    pub memory_bytes: usize,
+    /// SCF settings for the neutral (and, for ΔSCF, the base settings for the cations).
+    pub scf: ScfOptions,
+}
+
+impl Default for ValenceOptions {
+    fn default() -> Self {
+        ValenceOptions {
+            method: Method::Ep2,
+            count: None,
+            window_ev: None,
+            frozen_core: true,
+            compare_with_koopmans: true,
+            degeneracy_tol: DEGENERACY_TOL,
+            memory_bytes: 4_000_000_000,
+            scf: ScfOptions::default(),
+        }
+    }
+}
+
+/// The default method for a molecule: EP2 for closed shells, ΔSCF for open shells (EP2 is
+/// closed-shell only here).
+pub fn default_method(mol: &Molecule) -> Method {
+    if mol.multiplicity == 1 {
+        Method::Ep2
+    } else {
+        Method::Dscf
+    }
+}
+
+#[derive(Debug, Clone)]
+pub struct ValenceResult {
+    pub method: Method,
+    /// Basis-set name.
+    pub basis: String,
+    /// Schoenflies symbol of the point group used for labels, when known.
+    pub point_group: Option<String>,
+    /// Bands ordered by `ie_ev` ascending.
+    pub bands: Vec<Band>,
+    /// Koopmans IE (eV) of each band, same order as `bands`.
+    pub koopmans_ev: Vec<f64>,
+    pub warnings: Vec<String>,
+    pub uncertain_pairs: Vec<UncertainPair>,
+    /// Total SCF energy of the neutral (hartree).
+    pub reference_energy: f64,
+    pub reference: Reference,
+}
+
+/// Run the SCF of the neutral and predict its valence bands.
+pub fn predict(mol: &Molecule, basis: &BasisSet, opts: &ValenceOptions) -> Result<ValenceResult> {
+    let mut scf = opts.scf.clone();
+    scf.reference = if mol.multiplicity == 1 {
+        Reference::Rhf
+    } else {
+        Reference::Uhf
+    };
+    let wf = crate::scf::run(mol, basis, &scf)?;
+    predict_with(mol, basis, &wf, opts)
+}
+
+/// Predict valence bands from a converged SCF wavefunction of `mol`.
+pub fn predict_with(
+    mol: &Molecule,
+    basis: &BasisSet,
+    wf: &Wavefunction,
+    opts: &ValenceOptions,
+) -> Result<ValenceResult> {
+    if let Some(0) = opts.count {
+        return Err(Error::input("--count must be at least 1"));
+    }
+    if let Some(w) = opts.window_ev {
+        if !(w > 0.0) {
+            return Err(Error::input("--window must be a positive energy in eV"));
+        }
+    }
+    let mut warnings = Vec::new();
+    if !wf.converged {
+        return Err(Error::computation(
+            "the SCF reference is not converged; no ionization energies from it",
+        ));
+    }
+    if wf.reference != Reference::Rhf && wf.s2 > 0.0 {
+        let s = (mol.multiplicity as f64 - 1.0) / 2.0;
+        let exact = s * (s + 1.0);
+        if wf.s2 - exact > 0.1 {
+            warnings.push(format!(
+                "the UHF reference is spin-contaminated (<S²> = {:.3}, exact {:.3}): IEs are less \
+                 reliable",
+                wf.s2, exact
+            ));
+        }
+    }
+
+    // Valence orbitals: all occupied minus the core of each spin.
+    let n_core = core_orbitals(mol);
+    let occupied = koopmans(wf);
+    let core_of = |spin: Spin| -> Vec<usize> {
+        let mut idx: Vec<(f64, usize)> = occupied
+            .iter()
+            .filter(|o| o.spin == spin)
+            .map(|o| (o.epsilon, o.index))
+            .collect();
+        idx.sort_by(|a, b| a.0.total_cmp(&b.0));
+        idx.into_iter().take(n_core).map(|(_, i)| i).collect()
+    };
+    let core: Vec<(Spin, usize)> = [Spin::Restricted, Spin::Alpha, Spin::Beta]
+        .into_iter()
+        .flat_map(|s| core_of(s).into_iter().map(move |i| (s, i)))
+        .collect();
+    let valence: Vec<_> = occupied
+        .iter()
+        .filter(|o| !core.contains(&(o.spin, o.index)))
+        .cloned()
+        .collect();
+    if valence.is_empty() {
+        return Err(Error::input(
+            "the molecule has no valence electrons to ionize (core levels: `bandcast core`)",
+        ));
+    }
+
+    let s: Mat<f64> = crate::integrals::overlap(basis);
+    let notes = Annotator::new(mol, basis, wf, &s, &mut warnings);
+    let sets = group_degenerate(
+        &valence,
+        |spin, i| notes.set_key(spin, i),
+        opts.degeneracy_tol,
+    );
+
+    // Candidate sets by Koopmans order.
+    let mut candidates: Vec<OrbitalSet> = sets;
+    if let Some(w) = opts.window_ev {
+        candidates.retain(|s| ev(s.koopmans_ie()) <= w + WINDOW_MARGIN_EV);
+        if opts.method == Method::Koopmans {
+            candidates.retain(|s| ev(s.koopmans_ie()) <= w);
+        }
+    }
+    if let Some(c) = opts.count {
+        let extra = if opts.method == Method::Koopmans {
+            0
+        } else {
+            COUNT_MARGIN
+        };
+        candidates.truncate(c + extra);
+    }
+
+    let energies = method_energies(mol, basis, wf, &s, &candidates, opts, n_core, &mut warnings)?;
+
+    let mut rows: Vec<(Band, f64)> = candidates
+        .iter()
+        .zip(&energies)
+        .map(|(set, e)| {
+            let n = notes.notes(set);
+            (
+                make_band(set, *e, &n, opts.method.name()),
+                ev(set.koopmans_ie()),
+            )
+        })
+        .collect();
+    rows.sort_by(|a, b| a.0.ie_ev.total_cmp(&b.0.ie_ev));
+    if let Some(w) = opts.window_ev {
+        rows.retain(|r| r.0.ie_ev <= w);
+    }
+    if let Some(c) = opts.count {
+        rows.truncate(c);
+    }
+    let (bands, koopmans_ev): (Vec<Band>, Vec<f64>) = rows.into_iter().unzip();
+
+    for b in &bands {
+        if let Some(p) = b.pole_strength {
+            if p < LOW_POLE_STRENGTH {
+                warnings.push(format!(
+                    "{}: pole strength {p:.2} — the one-hole picture is breaking down here \
+                     (satellites share the intensity; expect a larger error)",
+                    b.label
+                ));
+            }
+        }
+    }
+
+    let close = within_error(&bands, opts.method);
+    let disagree = if opts.compare_with_koopmans && opts.method != Method::Koopmans {
+        disagreements(&bands, opts.method, &koopmans_ev, Method::Koopmans)
+    } else {
+        Vec::new()
+    };
+    let uncertain_pairs = merge(disagree, close);
+
+    Ok(ValenceResult {
+        method: opts.method,
+        basis: basis.name.clone(),
+        point_group: notes.point_group(),
+        bands,
+        koopmans_ev,
+        warnings,
+        uncertain_pairs,
+        reference_energy: wf.energy,
+        reference: wf.reference,
+    })
+}
+
+/// The chosen method's energy for each orbital set (one representative per degenerate set).
+fn method_energies(
+    mol: &Molecule,
+    basis: &BasisSet,
+    wf: &Wavefunction,
+    s: &Mat<f64>,
+    sets: &[OrbitalSet],
+    opts: &ValenceOptions,
+    n_core: usize,
+    warnings: &mut Vec<String>,
+) -> Result<Vec<BandEnergy>> {
+    match opts.method {
+        Method::Koopmans => Ok(sets
+            .iter()
+            .map(|s| BandEnergy {
+                ie: s.koopmans_ie(),
+                ..Default::default()
+            })
+            .collect()),
+        Method::Ep2 => {
+            let engine = EriEngine::new(basis);
+            let targets: Vec<usize> = sets.iter().map(|s| s.representative()).collect();
+            let ep = Ep2Options {
+                frozen_core: if opts.frozen_core { n_core } else { 0 },
+                memory_bytes: opts.memory_bytes,
+                ..Default::default()
+            };
+            let poles = ep2(&engine, basis, wf, &targets, &ep)?;
+            Ok(poles
+                .iter()
+                .map(|p| BandEnergy {
+                    ie: p.ie,
+                    pole_strength: Some(p.pole_strength),
+                    one_hole_weight: None,
+                })
+                .collect())
+        }
+        Method::Dscf => {
+            let holes: Vec<(Spin, usize)> =
+                sets.iter().map(|s| (s.spin, s.representative())).collect();
+            let res = dscf(mol, basis, wf, s, &holes, &opts.scf)?;
+            for (set, h) in sets.iter().zip(&res) {
+                if h.hole_moved {
+                    warnings.push(format!(
+                        "ΔSCF for MO {}: the hole moved to another orbital (only {:.0} % of the \
+                         target orbital is empty in the cation); that band's IE belongs to a \
+                         different cation state",
+                        set.representative() + 1,
+                        100.0 * h.hole_overlap
+                    ));
+                }
+                if h.ie <= 0.0 {
+                    warnings.push(format!(
+                        "ΔSCF for MO {}: the cation lies below the neutral ({:.2} eV)",
+                        set.representative() + 1,
+                        ev(h.ie)
+                    ));
+                }
+            }
+            Ok(res
+                .iter()
+                .map(|h| BandEnergy {
+                    ie: h.ie,
+                    ..Default::default()
+                })
+                .collect())
+        }
+        // Plug-in points for the correlation module (bandcast::correlation::eom_ip).
+        Method::EomCcsd => Err(not_available(Method::EomCcsd)),
+        Method::EomMp2 => Err(not_available(Method::EomMp2)),
+    }
+}
+
+fn not_available(m: Method) -> Error {
+    Error::input(format!(
+        "the method '{m}' is not available yet in this build; use ep2, dscf or koopmans"
+    ))
+}
