@@ -340,7 +340,15 @@ pub fn spectrum_plot(b: &Built, axis: Axis, flip: bool, title: String, subtitle:
             },
             // the peak height of this band alone, so a stick meets its own envelope
             height: s.intensity * profile(b.shape, 0.0, s.gaussian_fwhm_ev, s.lorentzian_fwhm_ev),
-            label: s.label.clone(),
+            // in a mixture the colour tells the molecule (legend); the label keeps the band
+            label: if multi {
+                s.label
+                    .split_once(": ")
+                    .map(|x| x.1.to_string())
+                    .unwrap_or_else(|| s.label.clone())
+            } else {
+                s.label.clone()
+            },
             color: if multi {
                 PALETTE[(s.component + 1) % PALETTE.len()].into()
             } else {
