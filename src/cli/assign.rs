@@ -19,7 +19,8 @@ use bandcast::{Error, Result};
 
 use super::common::MoleculeArgs;
 use super::spectrum::{
-    check_fwhm, parse_axis, parse_element_arg, parse_photon, parse_region, predict_bands,
+    check_fwhm, check_output_dir, parse_axis, parse_element_arg, parse_photon, parse_region,
+    predict_bands,
 };
 
 #[derive(clap::Args, Debug)]
@@ -94,6 +95,7 @@ fn positive(name: &str, v: Option<f64>) -> Result<Option<f64>> {
 
 pub fn run(args: Args) -> Result<()> {
     let fwhm_arg = check_fwhm(args.fwhm)?;
+    check_output_dir(args.html.as_deref())?;
     let prominence = positive("--prominence", args.prominence)?;
     if prominence.is_some_and(|p| p >= 1.0) {
         return Err(Error::input(

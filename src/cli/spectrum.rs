@@ -127,6 +127,24 @@ pub fn check_fwhm(v: Option<f64>) -> Result<Option<f64>> {
     }
 }
 
+/// Refuse an output path whose folder does not exist before any computation starts.
+pub fn check_output_dir(path: Option<&Path>) -> Result<()> {
+    if let Some(p) = path {
+        let dir = p
+            .parent()
+            .filter(|d| !d.as_os_str().is_empty())
+            .unwrap_or(Path::new("."));
+        if !dir.is_dir() {
+            return Err(Error::input_at(
+                p,
+                None,
+                "the folder for this output file does not exist",
+            ));
+        }
+    }
+    Ok(())
+}
+
 /// Predicted bands of one molecule for a region, and the name of the method used.
 ///
 /// Valence: `ionization::valence::predict` with `--method` (default: the module's default
@@ -322,7 +340,15 @@ pub fn spectrum_plot(b: &Built, axis: Axis, flip: bool, title: String, subtitle:
             },
             // the peak height of this band alone, so a stick meets its own envelope
             height: s.intensity * profile(b.shape, 0.0, s.gaussian_fwhm_ev, s.lorentzian_fwhm_ev),
-            label: s.label.clone(),
+            // in a mixture the colour tells the molecule (legend); the label keeps the band
+            label: if multi {
+                s.label
+                    .split_once(": ")
+                    .map(|x| x.1.to_string())
+                    .unwrap_or_else(|| s.label.clone())
+            } else {
+                s.label.clone()
+            },
             color: if multi {
                 PALETTE[(s.component + 1) % PALETTE.len()].into()
             } else {
@@ -357,6 +383,8 @@ fn region_name(r: Region) -> &'static str {
 
 pub fn run(args: Args) -> Result<()> {
     let fwhm = check_fwhm(args.fwhm)?;
+    check_output_dir(args.svg.as_deref())?;
+    check_output_dir(args.csv.as_deref())?;
     let inputs = parse_inputs(&args.files)?;
     let mut per_input = Vec::new();
     let mut method_used = String::new();

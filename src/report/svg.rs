@@ -138,7 +138,6 @@ impl Plot {
         if !(ymax > 0.0) {
             ymax = 1.0;
         }
-        let ytop = ymax * 1.3; // room for labels
         let px = |x: f64| -> f64 {
             let t = (x - x0) / (x1 - x0);
             if self.increase_left {
@@ -147,6 +146,51 @@ impl Plot {
                 ml + pw * t
             }
         };
+        // Sticks in drawing order; labels of same-coloured sticks closer than 13 px are
+        // merged ("a, b"), labels of different colours are staggered sideways.
+        let mut vis: Vec<&StickMark> = self
+            .sticks
+            .iter()
+            .filter(|s| s.x >= x0 && s.x <= x1)
+            .collect();
+        vis.sort_by(|a, b| px(a.x).total_cmp(&px(b.x)));
+        // (label x px, highest stick, labels, colour)
+        let mut groups: Vec<(f64, f64, Vec<String>, String)> = Vec::new();
+        for s in &vis {
+            let x = px(s.x);
+            if let Some(g) = groups
+                .iter_mut()
+                .rev()
+                .take(4)
+                .find(|g| g.3 == s.color && (x - g.0).abs() < 13.0)
+            {
+                if !g.2.contains(&s.label) {
+                    g.2.push(s.label.clone());
+                }
+                g.1 = g.1.max(s.height);
+                continue;
+            }
+            groups.push((x, s.height, vec![s.label.clone()], s.color.clone()));
+        }
+        groups.retain(|g| g.2.iter().any(|l| !l.is_empty()));
+        groups.sort_by(|a, b| a.0.total_cmp(&b.0));
+        let mut label_x: Vec<f64> = Vec::with_capacity(groups.len());
+        for g in &groups {
+            let want = g.0 + 3.5;
+            let x = match label_x.last() {
+                Some(&prev) if want - prev < 12.0 => prev + 12.0,
+                _ => want,
+            };
+            label_x.push(x);
+        }
+        // Room above the curves for the rotated labels (≈ 6 px per character at 10.5 px).
+        let longest = groups
+            .iter()
+            .map(|g| g.2.join(", ").chars().count())
+            .max()
+            .unwrap_or(0) as f64;
+        let room = ((6.0 * longest + 14.0) / ph).clamp(0.12, 0.6);
+        let ytop = ymax / (1.0 - room);
         let py = |y: f64| -> f64 { mt + ph * (1.0 - y / ytop) };
         let mut o = String::new();
         let _ = writeln!(
@@ -289,13 +333,6 @@ impl Plot {
                 s.color, s.stroke_width
             );
         }
-        // sticks, then labels merged where they would collide
-        let mut vis: Vec<&StickMark> = self
-            .sticks
-            .iter()
-            .filter(|s| s.x >= x0 && s.x <= x1)
-            .collect();
-        vis.sort_by(|a, b| px(a.x).total_cmp(&px(b.x)));
         for s in &vis {
             let x = px(s.x);
             let _ = writeln!(
@@ -306,31 +343,22 @@ impl Plot {
                 s.color
             );
         }
-        let mut groups: Vec<(f64, f64, Vec<String>)> = Vec::new(); // (x px, top px, labels)
-        for s in &vis {
-            let x = px(s.x);
-            let top = py(s.height);
-            match groups.last_mut() {
-                Some(g) if x - g.0 < 13.0 => {
-                    if !g.2.contains(&s.label) {
-                        g.2.push(s.label.clone());
+        for (g, &lx) in groups.iter().zip(&label_x) {
+            let text = g.2.join(", ");
+            // start the label above the sticks and every curve near this position
+            let mut top = py(g.1);
+            for s in &self.series {
+                for (&sx, &sy) in s.x.iter().zip(&s.y) {
+                    if sx >= x0 && sx <= x1 && (px(sx) - lx).abs() < 6.0 {
+                        top = top.min(py(sy.max(0.0)));
                     }
-                    g.1 = g.1.min(top);
                 }
-                _ => groups.push((x, top, vec![s.label.clone()])),
             }
-        }
-        for (x, top, labels) in groups {
-            if labels.iter().all(|l| l.is_empty()) {
-                continue;
-            }
-            let text = labels.join(", ");
             let y = (top - 5.0).max(mt + 4.0);
+            let fill = if g.3.starts_with('#') && g.3 != "#444" { g.3.as_str() } else { "#222" };
             let _ = writeln!(
                 o,
-                r##"<text x="{:.2}" y="{y:.2}" font-size="10.5" fill="#222" transform="rotate(-90 {:.2} {y:.2})">{}</text>"##,
-                x + 3.5,
-                x + 3.5,
+                r##"<text x="{lx:.2}" y="{y:.2}" font-size="10.5" fill="{fill}" transform="rotate(-90 {lx:.2} {y:.2})">{}</text>"##,
                 escape(&text)
             );
         }
