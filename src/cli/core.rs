@@ -40,7 +40,11 @@ pub struct Args {
     /// Core flexibility on the hole atoms: plain, uncontract (split the s shells into
     /// primitives; default), uncontract-sp, or the name of a set whose functions replace the
     /// hole atoms' (e.g. a core-valence set).
-    #[arg(long, value_name = "plain|uncontract|NAME", default_value = "uncontract")]
+    #[arg(
+        long,
+        value_name = "plain|uncontract|NAME",
+        default_value = "uncontract"
+    )]
     pub core_basis: String,
     /// Keep the canonical (delocalised) 1s as the hole instead of localising it.
     #[arg(long)]
@@ -141,7 +145,11 @@ pub fn table(r: &CoreResult) -> String {
     let mut s = String::new();
     s.push_str(&format!(
         "Core levels of {} — {} basis, {} ({} functions)\n",
-        if r.molecule.is_empty() { "molecule" } else { &r.molecule },
+        if r.molecule.is_empty() {
+            "molecule"
+        } else {
+            &r.molecule
+        },
         r.basis,
         r.core_basis,
         r.n_basis

@@ -148,7 +148,11 @@ pub fn run(args: Args) -> Result<()> {
     let t0 = std::time::Instant::now();
     let mut log = |i: &IterationInfo| {
         if show {
-            eprintln!("{}  [{:.2} s]", progress_line(i), t0.elapsed().as_secs_f64());
+            eprintln!(
+                "{}  [{:.2} s]",
+                progress_line(i),
+                t0.elapsed().as_secs_f64()
+            );
         }
     };
     let wf = ctx.run(&mol, &opts, &mut log)?;

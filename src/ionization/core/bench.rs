@@ -45,7 +45,12 @@ pub fn alkane(n: usize) -> Molecule {
         let hh = (TETRAHEDRAL_DEG / 2.0).to_radians();
         if n == 1 {
             // Methane: regular tetrahedron.
-            for d in [[1.0, 1.0, 1.0], [1.0, -1.0, -1.0], [-1.0, 1.0, -1.0], [-1.0, -1.0, 1.0]] {
+            for d in [
+                [1.0, 1.0, 1.0],
+                [1.0, -1.0, -1.0],
+                [-1.0, 1.0, -1.0],
+                [-1.0, -1.0, 1.0],
+            ] {
                 h(c[0], d);
             }
             break;
@@ -53,7 +58,10 @@ pub fn alkane(n: usize) -> Molecule {
         h(c[k], [0.0, up * hh.cos(), hh.sin()]);
         h(c[k], [0.0, up * hh.cos(), -hh.sin()]);
         if k == 0 {
-            h(c[k], [-dx, if n > 1 { c[1][1] - c[0][1] } else { 0.0 }, 0.0]);
+            h(
+                c[k],
+                [-dx, if n > 1 { c[1][1] - c[0][1] } else { 0.0 }, 0.0],
+            );
         }
         if k == n - 1 && n > 1 {
             h(c[k], [dx, c[k - 1][1] - c[k][1], 0.0]);

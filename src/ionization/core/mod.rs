@@ -38,6 +38,6 @@ pub mod result;
 pub mod targets;
 
 pub use hole_check::HoleStatus;
-pub use predict::{predict, predict_with_progress};
 pub use options::{CoreBasis, CoreOptions, ShiftReference, TargetSelection};
+pub use predict::{predict, predict_with_progress};
 pub use result::{CoreLevel, CoreResult, HoleAttempt, ShiftReferenceLevel};

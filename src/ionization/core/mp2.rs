@@ -124,13 +124,7 @@ pub fn same_spin(g: &[f64], eo: &[f64], ev: &[f64]) -> Result<f64> {
 }
 
 /// Opposite-spin UMP2 part, g = (iα aα | jβ bβ).
-pub fn opposite_spin(
-    g: &[f64],
-    eoa: &[f64],
-    eva: &[f64],
-    eob: &[f64],
-    evb: &[f64],
-) -> Result<f64> {
+pub fn opposite_spin(g: &[f64], eoa: &[f64], eva: &[f64], eob: &[f64], evb: &[f64]) -> Result<f64> {
     let (noa, nva, nob, nvb) = (eoa.len(), eva.len(), eob.len(), evb.len());
     let mut e = 0.0;
     for i in 0..noa {
@@ -173,7 +167,8 @@ mod tests {
             }
         }
         let r = closed_shell(&g, &eo, &ev).unwrap();
-        let u = 2.0 * same_spin(&g, &eo, &ev).unwrap() + opposite_spin(&g, &eo, &ev, &eo, &ev).unwrap();
+        let u =
+            2.0 * same_spin(&g, &eo, &ev).unwrap() + opposite_spin(&g, &eo, &ev, &eo, &ev).unwrap();
         assert!((r - u).abs() < 1e-14, "{r} {u}");
         assert!(r < 0.0);
     }

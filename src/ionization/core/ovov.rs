@@ -145,7 +145,12 @@ mod tests {
         };
         let basis = BasisSet::from_shells(
             "t",
-            vec![sh(0, 3.0, 0.0, 0), sh(1, 1.2, 0.0, 0), sh(0, 1.5, 1.4, 1), sh(2, 0.9, 1.4, 1)],
+            vec![
+                sh(0, 3.0, 0.0, 0),
+                sh(1, 1.2, 0.0, 0),
+                sh(0, 1.5, 1.4, 1),
+                sh(2, 0.9, 1.4, 1),
+            ],
         );
         let n = basis.n_basis;
         let c = Mat::<f64>::from_fn(n, n, |i, j| ((i * 7 + j * 3) % 5) as f64 * 0.1 - 0.2);
@@ -162,7 +167,10 @@ mod tests {
                 for q in 0..n {
                     for r in 0..n {
                         for s in 0..n {
-                            e += c1[(p, i)] * c2[(q, a)] * c3[(r, j)] * c4[(s, b)]
+                            e += c1[(p, i)]
+                                * c2[(q, a)]
+                                * c3[(r, j)]
+                                * c4[(s, b)]
                                 * t[((p * n + q) * n + r) * n + s];
                         }
                     }

@@ -184,12 +184,14 @@ pub fn predict_with_progress(
                     reference: ShiftReference::None,
                     ..opts.clone()
                 };
-                let rr = predict_with_progress(refmol, basis_name, &ropts, &|_, _| {})
-                    .map_err(|e| match e {
-                        Error::Computation(m) => {
-                            Error::computation(format!("reference molecule: {m}"))
+                let rr =
+                    predict_with_progress(refmol, basis_name, &ropts, &|_, _| {}).map_err(|e| {
+                        match e {
+                            Error::Computation(m) => {
+                                Error::computation(format!("reference molecule: {m}"))
+                            }
+                            other => other,
                         }
-                        other => other,
                     })?;
                 for rl in rr.core_levels {
                     references.push(ShiftReferenceLevel {
@@ -270,7 +272,14 @@ fn ionise_atom(ctx: &Context, atom: usize) -> Result<CoreLevel> {
     let occ: Vec<usize> = (0..nw.occ_alpha.len())
         .filter(|&k| nw.occ_alpha[k] > 0.5)
         .collect();
-    let loc = localise_core_hole(ctx.basis, ctx.s_half, &nw.c_alpha, &nw.eps_alpha, &occ, atom);
+    let loc = localise_core_hole(
+        ctx.basis,
+        ctx.s_half,
+        &nw.c_alpha,
+        &nw.eps_alpha,
+        &occ,
+        atom,
+    );
     let (c_ref, hole) = if ctx.opts.localise {
         (loc.c.clone(), loc.hole)
     } else {
@@ -365,9 +374,7 @@ fn ionise_atom(ctx: &Context, atom: usize) -> Result<CoreLevel> {
             // UMP2 needs an unrestricted reference: use the best UHF start when an ROHF won.
             let uhf = states
                 .iter()
-                .filter(|s| {
-                    s.attempt.status == HoleStatus::Held && s.attempt.start != "rohf"
-                })
+                .filter(|s| s.attempt.status == HoleStatus::Held && s.attempt.start != "rohf")
                 .min_by(|a, b| {
                     a.attempt
                         .dscf_ev
@@ -444,4 +451,3 @@ fn status_word(s: HoleStatus) -> &'static str {
         HoleStatus::Failed => "did not converge",
     }
 }
-
