@@ -20,6 +20,10 @@ pub enum Workload {
     Integrals(IntegralsArgs),
     /// SCF and EP2 valence IEs of one molecule (args in cli/ionize.rs).
     Ep2(super::ionize::Ep2BenchArgs),
+    /// SCF wall time, iterations, peak memory and 1→N-thread speed-up (see `bandcast bench scf --help`).
+    Scf(super::scf::BenchArgs),
+    /// Carbon 1s levels (ΔSCF) of an all-trans n-alkane built from standard geometry.
+    Core(super::core::BenchArgs),
 }
 
 #[derive(clap::Args, Debug)]
@@ -49,6 +53,8 @@ pub fn run(args: Args) -> Result<()> {
     match args.workload {
         Workload::Integrals(a) => integrals(a),
         Workload::Ep2(a) => super::ionize::ep2_bench(a),
+        Workload::Scf(a) => super::scf::bench(a),
+        Workload::Core(a) => super::core::bench(a),
     }
 }
 

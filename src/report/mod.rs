@@ -1,4 +1,7 @@
 //! Printers and output files.
 pub mod atomic_write;
+pub mod csv;
+pub mod html;
+pub mod svg;
 
 pub use atomic_write::write_atomic;

@@ -1,1 +1,29 @@
-//! (module under construction)
+//! Predicted photoelectron spectra and comparison with measured ones.
+//!
+//! Prediction: `photon` (sources, BE ↔ KE) → `predicted` (which bands, how intense:
+//! `cross_section` for the Gelius model, `lifetime` for core-hole widths) → `broaden`
+//! (line shapes from `lineshape`, Voigt through `faddeeva`); `mixture` weights several
+//! molecules.
+//!
+//! Comparison: `measured` (reading a trace) → `smooth` (Savitzky–Golay) → `background`
+//! (linear, Shirley) → `peaks` (prominence) → `align` (global shift/scale) → `assign`
+//! (one-to-one matching by `hungarian`, confidences); `compare` runs the whole chain.
+pub mod align;
+pub mod assign;
+pub mod background;
+pub mod broaden;
+pub mod compare;
+pub mod cross_section;
+pub mod faddeeva;
+pub mod hungarian;
+pub mod lifetime;
+pub mod lineshape;
+pub mod measured;
+pub mod mixture;
+pub mod peaks;
+pub mod photon;
+pub mod predicted;
+pub mod smooth;
+
+pub use lineshape::Shape;
+pub use photon::{Axis, Photon};

@@ -1,0 +1,118 @@
+//! Self-contained HTML report of an assignment: inline CSS, inline SVG, no scripts and no
+//! external resources, so the file can be mailed or archived as it is.
+
+use std::fmt::Write;
+
+use super::svg::escape;
+use crate::spectrum::compare::Comparison;
+
+/// What the report says about how the prediction was made.
+#[derive(Debug, Clone)]
+pub struct ReportContext {
+    pub molecule: String,
+    pub method: String,
+    pub basis: String,
+    pub photon: String,
+    pub measured_file: String,
+    pub region: String,
+}
+
+const CSS: &str = "body{font-family:Helvetica,Arial,sans-serif;max-width:1000px;margin:24px auto;\
+color:#222;padding:0 16px}h1{font-size:22px;margin-bottom:4px}.meta{color:#555;font-size:14px}\
+table{border-collapse:collapse;margin:12px 0;font-size:14px}th,td{border-bottom:1px solid #dde;\
+padding:5px 12px;text-align:right}th{background:#f2f4f7}td.l,th.l{text-align:left}\
+tr.low td{background:#fff4e0}.note{border-left:4px solid #d9731a;background:#fdf7ef;padding:8px 12px;\
+font-size:14px}.small{font-size:12.5px;color:#555}";
+
+/// Round to the printed 0.01 eV so that −0.004 prints as +0.00, not −0.00.
+pub fn tidy(v: f64) -> f64 {
+    (v * 100.0).round() / 100.0 + 0.0
+}
+
+/// The report page. `svg` is an inline SVG document (from `svg::Plot::render`).
+pub fn assignment_report(ctx: &ReportContext, cmp: &Comparison, svg: &str) -> String {
+    let mut o = String::new();
+    let _ = write!(
+        o,
+        "<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\"><title>Band assignment: {}</title><style>{CSS}</style></head><body>\n",
+        escape(&ctx.molecule)
+    );
+    let _ = writeln!(o, "<h1>Band assignment: {}</h1>", escape(&ctx.molecule));
+    let _ = writeln!(
+        o,
+        "<p class=\"meta\">Prediction: {} / {} &middot; {} region &middot; photon: {} &middot; measured: {}</p>",
+        escape(&ctx.method),
+        escape(&ctx.basis),
+        escape(&ctx.region),
+        escape(&ctx.photon),
+        escape(&ctx.measured_file)
+    );
+    // strip the XML prolog-free svg as is
+    o.push_str(svg);
+    let _ = writeln!(
+        o,
+        "<p class=\"meta\">Alignment: aligned = {:.4} &times; predicted {} {:.3} eV &middot; background: {} &middot; smoothing: Savitzky&ndash;Golay, {} points, quadratic</p>",
+        cmp.scale,
+        if cmp.shift_ev < 0.0 { "&minus;" } else { "+" },
+        cmp.shift_ev.abs(),
+        escape(&cmp.background),
+        cmp.smoothing_window
+    );
+    o.push_str("<table><tr><th>measured (eV)</th><th class=\"l\">assigned band(s)</th><th>predicted (eV)</th><th>aligned (eV)</th><th>residual (eV)</th><th>confidence</th><th class=\"l\"></th></tr>\n");
+    for a in &cmp.assignments {
+        let flag = if a.low_confidence {
+            match &a.alternative {
+                Some(alt) => format!("low &mdash; could be {}", escape(alt)),
+                None => "low".to_string(),
+            }
+        } else {
+            String::new()
+        };
+        let _ = writeln!(
+            o,
+            "<tr{}><td>{:.2}</td><td class=\"l\">{}</td><td>{:.2}</td><td>{:.2}</td><td>{:+.2}</td><td>{:.2}</td><td class=\"l\">{}</td></tr>",
+            if a.low_confidence { " class=\"low\"" } else { "" },
+            a.measured_ev,
+            escape(&a.label),
+            a.predicted_ev,
+            a.aligned_ev,
+            tidy(a.residual_ev),
+            a.confidence,
+            flag
+        );
+    }
+    for p in &cmp.unassigned_peaks {
+        let _ = writeln!(
+            o,
+            "<tr><td>{:.2}</td><td class=\"l\"><i>no band</i></td><td></td><td></td><td></td><td></td><td class=\"l\"></td></tr>",
+            p.energy_ev
+        );
+    }
+    for b in cmp.unseen_bands.iter().filter(|b| b.inside_window) {
+        let _ = writeln!(
+            o,
+            "<tr><td></td><td class=\"l\">{} <i>(no peak)</i></td><td>{:.2}</td><td>{:.2}</td><td></td><td></td><td class=\"l\"></td></tr>",
+            escape(&b.label),
+            b.predicted_ev,
+            b.aligned_ev
+        );
+    }
+    o.push_str("</table>\n");
+    if !cmp.notes.is_empty() {
+        o.push_str("<ul class=\"small\">");
+        for n in &cmp.notes {
+            let _ = write!(o, "<li>{}</li>", escape(n));
+        }
+        o.push_str("</ul>\n");
+    }
+    o.push_str(
+        "<p class=\"small\">Confidence is the cost margin of each pair over the best assignment \
+         that forbids it, Δ/(Δ + 0.25 eV); below 0.5 it is flagged.</p>\n\
+         <p class=\"note\">These are predictions from an approximate electronic-structure method. \
+         They guide a measurement and its interpretation; they do not replace it. Check \
+         assignments flagged low against other evidence (intensities at a second photon \
+         energy, isotope or substitution series, angular distributions).</p>\n",
+    );
+    o.push_str("</body></html>\n");
+    o
+}

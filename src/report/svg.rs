@@ -1,0 +1,411 @@
+//! A small hand-written SVG line-plot printer for spectra: curves, sticks with labels, an
+//! energy axis with ticks and units. Photoelectron spectra on a binding-energy axis are
+//! drawn with the energy increasing to the left (common practice); `Plot::increase_left`
+//! chooses the direction.
+
+use std::fmt::Write;
+
+/// A curve.
+#[derive(Debug, Clone)]
+pub struct Series {
+    pub name: String,
+    pub x: Vec<f64>,
+    pub y: Vec<f64>,
+    pub color: String,
+    pub stroke_width: f64,
+    /// Light fill under the curve.
+    pub fill: bool,
+    pub dashed: bool,
+}
+
+/// A vertical line from the axis to `height` (y units) with a label above it.
+#[derive(Debug, Clone)]
+pub struct StickMark {
+    pub x: f64,
+    pub height: f64,
+    pub label: String,
+    pub color: String,
+}
+
+#[derive(Debug, Clone)]
+pub struct Plot {
+    pub title: String,
+    pub subtitle: String,
+    pub x_label: String,
+    pub y_label: String,
+    pub series: Vec<Series>,
+    pub sticks: Vec<StickMark>,
+    /// Energy increases to the left (binding-energy convention).
+    pub increase_left: bool,
+    /// Horizontal range; default: the range of all series and sticks.
+    pub x_range: Option<(f64, f64)>,
+    pub width: f64,
+    pub height: f64,
+}
+
+/// The project's colour cycle (chosen for contrast on white and for colour-blind readers:
+/// blue, orange, teal, purple, brown, grey).
+pub const PALETTE: [&str; 6] = [
+    "#1f5fa8", "#d9731a", "#198a7a", "#7b4fa0", "#8c5a2b", "#5f6670",
+];
+
+/// Escape text for SVG/HTML.
+pub fn escape(s: &str) -> String {
+    s.replace('&', "&amp;")
+        .replace('<', "&lt;")
+        .replace('>', "&gt;")
+        .replace('"', "&quot;")
+}
+
+/// Tick positions: steps of 1, 2 or 5 × 10^k giving about `target` intervals.
+pub fn nice_ticks(lo: f64, hi: f64, target: usize) -> (Vec<f64>, f64) {
+    let span = (hi - lo).abs().max(1e-12);
+    let raw = span / target.max(1) as f64;
+    let mag = 10f64.powf(raw.log10().floor());
+    let step = [1.0, 2.0, 5.0, 10.0]
+        .iter()
+        .map(|f| f * mag)
+        .find(|s| *s >= raw)
+        .unwrap_or(10.0 * mag);
+    let first = (lo / step).ceil() * step;
+    let mut t = Vec::new();
+    let mut v = first;
+    while v <= hi + 1e-9 * step {
+        t.push(if v.abs() < 1e-12 * step { 0.0 } else { v });
+        v += step;
+    }
+    (t, step)
+}
+
+/// Ticks every `step` inside [lo, hi].
+fn nice_ticks_step(lo: f64, hi: f64, step: f64) -> (Vec<f64>, f64) {
+    let mut t = Vec::new();
+    let mut k = (lo / step).ceil();
+    while k * step <= hi + 1e-9 * step {
+        t.push(k * step);
+        k += 1.0;
+    }
+    (t, step)
+}
+
+fn fmt_tick(v: f64, step: f64) -> String {
+    let decimals = if step >= 1.0 {
+        0
+    } else {
+        (-step.log10().floor()) as usize
+    };
+    format!("{v:.decimals$}")
+}
+
+impl Plot {
+    /// Render to a standalone SVG document (no external resources).
+    pub fn render(&self) -> String {
+        let (w, h) = (self.width, self.height);
+        let (ml, mr, mt, mb) = (60.0, 30.0, 64.0, 58.0);
+        let (pw, ph) = (w - ml - mr, h - mt - mb);
+        let (x0, x1) = self.x_range.unwrap_or_else(|| {
+            let mut lo = f64::INFINITY;
+            let mut hi = f64::NEG_INFINITY;
+            for s in &self.series {
+                for &x in &s.x {
+                    lo = lo.min(x);
+                    hi = hi.max(x);
+                }
+            }
+            for s in &self.sticks {
+                lo = lo.min(s.x);
+                hi = hi.max(s.x);
+            }
+            if !lo.is_finite() {
+                (0.0, 1.0)
+            } else if hi > lo {
+                (lo, hi)
+            } else {
+                (lo - 1.0, hi + 1.0)
+            }
+        });
+        let mut ymax: f64 = 0.0;
+        for s in &self.series {
+            for (&x, &y) in s.x.iter().zip(&s.y) {
+                if x >= x0 && x <= x1 {
+                    ymax = ymax.max(y);
+                }
+            }
+        }
+        for s in &self.sticks {
+            ymax = ymax.max(s.height);
+        }
+        if !(ymax > 0.0) {
+            ymax = 1.0;
+        }
+        let ytop = ymax * 1.3; // room for labels
+        let px = |x: f64| -> f64 {
+            let t = (x - x0) / (x1 - x0);
+            if self.increase_left {
+                ml + pw * (1.0 - t)
+            } else {
+                ml + pw * t
+            }
+        };
+        let py = |y: f64| -> f64 { mt + ph * (1.0 - y / ytop) };
+        let mut o = String::new();
+        let _ = writeln!(
+            o,
+            r#"<svg xmlns="http://www.w3.org/2000/svg" width="{w}" height="{h}" viewBox="0 0 {w} {h}" font-family="Helvetica, Arial, sans-serif">"#
+        );
+        let _ = writeln!(
+            o,
+            r##"<rect x="0" y="0" width="{w}" height="{h}" fill="#ffffff"/>"##
+        );
+        let _ = writeln!(
+            o,
+            r##"<text x="{ml}" y="24" font-size="16" font-weight="bold" fill="#222">{}</text>"##,
+            escape(&self.title)
+        );
+        if !self.subtitle.is_empty() {
+            let _ = writeln!(
+                o,
+                r##"<text x="{ml}" y="42" font-size="11.5" fill="#555">{}</text>"##,
+                escape(&self.subtitle)
+            );
+        }
+        // clip region for curves
+        let _ = writeln!(
+            o,
+            r#"<defs><clipPath id="plotarea"><rect x="{ml}" y="{mt}" width="{pw}" height="{ph}"/></clipPath></defs>"#
+        );
+        // ticks and grid
+        let (ticks, step) = nice_ticks(x0, x1, 8);
+        // minor ticks halfway (or a fifth of the way for 5 × 10^k steps)
+        let minor = if (step / 10f64.powf(step.log10().floor()) - 5.0).abs() < 1e-9 {
+            step / 5.0
+        } else {
+            step / 2.0
+        };
+        let (mticks, _) = nice_ticks_step(x0, x1, minor);
+        for t in &mticks {
+            let x = px(*t);
+            let _ = writeln!(
+                o,
+                r##"<line x1="{x:.1}" y1="{:.1}" x2="{x:.1}" y2="{:.1}" stroke="#333" stroke-width="0.8"/>"##,
+                mt + ph,
+                mt + ph + 3.0
+            );
+        }
+        for t in &ticks {
+            let x = px(*t);
+            let _ = writeln!(
+                o,
+                r##"<line x1="{x:.1}" y1="{mt}" x2="{x:.1}" y2="{:.1}" stroke="#eceef1" stroke-width="1"/>"##,
+                mt + ph
+            );
+            let _ = writeln!(
+                o,
+                r##"<line x1="{x:.1}" y1="{:.1}" x2="{x:.1}" y2="{:.1}" stroke="#333" stroke-width="1"/>"##,
+                mt + ph,
+                mt + ph + 5.0
+            );
+            let _ = writeln!(
+                o,
+                r##"<text x="{x:.1}" y="{:.1}" font-size="12" text-anchor="middle" fill="#333">{}</text>"##,
+                mt + ph + 19.0,
+                fmt_tick(*t, step)
+            );
+        }
+        // axes
+        let _ = writeln!(
+            o,
+            r##"<line x1="{ml}" y1="{:.1}" x2="{:.1}" y2="{:.1}" stroke="#333" stroke-width="1.2"/>"##,
+            mt + ph,
+            ml + pw,
+            mt + ph
+        );
+        let _ = writeln!(
+            o,
+            r##"<line x1="{ml}" y1="{mt}" x2="{ml}" y2="{:.1}" stroke="#333" stroke-width="1.2"/>"##,
+            mt + ph
+        );
+        let arrow = if self.increase_left { "← " } else { "" };
+        let arrow_r = if self.increase_left { "" } else { " →" };
+        let _ = writeln!(
+            o,
+            r##"<text x="{:.1}" y="{:.1}" font-size="13" text-anchor="middle" fill="#222">{arrow}{}{arrow_r}</text>"##,
+            ml + pw / 2.0,
+            h - 14.0,
+            escape(&self.x_label)
+        );
+        let _ = writeln!(
+            o,
+            r##"<text x="18" y="{:.1}" font-size="13" text-anchor="middle" fill="#222" transform="rotate(-90 18 {:.1})">{}</text>"##,
+            mt + ph / 2.0,
+            mt + ph / 2.0,
+            escape(&self.y_label)
+        );
+        // curves
+        for s in &self.series {
+            let mut d = String::new();
+            let mut first = true;
+            for (&x, &y) in s.x.iter().zip(&s.y) {
+                if x < x0 || x > x1 {
+                    continue;
+                }
+                let _ = write!(
+                    d,
+                    "{}{:.2},{:.2} ",
+                    if first { "M" } else { "L" },
+                    px(x),
+                    py(y.max(0.0))
+                );
+                first = false;
+            }
+            if d.is_empty() {
+                continue;
+            }
+            if s.fill {
+                let xs: Vec<f64> =
+                    s.x.iter()
+                        .cloned()
+                        .filter(|&x| x >= x0 && x <= x1)
+                        .collect();
+                let (a, b) = (xs[0], xs[xs.len() - 1]);
+                let _ = writeln!(
+                    o,
+                    r#"<path d="{d}L{:.2},{:.2} L{:.2},{:.2} Z" fill="{}" fill-opacity="0.12" stroke="none" clip-path="url(#plotarea)"/>"#,
+                    px(b),
+                    py(0.0),
+                    px(a),
+                    py(0.0),
+                    s.color
+                );
+            }
+            let dash = if s.dashed {
+                r#" stroke-dasharray="5,3""#
+            } else {
+                ""
+            };
+            let _ = writeln!(
+                o,
+                r#"<path d="{d}" fill="none" stroke="{}" stroke-width="{}"{dash} stroke-linejoin="round" clip-path="url(#plotarea)"/>"#,
+                s.color, s.stroke_width
+            );
+        }
+        // sticks, then labels merged where they would collide
+        let mut vis: Vec<&StickMark> = self
+            .sticks
+            .iter()
+            .filter(|s| s.x >= x0 && s.x <= x1)
+            .collect();
+        vis.sort_by(|a, b| px(a.x).total_cmp(&px(b.x)));
+        for s in &vis {
+            let x = px(s.x);
+            let _ = writeln!(
+                o,
+                r#"<line x1="{x:.2}" y1="{:.2}" x2="{x:.2}" y2="{:.2}" stroke="{}" stroke-width="1.6"/>"#,
+                py(0.0),
+                py(s.height),
+                s.color
+            );
+        }
+        let mut groups: Vec<(f64, f64, Vec<String>)> = Vec::new(); // (x px, top px, labels)
+        for s in &vis {
+            let x = px(s.x);
+            let top = py(s.height);
+            match groups.last_mut() {
+                Some(g) if x - g.0 < 13.0 => {
+                    if !g.2.contains(&s.label) {
+                        g.2.push(s.label.clone());
+                    }
+                    g.1 = g.1.min(top);
+                }
+                _ => groups.push((x, top, vec![s.label.clone()])),
+            }
+        }
+        for (x, top, labels) in groups {
+            if labels.iter().all(|l| l.is_empty()) {
+                continue;
+            }
+            let text = labels.join(", ");
+            let y = (top - 5.0).max(mt + 4.0);
+            let _ = writeln!(
+                o,
+                r##"<text x="{:.2}" y="{y:.2}" font-size="10.5" fill="#222" transform="rotate(-90 {:.2} {y:.2})">{}</text>"##,
+                x + 3.5,
+                x + 3.5,
+                escape(&text)
+            );
+        }
+        // legend
+        let mut ly = mt + 12.0;
+        for s in self.series.iter().filter(|s| !s.name.is_empty()) {
+            let lx = if self.increase_left {
+                ml + 12.0
+            } else {
+                ml + pw - 190.0
+            };
+            let dash = if s.dashed {
+                r#" stroke-dasharray="5,3""#
+            } else {
+                ""
+            };
+            let _ = writeln!(
+                o,
+                r#"<line x1="{lx:.1}" y1="{ly:.1}" x2="{:.1}" y2="{ly:.1}" stroke="{}" stroke-width="{}"{dash}/>"#,
+                lx + 22.0,
+                s.color,
+                s.stroke_width.max(1.5)
+            );
+            let _ = writeln!(
+                o,
+                r##"<text x="{:.1}" y="{:.1}" font-size="11.5" fill="#222">{}</text>"##,
+                lx + 28.0,
+                ly + 4.0,
+                escape(&s.name)
+            );
+            ly += 16.0;
+        }
+        o.push_str("</svg>\n");
+        o
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn ticks_are_round() {
+        let (t, s) = nice_ticks(11.3, 19.8, 8);
+        assert_eq!(s, 2.0);
+        assert_eq!(t, vec![12.0, 14.0, 16.0, 18.0]);
+        let (_, s) = nice_ticks(285.0, 295.0, 8);
+        assert_eq!(s, 2.0);
+    }
+
+    #[test]
+    fn direction_and_escaping() {
+        let p = Plot {
+            title: "a < b".into(),
+            subtitle: String::new(),
+            x_label: "Binding energy (eV)".into(),
+            y_label: "Intensity".into(),
+            series: vec![Series {
+                name: "x".into(),
+                x: vec![10.0, 20.0],
+                y: vec![1.0, 2.0],
+                color: PALETTE[0].into(),
+                stroke_width: 1.5,
+                fill: false,
+                dashed: false,
+            }],
+            sticks: vec![],
+            increase_left: true,
+            x_range: None,
+            width: 800.0,
+            height: 500.0,
+        };
+        let s = p.render();
+        assert!(s.contains("a &lt; b"));
+        // first point (x = 10) is drawn at the right edge when energy increases to the left
+        assert!(s.contains("M770.00,"), "{s}");
+    }
+}

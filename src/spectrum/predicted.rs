@@ -1,0 +1,156 @@
+//! From predicted bands to spectral lines ("sticks"): which bands the photon reaches, how
+//! intense each is, how wide.
+
+use serde::Serialize;
+
+use super::cross_section::gelius_intensity;
+use super::lifetime::k_level_fwhm_ev;
+use super::photon::Photon;
+use crate::chem::elements::parse_element;
+use crate::ionization::{Band, Region};
+
+/// How band intensities are set.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum IntensityModel {
+    /// occupation × degeneracy (pole strength / one-hole weight applied when present).
+    Occupation,
+    /// Gelius model with atomic subshell cross sections at the photon energy.
+    Gelius,
+}
+
+impl IntensityModel {
+    pub fn parse(s: &str) -> Option<IntensityModel> {
+        match s.to_ascii_lowercase().as_str() {
+            "occupation" | "default" => Some(IntensityModel::Occupation),
+            "gelius" => Some(IntensityModel::Gelius),
+            _ => None,
+        }
+    }
+}
+
+/// One line of a predicted spectrum.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Stick {
+    pub label: String,
+    /// Binding energy (eV).
+    pub binding_ev: f64,
+    /// Kinetic energy (eV) for the photon source.
+    pub kinetic_ev: f64,
+    /// Relative intensity (sum over sticks of one molecule not normalised).
+    pub intensity: f64,
+    /// Gaussian (instrument + vibrational envelope) FWHM, eV.
+    pub gaussian_fwhm_ev: f64,
+    /// Lorentzian (lifetime) FWHM, eV; 0 for valence bands.
+    pub lorentzian_fwhm_ev: f64,
+    /// Index of the input (molecule) this line belongs to.
+    pub component: usize,
+}
+
+/// A band left out of the spectrum and why.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Excluded {
+    pub label: String,
+    pub binding_ev: f64,
+    pub component: usize,
+    pub reason: String,
+}
+
+/// Options for turning bands into sticks.
+#[derive(Debug, Clone, Copy)]
+pub struct StickOptions {
+    pub photon: Photon,
+    pub intensity: IntensityModel,
+    /// Gaussian FWHM per band (eV).
+    pub gaussian_fwhm_ev: f64,
+    /// Weight of this input in a mixture (multiplies every intensity).
+    pub weight: f64,
+    pub component: usize,
+}
+
+/// Lines for `bands`, and the bands left out (unreachable by the photon, zero intensity).
+/// Notes (e.g. approximate cross sections) are pushed onto `notes`.
+pub fn sticks_from_bands(
+    bands: &[Band],
+    opts: &StickOptions,
+    notes: &mut Vec<String>,
+) -> (Vec<Stick>, Vec<Excluded>) {
+    let hv = opts.photon.energy_ev();
+    let mut sticks = Vec::new();
+    let mut excluded = Vec::new();
+    let mut approx_noted = false;
+    for b in bands {
+        if !opts.photon.reaches(b.ie_ev) {
+            excluded.push(Excluded {
+                label: b.label.clone(),
+                binding_ev: b.ie_ev,
+                component: opts.component,
+                reason: format!(
+                    "binding energy {:.2} eV is above the photon energy {:.3} eV",
+                    b.ie_ev, hv
+                ),
+            });
+            continue;
+        }
+        let mut intensity = match opts.intensity {
+            IntensityModel::Occupation => b.default_intensity(),
+            IntensityModel::Gelius => {
+                let g = gelius_intensity(b, hv);
+                if g.untabulated_fraction.abs() > 0.2 {
+                    notes.push(format!(
+                        "{}: {:.0} % of its make-up has no tabulated cross section",
+                        b.label,
+                        100.0 * g.untabulated_fraction
+                    ));
+                }
+                if b.makeup.is_empty() {
+                    notes.push(format!(
+                        "{}: no orbital make-up, Gelius intensity is zero",
+                        b.label
+                    ));
+                }
+                if g.approximate && !approx_noted {
+                    notes.push(
+                        "Gelius intensities use cross sections typed from memory, scaled or \
+                         interpolated at this photon energy: relative intensities are rough"
+                            .into(),
+                    );
+                    approx_noted = true;
+                }
+                g.intensity
+            }
+        };
+        // A propagator pole strength or an EOM one-hole weight moves intensity to satellites.
+        if let Some(p) = b.pole_strength.or(b.one_hole_weight) {
+            intensity *= p;
+        }
+        intensity *= opts.weight;
+        let lorentz = match b.region {
+            Region::Valence => 0.0,
+            Region::Core => b
+                .lifetime_fwhm_ev
+                .or_else(|| core_z(b).and_then(k_level_fwhm_ev))
+                .unwrap_or(0.0),
+        };
+        sticks.push(Stick {
+            label: b.label.clone(),
+            binding_ev: b.ie_ev,
+            kinetic_ev: opts.photon.kinetic_ev(b.ie_ev),
+            intensity,
+            gaussian_fwhm_ev: opts.gaussian_fwhm_ev,
+            lorentzian_fwhm_ev: lorentz,
+            component: opts.component,
+        });
+    }
+    (sticks, excluded)
+}
+
+/// Element of a core band from its label ("C3 1s" → 6).
+fn core_z(b: &Band) -> Option<u32> {
+    let sym: String = b
+        .label
+        .chars()
+        .take_while(|c| c.is_ascii_alphabetic())
+        .collect();
+    parse_element(&sym)
+}
