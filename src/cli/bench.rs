@@ -24,6 +24,8 @@ pub enum Workload {
     Scf(super::scf::BenchArgs),
     /// Carbon 1s levels (ΔSCF) of an all-trans n-alkane built from standard geometry.
     Core(super::core::BenchArgs),
+    /// EOM-IP-CCSD (benzene) and EOM-IP-MBPT2 (guanine) in def2-TZVPP: time per stage, memory.
+    Eom(super::eom_bench::BenchArgs),
 }
 
 #[derive(clap::Args, Debug)]
@@ -55,6 +57,7 @@ pub fn run(args: Args) -> Result<()> {
         Workload::Ep2(a) => super::ionize::ep2_bench(a),
         Workload::Scf(a) => super::scf::bench(a),
         Workload::Core(a) => super::core::bench(a),
+        Workload::Eom(a) => super::eom_bench::bench(a),
     }
 }
 

@@ -145,6 +145,63 @@ pub fn frozen_core_orbitals(z: u32) -> usize {
     }
 }
 
+/// Energies for chosen orbitals (one targeted EOM root per orbital, in the given order) as
+/// (IE hartree, one-hole weight), plus notes on how the job was run. Used by
+/// `ionization::valence` for `--method eom-ccsd|eom-mp2`.
+#[allow(clippy::type_complexity)]
+pub fn band_energies(
+    mol: &Molecule,
+    basis: &BasisSet,
+    wfn: &Wavefunction,
+    orbitals: &[usize],
+    method: EomMethod,
+    frozen_core: bool,
+    memory_bytes: Option<f64>,
+) -> Result<(Vec<(f64, f64)>, Vec<String>)> {
+    let opts = EomOptions {
+        method,
+        roots: RootSpec::Orbitals(orbitals.to_vec()),
+        frozen_core,
+        memory_budget: memory_bytes,
+        ..Default::default()
+    };
+    let rep = ionize_report(mol, basis, wfn, &opts, &mut |_| {})?;
+    let mut notes = rep.notes.clone();
+    if let Some(e) = rep.e_ccsd_corr {
+        notes.push(format!(
+            "CCSD correlation energy {e:.8} Eh ({} iterations); MP2 {:.8} Eh",
+            rep.ccsd_iterations, rep.e_mp2_corr
+        ));
+    } else {
+        notes.push(format!("MP2 correlation energy {:.8} Eh", rep.e_mp2_corr));
+    }
+    for (s, &m) in rep.states.iter().zip(orbitals) {
+        if !s.converged {
+            notes.push(format!(
+                "{}: the EOM root started from MO {} did not converge (residual {:.1e})",
+                method.name(),
+                m + 1,
+                s.residual
+            ));
+        }
+        if s.dominant_orbital != m {
+            notes.push(format!(
+                "{}: the root started from MO {} ended dominated by MO {}",
+                method.name(),
+                m + 1,
+                s.dominant_orbital + 1
+            ));
+        }
+    }
+    Ok((
+        rep.states
+            .iter()
+            .map(|s| (s.ie_hartree, s.one_hole_weight))
+            .collect(),
+        notes,
+    ))
+}
+
 /// Library entry: ionized states of a closed-shell molecule.
 pub fn ionize(
     mol: &Molecule,
@@ -396,7 +453,10 @@ pub fn ionize_report(
             }
         })
         .collect();
-    states.sort_by(|a, b| a.ie_hartree.total_cmp(&b.ie_hartree));
+    if targets.is_none() {
+        // lowest roots come back ascending; targeted roots keep the order of the targets
+        states.sort_by(|a, b| a.ie_hartree.total_cmp(&b.ie_hartree));
+    }
     let seconds_eom = clock.elapsed().as_secs_f64();
     for s in &states {
         log(&format!(

@@ -61,3 +61,30 @@ mod tests {
         assert!(rule_text().contains("eom-ccsd"));
     }
 }
+
+/// The default `bandcast ionize` method for a molecule in a basis: for closed shells the
+/// rule above with the correlated space of the frozen-core default; open shells get ΔSCF
+/// (the EOM and EP2 code here is closed-shell only).
+pub fn default_ionization_method(
+    mol: &crate::chem::Molecule,
+    basis: &crate::basis::BasisSet,
+    budget_bytes: Option<f64>,
+) -> crate::ionization::method::Method {
+    use crate::ionization::method::Method;
+    if mol.multiplicity != 1 {
+        return Method::Dscf;
+    }
+    let nocc = mol.n_electrons() / 2;
+    let core: usize = mol
+        .atoms
+        .iter()
+        .map(|a| super::eom_ip::frozen_core_orbitals(a.z))
+        .sum();
+    let core = if core >= nocc { 0 } else { core };
+    let nvir = basis.n_basis.saturating_sub(nocc);
+    match choose(basis.n_basis, nocc - core, nvir, budget_bytes) {
+        DefaultMethod::EomCcsd => Method::EomCcsd,
+        DefaultMethod::EomMbpt2 => Method::EomMp2,
+        DefaultMethod::Ep2 => Method::Ep2,
+    }
+}
