@@ -355,7 +355,11 @@ impl Plot {
                 }
             }
             let y = (top - 5.0).max(mt + 4.0);
-            let fill = if g.3.starts_with('#') && g.3 != "#444" { g.3.as_str() } else { "#222" };
+            let fill = if g.3.starts_with('#') && g.3 != "#444" {
+                g.3.as_str()
+            } else {
+                "#222"
+            };
             let _ = writeln!(
                 o,
                 r##"<text x="{lx:.2}" y="{y:.2}" font-size="10.5" fill="{fill}" transform="rotate(-90 {lx:.2} {y:.2})">{}</text>"##,
