@@ -153,6 +153,28 @@ pub fn svd(a: MatRef<'_, f64>) -> (Mat<f64>, Vec<f64>, Mat<f64>) {
     (s.U().to_owned(), sv, s.V().to_owned())
 }
 
+/// Eigen-decomposition of a general (non-symmetric) real square matrix: eigenvalues as
+/// (real parts, imaginary parts) and right eigenvectors as columns (real and imaginary
+/// parts), in no particular order. None when the iteration fails. Meant for small
+/// matrices (Davidson subspaces, reference checks).
+#[allow(clippy::type_complexity)]
+pub fn eig_general(a: MatRef<'_, f64>) -> Option<(Vec<f64>, Vec<f64>, Mat<f64>, Mat<f64>)> {
+    let n = a.nrows();
+    assert_eq!(n, a.ncols(), "eig_general needs a square matrix");
+    if n == 0 {
+        return Some((Vec::new(), Vec::new(), Mat::zeros(0, 0), Mat::zeros(0, 0)));
+    }
+    let e = a.eigen().ok()?;
+    let s = e.S();
+    let w = s.column_vector();
+    let re: Vec<f64> = (0..n).map(|k| w[k].re).collect();
+    let im: Vec<f64> = (0..n).map(|k| w[k].im).collect();
+    let u = e.U();
+    let ur = Mat::<f64>::from_fn(n, n, |i, j| u[(i, j)].re);
+    let ui = Mat::<f64>::from_fn(n, n, |i, j| u[(i, j)].im);
+    Some((re, im, ur, ui))
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -209,6 +231,14 @@ mod tests {
         for i in 0..3 {
             for j in 0..3 {
                 assert!((llt[(i, j)] - a[i][j]).abs() < 1e-14);
+            }
+        }
+        let (re, im, ur, _ui) = eig_general(m.as_ref()).unwrap();
+        for k in 0..3 {
+            assert!(im[k].abs() < 1e-12);
+            for i in 0..3 {
+                let r: f64 = (0..3).map(|j| a[i][j] * ur[(j, k)]).sum();
+                assert!((r - re[k] * ur[(i, k)]).abs() < 1e-10);
             }
         }
         let (u, s, v) = svd(m.as_ref());

@@ -20,6 +20,12 @@ pub enum Workload {
     Integrals(IntegralsArgs),
     /// SCF and EP2 valence IEs of one molecule (args in cli/ionize.rs).
     Ep2(super::ionize::Ep2BenchArgs),
+    /// SCF wall time, iterations, peak memory and 1→N-thread speed-up (see `bandcast bench scf --help`).
+    Scf(super::scf::BenchArgs),
+    /// Carbon 1s levels (ΔSCF) of an all-trans n-alkane built from standard geometry.
+    Core(super::core::BenchArgs),
+    /// EOM-IP-CCSD (benzene) and EOM-IP-MBPT2 (guanine) in def2-TZVPP: time per stage, memory.
+    Eom(super::eom_bench::BenchArgs),
 }
 
 #[derive(clap::Args, Debug)]
@@ -49,6 +55,9 @@ pub fn run(args: Args) -> Result<()> {
     match args.workload {
         Workload::Integrals(a) => integrals(a),
         Workload::Ep2(a) => super::ionize::ep2_bench(a),
+        Workload::Scf(a) => super::scf::bench(a),
+        Workload::Core(a) => super::core::bench(a),
+        Workload::Eom(a) => super::eom_bench::bench(a),
     }
 }
 

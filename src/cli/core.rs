@@ -38,12 +38,12 @@ pub struct Args {
     #[arg(long, value_name = "N")]
     pub reference_atom: Option<usize>,
     /// Core flexibility on the hole atoms: plain, uncontract (split the s shells into
-    /// primitives; default), uncontract-sp, or the name of a set whose functions replace the
-    /// hole atoms' (e.g. a core-valence set).
+    /// primitives), uncontract-sp (s and p; default), or the name of a set whose functions
+    /// replace the hole atoms' (e.g. cc-pCVTZ).
     #[arg(
         long,
-        value_name = "plain|uncontract|NAME",
-        default_value = "uncontract"
+        value_name = "plain|uncontract|uncontract-sp|NAME",
+        default_value = "uncontract-sp"
     )]
     pub core_basis: String,
     /// Keep the canonical (delocalised) 1s as the hole instead of localising it.
@@ -52,7 +52,7 @@ pub struct Args {
     /// Add the second-order (ΔMP2) correction.
     #[arg(long)]
     pub mp2: bool,
-    /// Stop at the first SCF start that holds the hole instead of trying all of them.
+    /// Keep the first SCF start that holds the hole instead of trying all of them.
     #[arg(long)]
     pub quick: bool,
     /// Machine-readable result on stdout.
@@ -135,6 +135,10 @@ pub fn run(args: Args) -> Result<()> {
 
 fn opt(v: Option<f64>, width: usize, digits: usize) -> String {
     match v {
+        // No "-0.00" for a shift that is zero to print precision.
+        Some(x) if x.abs() < 0.5 * 10f64.powi(-(digits as i32)) => {
+            format!("{:>width$.digits$}", 0.0)
+        }
         Some(x) => format!("{x:>width$.digits$}"),
         None => format!("{:>width$}", "–"),
     }
@@ -210,4 +214,43 @@ pub fn table(r: &CoreResult) -> String {
         s.push_str(&format!("note: {n}\n"));
     }
     s
+}
+
+/// `bandcast bench core`: all carbon 1s levels of CnH2n+2.
+#[derive(clap::Args, Debug)]
+pub struct BenchArgs {
+    /// Number of carbon atoms of the alkane.
+    #[arg(long, default_value_t = 10, value_name = "N")]
+    pub carbons: usize,
+    /// Basis set.
+    #[arg(long, default_value = "cc-pVDZ", value_name = "NAME")]
+    pub basis: String,
+    /// Try every SCF start for each hole (default: stop at the first clean one).
+    #[arg(long)]
+    pub thorough: bool,
+}
+
+pub fn bench(a: BenchArgs) -> Result<()> {
+    if a.carbons == 0 {
+        return Err(Error::input("--carbons must be at least 1"));
+    }
+    let r = bandcast::ionization::core::bench::run_core_bench(a.carbons, &a.basis, a.thorough)?;
+    println!(
+        "core: {} — {} atoms, {} functions, {} C 1s holes, {} starts: {:.2} s wall ({:.2} s per hole), {} threads",
+        r.molecule,
+        r.n_atoms,
+        r.result.n_basis,
+        r.n_holes,
+        if a.thorough { "all" } else { "first clean" },
+        r.seconds,
+        r.seconds / r.n_holes.max(1) as f64,
+        rayon::current_num_threads()
+    );
+    for l in &r.result.core_levels {
+        println!(
+            "  {:<8} ΔSCF {:>8.3} eV  ⟨S²⟩ {:.3}  start {}",
+            l.label, l.dscf_ev, l.s2, l.start
+        );
+    }
+    Ok(())
 }

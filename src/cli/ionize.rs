@@ -20,8 +20,9 @@ pub struct Args {
     /// Basis set: a bundled name (see `bandcast basis`) or a basis file.
     #[arg(long, value_name = "NAME")]
     pub basis: String,
-    /// koopmans | dscf | ep2 | eom-ccsd | eom-mp2 (default: ep2 for closed shells, dscf for
-    /// open shells).
+    /// koopmans | dscf | ep2 | eom-ccsd | eom-mp2 (default for closed shells: the most
+    /// accurate that fits — eom-ccsd up to 250 basis functions, eom-mp2 up to 450, ep2
+    /// beyond, within --memory; dscf for open shells).
     #[arg(long, value_name = "METHOD")]
     pub method: Option<String>,
     /// Report the N bands of lowest ionization energy.
@@ -30,8 +31,8 @@ pub struct Args {
     /// Report the bands with ionization energy up to EV electronvolts (e.g. 21.2 for He I).
     #[arg(long, value_name = "EV")]
     pub window: Option<f64>,
-    /// Correlate the core electrons too in EP2 (default: frozen core).
-    #[arg(long)]
+    /// Correlate the core electrons too in EP2 and EOM (default: frozen core).
+    #[arg(long, alias = "all-electron")]
     pub correlate_core: bool,
     /// Memory for MO integrals in GB.
     #[arg(long, value_name = "GB", default_value_t = 4.0)]
@@ -47,14 +48,22 @@ substitute for one; check assignments against a measured spectrum before relying
 
 pub fn run(args: Args) -> Result<()> {
     let mol = args.molecule.load()?;
-    let method = match &args.method {
-        Some(m) => Method::parse(m)?,
-        None => default_method(&mol),
-    };
     if !(args.memory > 0.0) {
         return Err(Error::input("--memory must be a positive number of GB"));
     }
     let basis = bandcast::basis::load(&args.basis, &mol, None)?;
+    let defaulted = args.method.is_none();
+    let method = match &args.method {
+        Some(m) => Method::parse(m)?,
+        None if mol.multiplicity == 1 => {
+            bandcast::correlation::method_choice::default_ionization_method(
+                &mol,
+                &basis,
+                Some(args.memory * 1e9),
+            )
+        }
+        None => default_method(&mol),
+    };
     let opts = ValenceOptions {
         method,
         count: args.count,
@@ -63,7 +72,14 @@ pub fn run(args: Args) -> Result<()> {
         memory_bytes: (args.memory * 1e9) as usize,
         ..Default::default()
     };
-    let result = predict(&mol, &basis, &opts)?;
+    let mut result = predict(&mol, &basis, &opts)?;
+    if defaulted {
+        result.warnings.push(format!(
+            "{} — chose {method} for {} basis functions",
+            bandcast::correlation::method_choice::rule_text(),
+            basis.n_basis
+        ));
+    }
     let name = if mol.name.is_empty() {
         args.molecule.file.display().to_string()
     } else {

@@ -4,6 +4,7 @@ pub mod basis;
 pub mod bench;
 pub mod common;
 pub mod core;
+pub mod eom_bench;
 pub mod ionize;
 pub mod scf;
 pub mod spectrum;

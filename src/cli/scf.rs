@@ -292,6 +292,18 @@ fn to_json(mol: &Molecule, wf: &Wavefunction, info: &RunInfo) -> String {
     serde_json::to_string_pretty(&v).expect("JSON of plain values")
 }
 
+/// The molecule's name (XYZ comment line) cut to 40 characters for the header.
+fn short_name(name: &str) -> String {
+    if name.trim().is_empty() {
+        return "molecule".into();
+    }
+    let mut n: String = name.trim().chars().take(40).collect();
+    if name.trim().chars().count() > 40 {
+        n.push('…');
+    }
+    n
+}
+
 fn to_text(mol: &Molecule, wf: &Wavefunction, info: &RunInfo, all: bool) -> String {
     use std::fmt::Write;
     let mut s = String::new();
@@ -303,13 +315,9 @@ fn to_text(mol: &Molecule, wf: &Wavefunction, info: &RunInfo, all: bool) -> Stri
     };
     let _ = writeln!(
         s,
-        "Hartree–Fock ({}) · {} · {} atoms, {} electrons, charge {:+}, {}",
+        "Hartree–Fock ({}) · {} · {} atoms, {} electrons, charge {}, {}",
         reference_name(wf.reference).to_uppercase(),
-        if mol.name.is_empty() {
-            "molecule"
-        } else {
-            &mol.name
-        },
+        short_name(&mol.name),
         mol.atoms.len(),
         mol.n_electrons(),
         mol.charge,
@@ -417,4 +425,36 @@ fn to_text(mol: &Molecule, wf: &Wavefunction, info: &RunInfo, all: bool) -> Stri
          typically by ~1 eV; a prediction guides a measurement, it does not replace it."
     );
     s
+}
+
+/// SCF benchmark: water/cc-pVTZ, benzene/cc-pVDZ, benzene/def2-TZVPP (and guanine/def2-TZVPP).
+///
+/// For each case: wall time of the whole SCF (one-electron integrals, SAD guess, ERIs,
+/// iterations) on the current thread pool (set it with the global --threads), the number
+/// of iterations, peak resident memory of the process so far (VmHWM), and for the first
+/// three cases the time on one thread and the speed-up. The energies on one and on all
+/// threads must agree to 1e-10 Eh or the benchmark fails.
+#[derive(clap::Args, Debug)]
+#[command(verbatim_doc_comment)]
+pub struct BenchArgs {
+    /// Only the small cases (water/cc-pVTZ and benzene/cc-pVDZ).
+    #[arg(long)]
+    pub quick: bool,
+    /// Add guanine/def2-TZVPP (integral-direct; many minutes on two cores).
+    #[arg(long)]
+    pub guanine: bool,
+    /// Directory holding water.xyz, benzene.xyz and guanine.xyz (GW100 structures, Å).
+    #[arg(long, value_name = "DIR", default_value = "/work/shared/data/gw100")]
+    pub dir: std::path::PathBuf,
+}
+
+pub fn bench(a: BenchArgs) -> Result<()> {
+    println!(
+        "SCF benchmark ({} threads; RHF, SAD guess, default thresholds)",
+        rayon::current_num_threads()
+    );
+    bandcast::scf::bench::run_scf_bench(&a.dir, a.quick, a.guanine, &mut |r| {
+        println!("{}", bandcast::scf::bench::format_result(r));
+    })?;
+    Ok(())
 }

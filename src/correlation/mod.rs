@@ -1,1 +1,27 @@
-//! (module under construction)
+//! Correlated methods on a closed-shell RHF reference: MP2, CCSD, and ionization energies
+//! from EOM-IP-CCSD and EOM-IP-MBPT2.
+//!
+//! Files: integrals.rs (MO integral blocks from three-index factors), tensor.rs (dense
+//! tensors and contractions through matrix products), mp2.rs, ccsd_intermediates.rs,
+//! ccsd.rs, diis.rs, davidson.rs (non-symmetric Davidson), eom_ip.rs (sigma vectors and
+//! the `ionize` entry point), memory.rs (estimates before anything large is allocated).
+pub mod bench;
+pub mod ccsd;
+pub mod ccsd_intermediates;
+pub mod cholesky;
+pub mod davidson;
+pub mod diis;
+pub mod integrals;
+pub mod mp2;
+pub mod tensor;
+
+#[cfg(test)]
+pub(crate) mod brute_force;
+pub mod eom_ip;
+pub mod eom_ip_intermediates;
+pub mod eom_ip_sigma;
+pub mod memory;
+pub mod method_choice;
+
+#[cfg(test)]
+pub(crate) mod test_rhf;

@@ -781,6 +781,26 @@ mod tests {
     }
 
     #[test]
+    fn result_does_not_depend_on_thread_count() {
+        let basis = toy_basis();
+        let n = basis.n_basis;
+        let t = toy_tensor(n);
+        let eng = DenseAoEri {
+            basis: &basis,
+            tensor: &t,
+        };
+        let (a, b, c) = (coeffs(n, 3, 7), coeffs(n, 6, 8), coeffs(n, 2, 9));
+        let run = |threads: usize| {
+            rayon::ThreadPoolBuilder::new()
+                .num_threads(threads)
+                .build()
+                .unwrap()
+                .install(|| mo_eri_block(&eng, &basis, &a, &b, &c, &b))
+        };
+        assert_eq!(run(1), run(3));
+    }
+
+    #[test]
     fn plan_puts_the_small_pair_first_and_memory_estimate_grows() {
         // (p v | o v) with 1 target, 20 virtuals, 5 occupied
         let p = Plan::choose([1, 20, 5, 20]);

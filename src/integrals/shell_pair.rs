@@ -4,10 +4,12 @@
 //! coefficients E^{ij}_t (see `hermite_expansion`) for x, y and z, with the
 //! Gaussian-product factor exp(−μ|AB|²) folded into the x table.
 
+use crate::basis::normalize::primitive_norm;
 use crate::basis::Shell;
 use crate::integrals::hermite_expansion::{e_len, hermite_e};
 
-/// Primitive pairs whose |c_a c_b| exp(−μ|AB|²) (π/p)^{3/2} falls below this are dropped.
+/// Primitive pairs whose N_a N_b exp(−μ|AB|²) (π/p)^{3/2} (s-type normalised primitives)
+/// falls below this are dropped.
 pub const PRIMITIVE_PAIR_THRESHOLD: f64 = 1e-20;
 
 #[derive(Debug, Clone)]
@@ -45,9 +47,13 @@ impl ShellPair {
                 let mu = alpha * beta / p;
                 let kab = (-mu * ab2).exp();
                 let coef = ca[i] * cb[j];
-                if (coef * kab).abs() * (std::f64::consts::PI / p).powf(1.5)
-                    < PRIMITIVE_PAIR_THRESHOLD
-                {
+                // Screened on the normalised primitives only (not the contraction
+                // coefficients), so that every member pair of a general-contraction family
+                // keeps the same primitive list.
+                // (an exponent-0 "unit" function, used for density fitting, counts as 1)
+                let norm = |x: f64| if x > 0.0 { primitive_norm(x, 0) } else { 1.0 };
+                let nab = norm(alpha) * norm(beta);
+                if nab * kab * (std::f64::consts::PI / p).powf(1.5) < PRIMITIVE_PAIR_THRESHOLD {
                     continue;
                 }
                 let mut center = [0.0; 3];

@@ -6,6 +6,7 @@
 //!   `uncertainty`: which band pairs may be in the wrong order.
 //! - `valence`: the entry point, `valence::predict`. `frozen_core`: core orbital counts.
 //! - `bench`: the `bandcast bench ep2` workload.
+//! - `core`: core-level (1s) binding energies and shifts, ΔSCF with localised holes.
 pub mod annotate;
 pub mod band;
 pub mod bands;

@@ -319,14 +319,34 @@ fn method_energies(
                 })
                 .collect())
         }
-        // Plug-in points for the correlation module (bandcast::correlation::eom_ip).
-        Method::EomCcsd => Err(not_available(Method::EomCcsd)),
-        Method::EomMp2 => Err(not_available(Method::EomMp2)),
+        // bandcast::correlation::eom_ip: one EOM root started from each set's representative.
+        Method::EomCcsd | Method::EomMp2 => {
+            use crate::correlation::eom_ip::{band_energies, EomMethod};
+            let m = if opts.method == Method::EomCcsd {
+                EomMethod::Ccsd
+            } else {
+                EomMethod::Mbpt2
+            };
+            let reps: Vec<usize> = sets.iter().map(|s| s.representative()).collect();
+            let _ = (s, n_core);
+            let (res, notes) = band_energies(
+                mol,
+                basis,
+                wf,
+                &reps,
+                m,
+                opts.frozen_core,
+                Some(opts.memory_bytes as f64),
+            )?;
+            warnings.extend(notes);
+            Ok(res
+                .into_iter()
+                .map(|(ie, w)| BandEnergy {
+                    ie,
+                    pole_strength: None,
+                    one_hole_weight: Some(w),
+                })
+                .collect())
+        }
     }
-}
-
-fn not_available(m: Method) -> Error {
-    Error::input(format!(
-        "the method '{m}' is not available yet in this build; use ep2, dscf or koopmans"
-    ))
 }

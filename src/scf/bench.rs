@@ -20,8 +20,9 @@ pub struct Case {
     pub one_thread: bool,
 }
 
-/// The default cases; `quick` keeps only the small ones.
-pub fn cases(quick: bool) -> Vec<Case> {
+/// The cases: `quick` keeps only the two small ones; `guanine` adds guanine/def2-TZVPP
+/// (integral-direct, long).
+pub fn cases(quick: bool, guanine: bool) -> Vec<Case> {
     let mut v = vec![
         Case {
             molecule: "water",
@@ -40,6 +41,8 @@ pub fn cases(quick: bool) -> Vec<Case> {
             basis: "def2-TZVPP",
             one_thread: true,
         });
+    }
+    if guanine {
         v.push(Case {
             molecule: "guanine",
             basis: "def2-TZVPP",
@@ -61,10 +64,23 @@ pub struct CaseResult {
     /// Wall time (s) on the default thread pool: setup (one-electron integrals, SAD) and total.
     pub seconds: f64,
     pub threads: usize,
+    /// CPU seconds of all threads during the timed run (comparable on a loaded machine).
+    pub cpu_seconds: Option<f64>,
     /// Wall time on one thread, when measured.
     pub seconds_one_thread: Option<f64>,
     /// Peak resident memory of the process so far (VmHWM, MiB), when readable.
     pub peak_mib: Option<f64>,
+}
+
+/// CPU time (user + system, all threads) of the process so far, from /proc/self/stat
+/// (Linux; clock ticks assumed 100 per second, the Linux default).
+pub fn cpu_seconds() -> Option<f64> {
+    let s = std::fs::read_to_string("/proc/self/stat").ok()?;
+    let rest = &s[s.rfind(')')? + 2..];
+    let f: Vec<&str> = rest.split_whitespace().collect();
+    let ut: f64 = f.get(11)?.parse().ok()?;
+    let st: f64 = f.get(12)?.parse().ok()?;
+    Some((ut + st) / 100.0)
 }
 
 /// Peak resident set size from /proc/self/status (Linux), MiB.
@@ -75,16 +91,24 @@ pub fn peak_memory_mib() -> Option<f64> {
     Some(kb / 1024.0)
 }
 
-fn time_one(dir: &Path, case: &Case) -> Result<(f64, scf::Wavefunction, String, usize)> {
+type Timed = (f64, Option<f64>, scf::Wavefunction, String, usize);
+
+fn time_one(dir: &Path, case: &Case) -> Result<Timed> {
     let path = dir.join(format!("{}.xyz", case.molecule));
     let mol = read_xyz(&path, LengthUnit::Angstrom)?;
     let b = basis::load(case.basis, &mol, None)?;
     let t0 = Instant::now();
+    let c0 = cpu_seconds();
     let opts = ScfOptions::default();
     let mut ctx = ScfContext::new(&mol, &b, opts.lindep_threshold)?;
     let wf = ctx.run(&mol, &opts, &mut |_| {})?;
+    let cpu = match (c0, cpu_seconds()) {
+        (Some(a), Some(b)) => Some(b - a),
+        _ => None,
+    };
     Ok((
         t0.elapsed().as_secs_f64(),
+        cpu,
         wf,
         ctx.last_builder.clone(),
         b.n_basis,
@@ -95,17 +119,18 @@ fn time_one(dir: &Path, case: &Case) -> Result<(f64, scf::Wavefunction, String, 
 pub fn run_scf_bench(
     dir: &Path,
     quick: bool,
+    guanine: bool,
     report: &mut dyn FnMut(&CaseResult),
 ) -> Result<Vec<CaseResult>> {
     let mut out = Vec::new();
-    for case in cases(quick) {
-        let (seconds, wf, builder, n_basis) = time_one(dir, &case)?;
+    for case in cases(quick, guanine) {
+        let (seconds, cpu, wf, builder, n_basis) = time_one(dir, &case)?;
         let seconds_one_thread = if case.one_thread && rayon::current_num_threads() > 1 {
             let pool = rayon::ThreadPoolBuilder::new()
                 .num_threads(1)
                 .build()
                 .map_err(|e| Error::computation(format!("thread pool: {e}")))?;
-            let (t1, w1, _, _) = pool.install(|| time_one(dir, &case))?;
+            let (t1, _, w1, _, _) = pool.install(|| time_one(dir, &case))?;
             if (w1.energy - wf.energy).abs() > 1e-10 {
                 return Err(Error::computation(format!(
                     "{} / {}: energies on 1 and {} threads differ by {:.2e} Eh",
@@ -135,6 +160,7 @@ pub fn run_scf_bench(
             iterations: wf.iterations,
             seconds,
             threads: rayon::current_num_threads(),
+            cpu_seconds: cpu,
             seconds_one_thread,
             peak_mib: peak_memory_mib(),
         };
@@ -155,7 +181,7 @@ pub fn format_result(r: &CaseResult) -> String {
         None => "1 thread not timed".into(),
     };
     format!(
-        "scf  {:<10} {:<11} {:>4} fn  {:>3} it  {:>8.2} s on {} threads  ({})  peak {:>7.0} MiB  \
+        "scf  {:<10} {:<11} {:>4} fn  {:>3} it  {:>8.2} s on {} threads, {:.1} CPU-s  ({})  peak {:>7.0} MiB  \
          E = {:.8}  HOMO {:.4} eV  [{}]",
         r.molecule,
         r.basis,
@@ -163,6 +189,7 @@ pub fn format_result(r: &CaseResult) -> String {
         r.iterations,
         r.seconds,
         r.threads,
+        r.cpu_seconds.unwrap_or(f64::NAN),
         speed,
         r.peak_mib.unwrap_or(f64::NAN),
         r.energy,

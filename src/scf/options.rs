@@ -57,6 +57,8 @@ pub enum FockMethod {
 }
 
 /// Options of one SCF run. `ScfOptions::default()` is RHF, SAD guess, aufbau, DIIS.
+/// Progress lines: pass a callback to `run_logged` / `ScfContext::run`; threads: run inside
+/// a rayon `ThreadPool::install` (the result does not depend on the thread count).
 #[derive(Debug, Clone)]
 pub struct ScfOptions {
     pub reference: Reference,
@@ -82,8 +84,6 @@ pub struct ScfOptions {
     pub fock: FockMethod,
     /// Schwarz / density screening threshold for two-electron integrals.
     pub screening: f64,
-    /// 0 silent, 1 one line per iteration on stderr.
-    pub verbosity: u8,
 }
 
 impl Default for ScfOptions {
@@ -102,7 +102,6 @@ impl Default for ScfOptions {
             lindep_threshold: 1e-7,
             fock: FockMethod::Auto,
             screening: 1e-12,
-            verbosity: 0,
         }
     }
 }

@@ -25,6 +25,10 @@ use super::hole_check::{judge, HoleStatus};
 use super::population::orbital_population_on;
 use super::result::HoleAttempt;
 
+/// Iteration limit of one cation start (the SCF controller has tried DIIS, level shifts and
+/// damping by then; a start that needs more is recorded as failed and the next one tried).
+pub const MAX_ITER: usize = 100;
+
 /// Everything a cation start needs.
 pub struct HoleSetup<'a> {
     pub cation: &'a Molecule,
@@ -55,7 +59,7 @@ pub struct CationState {
 
 fn base_options(setup: &HoleSetup) -> ScfOptions {
     ScfOptions {
-        max_iter: 200,
+        max_iter: MAX_ITER,
         memory_budget_bytes: setup.memory_budget_bytes,
         ..ScfOptions::default()
     }

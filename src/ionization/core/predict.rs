@@ -247,7 +247,18 @@ pub fn flexible_basis(
         CoreBasis::Uncontract => uncontract(plain, hole_atoms, 0),
         CoreBasis::UncontractSp => uncontract(plain, hole_atoms, 1),
         CoreBasis::Named(name) => {
-            let donor = basis::load(name, mol, None)?;
+            // Load the donor set for the hole atoms only (it may lack other elements, e.g. a
+            // core-valence set without hydrogen), then put the shells back on their atoms.
+            let sub = Molecule {
+                atoms: hole_atoms.iter().map(|&a| mol.atoms[a].clone()).collect(),
+                charge: 0,
+                multiplicity: 1,
+                name: mol.name.clone(),
+            };
+            let mut donor = basis::load(name, &sub, None)?;
+            for sh in &mut donor.shells {
+                sh.atom = hole_atoms[sh.atom];
+            }
             replace_atoms(plain, &donor, hole_atoms)
         }
     })
@@ -363,6 +374,22 @@ fn ionise_atom(ctx: &Context, atom: usize) -> Result<CoreLevel> {
             100.0 * loc.population
         ));
     }
+    if !ctx.opts.localise && loc.rotated() {
+        let pop = best.attempt.hole_population.unwrap_or(0.0);
+        notes.push(if pop > 0.75 {
+            format!(
+                "started from the canonical (delocalised) 1s, the SCF localised the hole on \
+                 {label} by itself ({:.0} % there): a hole spread over equivalent atoms is not a \
+                 stable Hartree–Fock solution",
+                100.0 * pop
+            )
+        } else {
+            format!(
+                "canonical (delocalised) hole kept: {:.0} % on {label}",
+                100.0 * pop
+            )
+        });
+    }
     if spin_contaminated(wf.s2) {
         notes.push(format!(
             "⟨S²⟩ = {:.3} is far from 0.75: the cation is spin-contaminated",
@@ -417,23 +444,20 @@ fn ionise_atom(ctx: &Context, atom: usize) -> Result<CoreLevel> {
 }
 
 /// The starts for one hole. Thorough: all of them. Otherwise stop at the first start that
-/// holds the hole with a clean ⟨S²⟩.
+/// holds the hole.
 fn search(setup: &HoleSetup, scf: &mut ScfContext, thorough: bool) -> Vec<CationState> {
     let mut states: Vec<CationState> = Vec::new();
-    let good = |s: &CationState| {
-        s.attempt.status == HoleStatus::Held && !spin_contaminated(s.attempt.s2.unwrap_or(9.0))
-    };
+    let held = |s: &CationState| s.attempt.status == HoleStatus::Held;
     for start in ["mom", "imom"] {
         let st = run_start(setup, scf, start);
-        let ok = good(&st);
+        let ok = held(&st);
         states.push(st);
         if ok && !thorough {
             return states;
         }
     }
     let rohf = run_start(setup, scf, "rohf");
-    let from = rohf.wf.is_some() && rohf.attempt.status == HoleStatus::Held;
-    if from {
+    if held(&rohf) {
         let u = run_from_rohf(setup, scf, rohf.wf.as_ref().expect("converged"));
         states.push(rohf);
         states.push(u);
