@@ -260,12 +260,20 @@ fn open_shell_ep2_and_missing_methods_are_input_errors() {
     let k = predict_with(&oh, &b, &wf, &opts(Method::Koopmans)).unwrap();
     assert!(k.bands.iter().any(|b| b.label.ends_with('α')));
     assert!(k.bands.iter().any(|b| b.label.ends_with('β')));
-    // EOM-IP here is built on a closed-shell RHF reference: an open-shell one is refused.
+    // EOM-IP is closed-shell only: an open-shell reference is an input error, while a
+    // closed shell gets bands with one-hole weights (checked in tests/correlation.rs).
+    let w = mol(WATER);
+    let bw = basis(&w, "sto-3g");
     for m in [Method::EomCcsd, Method::EomMp2] {
         assert!(matches!(
             predict_with(&oh, &b, &wf, &opts(m)),
             Err(Error::Input { .. })
         ));
+        let r = predict(&w, &bw, &opts(m)).unwrap();
+        assert!(r
+            .bands
+            .iter()
+            .all(|b| b.one_hole_weight.is_some() && b.method == m.name()));
     }
 }
 

@@ -179,7 +179,10 @@ pub fn run(args: Args) -> Result<()> {
                 .photon
                 .map(|p| p.name())
                 .unwrap_or_else(|| "not given".into()),
-            measured_file: measured_file.clone(),
+            measured_file: match first_comment(&args.measured) {
+                Some(c) => format!("{measured_file} — its header says: {c}"),
+                None => measured_file.clone(),
+            },
             region: match args.region {
                 Region::Valence => "valence".into(),
                 Region::Core => "core".into(),
@@ -206,6 +209,16 @@ pub fn run(args: Args) -> Result<()> {
     }
     print_table(&cmp, &args, &method);
     Ok(())
+}
+
+/// The first `#` comment of the measured file (so a report says when data are synthetic).
+fn first_comment(path: &std::path::Path) -> Option<String> {
+    let text = std::fs::read_to_string(path).ok()?;
+    text.lines()
+        .map(str::trim)
+        .find(|l| l.starts_with('#'))
+        .map(|l| l.trim_start_matches('#').trim().to_string())
+        .filter(|l| !l.is_empty())
 }
 
 fn molecule_name(args: &Args) -> String {
