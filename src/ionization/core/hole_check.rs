@@ -12,6 +12,11 @@
 //!   Orbital relaxation lowers a 1s binding energy by 10–20 eV relative to Koopmans for
 //!   second-row atoms (common practice), about 5 %: anything below `COLLAPSE_FRACTION`
 //!   of the Koopmans value is no core hole.
+//! - *excited cation*: the SCF settles on a state of the core-ionised cation that lies
+//!   above the Koopmans energy (seen with strongly spin-contaminated UHF solutions). The
+//!   relaxed hole always lies below Koopmans, since relaxation can only lower the cation's
+//!   energy from the frozen-orbital one (variational principle; common practice), so such a
+//!   state is not the one a photoelectron line belongs to, and the next start is tried.
 
 /// Least Löwdin population of the final hole on the target atom for a localised hole.
 pub const MIN_HOLE_POPULATION: f64 = 0.7;
@@ -29,6 +34,8 @@ pub enum HoleStatus {
     Escaped,
     /// The vacancy fell into the valence shell.
     Collapsed,
+    /// The cation converged above the Koopmans (frozen-orbital) energy: an excited state.
+    Excited,
     /// The SCF did not converge.
     Failed,
 }
@@ -39,6 +46,8 @@ pub enum HoleStatus {
 pub fn judge(hole_population: f64, dscf: f64, koopmans: f64, localised: bool) -> HoleStatus {
     if dscf < COLLAPSE_FRACTION * koopmans {
         HoleStatus::Collapsed
+    } else if dscf > koopmans {
+        HoleStatus::Excited
     } else if localised && hole_population < MIN_HOLE_POPULATION {
         HoleStatus::Escaped
     } else {
@@ -62,6 +71,8 @@ mod tests {
         assert_eq!(judge(0.5, 291.0, 305.0, true), HoleStatus::Escaped);
         assert_eq!(judge(0.5, 414.0, 426.0, false), HoleStatus::Held);
         assert_eq!(judge(0.1, 14.0, 305.0, true), HoleStatus::Collapsed);
+        // A ΔSCF above Koopmans cannot be the relaxed hole (variational principle).
+        assert_eq!(judge(1.0, 827.6, 305.4, true), HoleStatus::Excited);
         assert!(spin_contaminated(1.8));
         assert!(!spin_contaminated(0.7602));
     }

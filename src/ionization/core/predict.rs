@@ -472,6 +472,9 @@ fn status_word(s: HoleStatus) -> &'static str {
         HoleStatus::Held => "held",
         HoleStatus::Escaped => "the hole escaped from the atom",
         HoleStatus::Collapsed => "the hole collapsed into the valence shell",
+        HoleStatus::Excited => {
+            "the cation settled above the Koopmans energy (an excited state, not the relaxed hole)"
+        }
         HoleStatus::Failed => "did not converge",
     }
 }
