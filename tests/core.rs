@@ -21,7 +21,7 @@ use bandcast::ionization::Region;
 const BASIS: &str = "cc-pVDZ";
 
 fn gw100(name: &str) -> PathBuf {
-    Path::new("/work/shared/data/gw100").join(format!("{name}.xyz"))
+    Path::new(concat!(env!("CARGO_MANIFEST_DIR"), "/tests/data/gw100")).join(format!("{name}.xyz"))
 }
 
 fn load(name: &str) -> Molecule {
@@ -29,7 +29,7 @@ fn load(name: &str) -> Molecule {
 }
 
 /// CO at its experimental bond length r_e = 1.1283 Å (Huber & Herzberg, *Constants of
-/// Diatomic Molecules* (1979), from memory). The GW100 file in /work/shared gives 1.283 Å,
+/// Diatomic Molecules* (1979), from memory). The GW100 file in tests/data/gw100 gives 1.283 Å,
 /// which is not the CO molecule's bond length, so it is not used here.
 fn carbon_monoxide() -> Molecule {
     let mut m = parse_xyz(

@@ -13,15 +13,9 @@ use bandcast::scf::{self, ScfOptions, Wavefunction};
 use bandcast::units::HARTREE_TO_EV;
 
 fn gw100(name: &str) -> Molecule {
-    let p = format!(
-        "{}/../shared/data/gw100/{name}.xyz",
-        env!("CARGO_MANIFEST_DIR")
-    );
-    let p = if Path::new(&p).exists() {
-        p
-    } else {
-        format!("/work/shared/data/gw100/{name}.xyz")
-    };
+    // GW100 structures (van Setten et al., J. Chem. Theory Comput. 11 (2015) 5665), copied
+    // into tests/data/gw100 so the suite runs from any clone.
+    let p = format!("{}/tests/data/gw100/{name}.xyz", env!("CARGO_MANIFEST_DIR"));
     read_xyz(Path::new(&p), LengthUnit::Angstrom).unwrap()
 }
 

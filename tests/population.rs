@@ -20,7 +20,8 @@ struct Case {
 }
 
 fn case(file: &str, basis: &str) -> Case {
-    let p = std::path::Path::new("/work/shared/data/gw100").join(format!("{file}.xyz"));
+    let p = std::path::Path::new(concat!(env!("CARGO_MANIFEST_DIR"), "/tests/data/gw100"))
+        .join(format!("{file}.xyz"));
     let mol = read_xyz(&p, LengthUnit::Angstrom).unwrap();
     let basis = bandcast::basis::load(basis, &mol, None).unwrap();
     let wf = run(&mol, &basis, &ScfOptions::default()).unwrap();

@@ -10,7 +10,7 @@ use bandcast::chem::{Atom, Molecule};
 use bandcast::scf::{self, FockMethod, Reference, ScfOptions, Wavefunction};
 use bandcast::units::HARTREE_TO_EV;
 
-const GW100: &str = "/work/shared/data/gw100";
+const GW100: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/tests/data/gw100");
 
 fn atoms_bohr(list: &[(u32, [f64; 3])]) -> Molecule {
     Molecule::new(

@@ -7,7 +7,8 @@ use std::f64::consts::PI;
 use std::path::Path;
 
 fn gw100(name: &str) -> Molecule {
-    let p = Path::new("/work/shared/data/gw100").join(format!("{name}.xyz"));
+    let p = Path::new(concat!(env!("CARGO_MANIFEST_DIR"), "/tests/data/gw100"))
+        .join(format!("{name}.xyz"));
     read_xyz(&p, LengthUnit::Angstrom).unwrap()
 }
 

@@ -78,7 +78,10 @@ mod tests {
     /// (textbook MO diagram, common practice).
     #[test]
     fn water_valence_sets() {
-        let p = std::path::Path::new("/work/shared/data/gw100/water.xyz");
+        let p = std::path::Path::new(concat!(
+            env!("CARGO_MANIFEST_DIR"),
+            "/tests/data/gw100/water.xyz"
+        ));
         let mol = read_xyz(p, LengthUnit::Angstrom).unwrap();
         let basis = crate::basis::load("sto-3g", &mol, None).unwrap();
         let wf = crate::scf::run(&mol, &basis, &crate::scf::ScfOptions::default()).unwrap();

@@ -31,7 +31,7 @@ pub enum Workload {
 #[derive(clap::Args, Debug)]
 pub struct IntegralsArgs {
     /// Molecule/basis runs as FILE.xyz:BASIS (Å). Default: benzene with cc-pVDZ and water
-    /// with cc-pVQZ from /work/shared/data/gw100 when those files exist.
+    /// with cc-pVQZ from tests/data/gw100 when those files exist.
     #[arg(value_name = "FILE.xyz:BASIS")]
     pub runs: Vec<String>,
     /// Skip the per-class table.
@@ -61,7 +61,7 @@ pub fn run(args: Args) -> Result<()> {
     }
 }
 
-const DEFAULT_DIR: &str = "/work/shared/data/gw100";
+const DEFAULT_DIR: &str = "tests/data/gw100";
 
 fn integrals(a: IntegralsArgs) -> Result<()> {
     let mut runs: Vec<(PathBuf, String)> = Vec::new();

@@ -8,7 +8,7 @@ pub struct BenchArgs {
     #[arg(long)]
     pub quick: bool,
     /// Directory holding benzene.xyz and guanine.xyz (GW100 structures, Å).
-    #[arg(long, value_name = "DIR", default_value = "/work/shared/data/gw100")]
+    #[arg(long, value_name = "DIR", default_value = "tests/data/gw100")]
     pub dir: std::path::PathBuf,
 }
 

@@ -444,7 +444,7 @@ pub struct BenchArgs {
     #[arg(long)]
     pub guanine: bool,
     /// Directory holding water.xyz, benzene.xyz and guanine.xyz (GW100 structures, Å).
-    #[arg(long, value_name = "DIR", default_value = "/work/shared/data/gw100")]
+    #[arg(long, value_name = "DIR", default_value = "tests/data/gw100")]
     pub dir: std::path::PathBuf,
 }
 

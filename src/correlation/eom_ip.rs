@@ -638,7 +638,10 @@ mod explore {
         let name = std::env::var("MOL").unwrap_or("water".into());
         let bas = std::env::var("BASIS").unwrap_or("def2-tzvpp".into());
         let mol = read_xyz(
-            std::path::Path::new(&format!("/work/shared/data/gw100/{name}.xyz")),
+            std::path::Path::new(&format!(
+                "{}/tests/data/gw100/{name}.xyz",
+                env!("CARGO_MANIFEST_DIR")
+            )),
             LengthUnit::Angstrom,
         )
         .unwrap();

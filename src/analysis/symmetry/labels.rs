@@ -558,7 +558,8 @@ mod tests {
     }
 
     fn setup(file: &str, basis: &str) -> (PointGroup, Molecule, BasisSet, Vec<OrbitalLabel>) {
-        let p = std::path::Path::new("/work/shared/data/gw100").join(format!("{file}.xyz"));
+        let p = std::path::Path::new(concat!(env!("CARGO_MANIFEST_DIR"), "/tests/data/gw100"))
+            .join(format!("{file}.xyz"));
         let mol = read_xyz(&p, LengthUnit::Angstrom).unwrap();
         let b = crate::basis::load(basis, &mol, None).unwrap();
         let pg = detect_point_group(&mol, DEFAULT_TOLERANCE);
