@@ -158,7 +158,7 @@ fn unreachable_bands_are_left_out_and_said() {
 
 #[test]
 fn gelius_ratio_follows_the_table() {
-    // Yeh & Lindau (1985) at 1486.6 eV via pymatgen: σ(O 2p) = 2.4e-4 Mb for 4 electrons,
+    // Yeh & Lindau (1985) at 1486.6 eV (reproduced table): σ(O 2p) = 2.4e-4 Mb for 4 electrons,
     // σ(C 2p) = 1.0e-5 Mb for 2 electrons → per electron ratio 12.
     let o = band("o", 12.0, &[("O1", "2p", 1.0)], Region::Valence);
     let c = band("c", 14.0, &[("C2", "2p", 1.0)], Region::Valence);

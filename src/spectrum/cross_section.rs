@@ -15,10 +15,9 @@
 //! Source of the atomic values: J.-J. Yeh & I. Lindau, "Atomic subshell photoionization cross
 //! sections and asymmetry parameters: 1 ≤ Z ≤ 103", At. Data Nucl. Data Tables 32 (1985) 1
 //! (Hartree–Fock–Slater).
-//! - 1486.6 eV (Al Kα): values as tabulated from Yeh & Lindau (1985) in the general-purpose
-//!   materials library pymatgen, file
-//!   `pymatgen/analysis/atomic_subshell_photoionization_cross_sections.csv` (read for this
-//!   project; published).
+//! - 1486.6 eV (Al Kα): Yeh & Lindau (1985) values as reproduced in the data file of an
+//!   open-source general-purpose materials library (read for this project; the published
+//!   table's numbers, not re-read from the paper itself).
 //! - 1253.6 eV (Mg Kα): derived by the project from the 1486.6 eV values with the
 //!   high-energy law σ_nl ∝ (hν)^-(7/2 + l) (H. A. Bethe & E. E. Salpeter, *Quantum Mechanics
 //!   of One- and Two-Electron Atoms*, 1957, §71; common practice). Not a table value: an
@@ -40,7 +39,7 @@ use crate::units::{BOHR_TO_ANGSTROM, FINE_STRUCTURE, HARTREE_TO_EV};
 /// Where a cross section came from.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Provenance {
-    /// Yeh & Lindau (1985) via the pymatgen table.
+    /// Yeh & Lindau (1985), from a reproduction of the published table.
     YehLindau,
     /// Yeh & Lindau (1985), typed from memory.
     YehLindauFromMemory,
@@ -59,7 +58,7 @@ const E_MGKA: f64 = 1253.6;
 const E_ALKA: f64 = 1486.6;
 
 /// (Z, n, l, electrons in the free-atom subshell, σ at 21.2 eV [memory], σ at 40.8 eV
-/// [memory], σ at 1486.6 eV [Yeh & Lindau via pymatgen]). `None`: not tabulated (a 1s core
+/// [memory], σ at 1486.6 eV [Yeh & Lindau, reproduced table]). `None`: not tabulated (a 1s core
 /// level cannot be reached by He I/He II photons).
 type Row = (u32, u32, u32, f64, Option<f64>, Option<f64>, f64);
 const TABLE: &[Row] = &[
@@ -219,7 +218,7 @@ mod tests {
 
     #[test]
     fn table_lookup() {
-        // Yeh & Lindau (1985) via pymatgen: O 2p at 1486.6 eV = 2.4e-4 Mb.
+        // Yeh & Lindau (1985), reproduced table: O 2p at 1486.6 eV = 2.4e-4 Mb.
         let (s, occ, p) = subshell_mb(8, 2, 1, 1486.6).unwrap();
         assert_eq!((s, occ, p), (2.4e-4, 4.0, Provenance::YehLindau));
         // Mg Kα scaling makes the cross section larger at the lower energy.
