@@ -6,7 +6,8 @@
 //! - `cartesian`: Cartesian component order.
 //! - `hermite_expansion`, `hermite_coulomb`: McMurchie–Davidson E and R quantities.
 //! - `overlap`, `kinetic`, `nuclear`, `dipole`: one-electron matrices (driver in `one_electron`).
-//! - `shell_pair`, `eri`: the two-electron engine; `schwarz` screening helpers.
+//! - `shell_pair`, `vrr`, `hrr`, `quartet`, `family_cache`, `eri`: the two-electron engine
+//!   (Head-Gordon–Pople); `schwarz` screening helpers.
 //! - `density_fitting`: (P|Q) and (P|μν) for density fitting.
 //! - `bench`: workloads behind `bandcast bench integrals`.
 pub mod bench;
@@ -15,16 +16,20 @@ pub mod cartesian;
 pub mod density_fitting;
 pub mod dipole;
 pub mod eri;
+pub mod family_cache;
 pub mod hermite_coulomb;
 pub mod hermite_expansion;
+pub mod hrr;
 pub mod kinetic;
 pub mod mo_transform;
 pub mod nuclear;
 pub mod one_electron;
 pub mod overlap;
+pub mod quartet;
 pub mod schwarz;
 pub mod shell_pair;
 pub mod transform;
+pub mod vrr;
 
 pub use density_fitting::{eri2c, eri3c, eri3c_bytes, DfEngine};
 pub use dipole::dipole;

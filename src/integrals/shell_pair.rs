@@ -1,102 +1,172 @@
-//! Precomputed shell-pair data for the two-electron engine: for every primitive pair that
-//! survives screening, the exponent sum p, the product centre P, the product of the
-//! normalised contraction coefficients and the one-dimensional Hermite expansion
-//! coefficients E^{ij}_t (see `hermite_expansion`) for x, y and z, with the
-//! Gaussian-product factor exp(−μ|AB|²) folded into the x table.
+//! Precomputed data of a pair of shells — or of a pair of general-contraction families,
+//! whose members share centre, l and exponents and differ only in contraction
+//! coefficients — for the two-electron engine: per surviving primitive pair the exponent sum
+//! ζ = α + β, the product centre P, P − A and K_AB/ζ with K_AB = exp(−αβ/ζ |AB|²), plus the
+//! contraction-coefficient products of every member pair.
+//!
+//! One-centre pairs (A = B) have P = A and K_AB = 1 whatever the exponents, so every
+//! primitive pair is determined by ζ alone: pairs with the same ζ (in particular (α_i, α_j)
+//! and (α_j, α_i) of a shell with itself or with another member of its family) are merged
+//! into one, their coefficient products summed. For a 9-primitive s family this takes the
+//! pair's 81 primitive pairs down to 45.
 
 use crate::basis::normalize::primitive_norm;
 use crate::basis::Shell;
-use crate::integrals::hermite_expansion::{e_len, hermite_e};
 
-/// Primitive pairs whose N_a N_b exp(−μ|AB|²) (π/p)^{3/2} (s-type normalised primitives)
-/// falls below this are dropped.
+/// Primitive pairs whose N_a N_b exp(−μ|AB|²) (π/ζ)^{3/2} (s-type normalised primitives)
+/// falls below this are dropped (coefficients left out, so that every member pair of a
+/// general-contraction family keeps the same primitive list).
 pub const PRIMITIVE_PAIR_THRESHOLD: f64 = 1e-20;
 
 #[derive(Debug, Clone)]
-pub struct PrimitivePair {
-    pub p: f64,
-    pub center: [f64; 3],
-    /// Product of the two normalised contraction coefficients.
-    pub coef: f64,
-    /// coef / p (used in the two-electron prefactor 2π^{5/2}/(pq√(p+q))).
-    pub coef_over_p: f64,
-}
-
-#[derive(Debug, Clone)]
-pub struct ShellPair {
+pub struct PairData {
     pub la: usize,
     pub lb: usize,
-    pub prims: Vec<PrimitivePair>,
-    /// For primitive k: E tables for x, y, z at k * 3 * e_len + d * e_len.
-    pub e: Vec<f64>,
-    pub e_len: usize,
+    /// A − B.
+    pub ab: [f64; 3],
+    /// Number of member pairs (1 for a pair of plain shells); member (i, j) of the two
+    /// families has index i · n_b + j.
+    pub n_members: usize,
+    pub n_prim: usize,
+    pub zeta: Vec<f64>,
+    pub center: Vec<[f64; 3]>,
+    /// P − A.
+    pub pa: Vec<[f64; 3]>,
+    /// K_AB / ζ, times the coefficient product when there is a single member.
+    pub kpref: Vec<f64>,
+    /// Coefficient products, member-major: coef[m · n_prim + k].
+    pub coef: Vec<f64>,
+    /// Screening bound of each primitive pair (Cauchy–Schwarz factor times the largest
+    /// |coefficient product| of its members), in descending order once the engine has set
+    /// them (`set_bounds`).
+    pub bound: Vec<f64>,
 }
 
-impl ShellPair {
-    /// Pair data from two shells with normalised coefficients `ca`, `cb`
-    /// (see `crate::basis::normalize::contracted_coefficients`).
-    pub fn new(sa: &Shell, sb: &Shell, ca: &[f64], cb: &[f64]) -> Self {
+impl PairData {
+    /// Pair data of shells `sa` and `sb` for the members whose normalised coefficients (see
+    /// `crate::basis::normalize::contracted_coefficients`) are `ca` and `cb` (one entry for a
+    /// plain shell; all members share the exponents of `sa`, resp. `sb`).
+    pub fn new(sa: &Shell, sb: &Shell, ca: &[&[f64]], cb: &[&[f64]]) -> Self {
         let (la, lb) = (sa.l, sb.l);
-        let el = e_len(la, lb);
-        let mut prims = Vec::new();
-        let mut e = Vec::new();
-        let ab2: f64 = (0..3).map(|k| (sa.center[k] - sb.center[k]).powi(2)).sum();
+        let ab = [
+            sa.center[0] - sb.center[0],
+            sa.center[1] - sb.center[1],
+            sa.center[2] - sb.center[2],
+        ];
+        let ab2 = ab[0] * ab[0] + ab[1] * ab[1] + ab[2] * ab[2];
+        let one_centre = sa.center == sb.center;
+        let n_members = ca.len() * cb.len();
+        // (ζ, P, P − A, K_AB, coefficient product per member)
+        let mut prims: Vec<(f64, [f64; 3], [f64; 3], f64, Vec<f64>)> = Vec::new();
         for (i, &alpha) in sa.exponents.iter().enumerate() {
             for (j, &beta) in sb.exponents.iter().enumerate() {
-                let p = alpha + beta;
-                let mu = alpha * beta / p;
+                let zeta = alpha + beta;
+                let coefs: Vec<f64> = ca
+                    .iter()
+                    .flat_map(|x| cb.iter().map(move |y| x[i] * y[j]))
+                    .collect();
+                if one_centre {
+                    if let Some(pr) = prims.iter_mut().find(|pr| pr.0 == zeta) {
+                        for (s, c) in pr.4.iter_mut().zip(&coefs) {
+                            *s += c;
+                        }
+                        continue;
+                    }
+                    prims.push((zeta, sa.center, [0.0; 3], 1.0, coefs));
+                    continue;
+                }
+                let mu = alpha * beta / zeta;
                 let kab = (-mu * ab2).exp();
-                let coef = ca[i] * cb[j];
-                // Screened on the normalised primitives only (not the contraction
-                // coefficients), so that every member pair of a general-contraction family
-                // keeps the same primitive list.
                 // (an exponent-0 "unit" function, used for density fitting, counts as 1)
                 let norm = |x: f64| if x > 0.0 { primitive_norm(x, 0) } else { 1.0 };
                 let nab = norm(alpha) * norm(beta);
-                if nab * kab * (std::f64::consts::PI / p).powf(1.5) < PRIMITIVE_PAIR_THRESHOLD {
+                if nab * kab * (std::f64::consts::PI / zeta).powf(1.5) < PRIMITIVE_PAIR_THRESHOLD {
                     continue;
                 }
-                let mut center = [0.0; 3];
-                let base = e.len();
-                e.resize(base + 3 * el, 0.0);
+                let mut p = [0.0; 3];
+                let mut pa = [0.0; 3];
                 for d in 0..3 {
-                    center[d] = (alpha * sa.center[d] + beta * sb.center[d]) / p;
-                    hermite_e(
-                        la,
-                        lb,
-                        center[d] - sa.center[d],
-                        center[d] - sb.center[d],
-                        0.5 / p,
-                        if d == 0 { kab } else { 1.0 },
-                        &mut e[base + d * el..base + (d + 1) * el],
-                    );
+                    p[d] = (alpha * sa.center[d] + beta * sb.center[d]) / zeta;
+                    pa[d] = p[d] - sa.center[d];
                 }
-                prims.push(PrimitivePair {
-                    p,
-                    center,
-                    coef,
-                    coef_over_p: coef / p,
-                });
+                prims.push((zeta, p, pa, kab, coefs));
             }
         }
-        ShellPair {
+        let n_prim = prims.len();
+        let mut coef = vec![0.0; n_members * n_prim];
+        for (k, pr) in prims.iter().enumerate() {
+            for m in 0..n_members {
+                coef[m * n_prim + k] = pr.4[m];
+            }
+        }
+        PairData {
             la,
             lb,
-            prims,
-            e,
-            e_len: el,
+            ab,
+            n_members,
+            n_prim,
+            zeta: prims.iter().map(|p| p.0).collect(),
+            center: prims.iter().map(|p| p.1).collect(),
+            pa: prims.iter().map(|p| p.2).collect(),
+            kpref: prims
+                .iter()
+                .map(|p| p.3 / p.0 * if n_members == 1 { p.4[0] } else { 1.0 })
+                .collect(),
+            coef,
+            bound: vec![1.0; n_prim],
         }
     }
 
-    /// The x, y, z tables of primitive pair `k`.
-    #[inline(always)]
-    pub fn tables(&self, k: usize) -> (&[f64], &[f64], &[f64]) {
-        let b = k * 3 * self.e_len;
-        let l = self.e_len;
-        (
-            &self.e[b..b + l],
-            &self.e[b + l..b + 2 * l],
-            &self.e[b + 2 * l..b + 3 * l],
-        )
+    /// Primitive pair `k` alone, coefficient 1 (for the Cauchy–Schwarz factor).
+    pub fn single(&self, k: usize) -> PairData {
+        let c = if self.n_members == 1 {
+            self.coef[k]
+        } else {
+            1.0
+        };
+        PairData {
+            la: self.la,
+            lb: self.lb,
+            ab: self.ab,
+            n_members: 1,
+            n_prim: 1,
+            zeta: vec![self.zeta[k]],
+            center: vec![self.center[k]],
+            pa: vec![self.pa[k]],
+            kpref: vec![self.kpref[k] / c],
+            coef: vec![1.0],
+            bound: vec![1.0],
+        }
+    }
+
+    /// Set the screening bounds from the Cauchy–Schwarz factors q[k] = √max|(ab|ab)_kk| of
+    /// the single primitive pairs and sort the primitive pairs by descending bound.
+    pub fn set_bounds(&mut self, q: &[f64]) {
+        let n = self.n_prim;
+        let bound: Vec<f64> = (0..n)
+            .map(|k| {
+                let c = (0..self.n_members)
+                    .map(|m| self.coef[m * n + k].abs())
+                    .fold(0.0, f64::max);
+                q[k] * c
+            })
+            .collect();
+        let mut order: Vec<usize> = (0..n).collect();
+        // stable: ties keep their construction order
+        order.sort_by(|&x, &y| bound[y].total_cmp(&bound[x]));
+        let perm = |v: &[f64]| order.iter().map(|&k| v[k]).collect::<Vec<f64>>();
+        let perm3 = |v: &[[f64; 3]]| order.iter().map(|&k| v[k]).collect::<Vec<[f64; 3]>>();
+        self.zeta = perm(&self.zeta);
+        self.kpref = perm(&self.kpref);
+        self.center = perm3(&self.center);
+        self.pa = perm3(&self.pa);
+        self.bound = perm(&bound);
+        let mut coef = vec![0.0; self.coef.len()];
+        for m in 0..self.n_members {
+            for (dst, &k) in order.iter().enumerate() {
+                coef[m * n + dst] = self.coef[m * n + k];
+            }
+        }
+        self.coef = coef;
     }
 }
