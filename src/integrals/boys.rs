@@ -67,7 +67,7 @@ pub fn series(m: usize, t: f64) -> f64 {
 }
 
 /// F_0(T), …, F_{m_max}(T) into `out[..=m_max]`.
-#[inline]
+#[inline(never)]
 pub fn boys_array(m_max: usize, t: f64, out: &mut [f64]) {
     debug_assert!(m_max <= M_MAX && out.len() > m_max);
     if t >= T_SWITCH {

@@ -20,7 +20,7 @@ use crate::integrals::cartesian::n_cartesian;
 use crate::integrals::family_cache::FamilyCache;
 use crate::integrals::quartet::{contracted_quartet, ssss, Scratch, ShellMeta};
 use crate::integrals::shell_pair::PairData;
-use crate::integrals::transform::is_identity;
+use crate::integrals::transform::{is_identity, Sparse};
 use rayon::prelude::*;
 use std::cell::RefCell;
 
@@ -78,7 +78,11 @@ impl EriEngine {
                     l: s.l,
                     n_func: s.n_functions(),
                     n_cart: nc,
-                    transform: if is_identity(t, nc) { None } else { Some(t) },
+                    transform: if is_identity(t, nc) {
+                        None
+                    } else {
+                        Some(Sparse::from_dense(t, s.n_functions(), nc))
+                    },
                 }
             })
             .collect();

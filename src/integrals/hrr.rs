@@ -141,7 +141,7 @@ pub fn plan(la: usize, lb: usize) -> &'static HrrPlan {
 
 /// Run the plan on `buf` (rows of length `w`, the inputs already in rows 0..n_in) with
 /// AB = A − B. The outputs end up in rows out_start().. .
-#[inline]
+#[inline(never)]
 pub fn run(plan: &HrrPlan, buf: &mut [f64], w: usize, ab: [f64; 3]) {
     assert!(buf.len() >= plan.n_rows * w);
     let ptr = buf.as_mut_ptr();

@@ -29,9 +29,12 @@ pub struct PairData {
     pub n_members: usize,
     pub n_prim: usize,
     pub zeta: Vec<f64>,
-    pub center: Vec<[f64; 3]>,
-    /// P − A.
-    pub pa: Vec<[f64; 3]>,
+    /// 1/ζ.
+    pub inv_zeta: Vec<f64>,
+    /// P, one array per direction.
+    pub center: [Vec<f64>; 3],
+    /// P − A, one array per direction.
+    pub pa: [Vec<f64>; 3],
     /// K_AB / ζ, times the coefficient product when there is a single member.
     pub kpref: Vec<f64>,
     /// Coefficient products, member-major: coef[m · n_prim + k].
@@ -106,8 +109,9 @@ impl PairData {
             n_members,
             n_prim,
             zeta: prims.iter().map(|p| p.0).collect(),
-            center: prims.iter().map(|p| p.1).collect(),
-            pa: prims.iter().map(|p| p.2).collect(),
+            inv_zeta: prims.iter().map(|p| 1.0 / p.0).collect(),
+            center: std::array::from_fn(|d| prims.iter().map(|p| p.1[d]).collect()),
+            pa: std::array::from_fn(|d| prims.iter().map(|p| p.2[d]).collect()),
             kpref: prims
                 .iter()
                 .map(|p| p.3 / p.0 * if n_members == 1 { p.4[0] } else { 1.0 })
@@ -131,8 +135,9 @@ impl PairData {
             n_members: 1,
             n_prim: 1,
             zeta: vec![self.zeta[k]],
-            center: vec![self.center[k]],
-            pa: vec![self.pa[k]],
+            inv_zeta: vec![self.inv_zeta[k]],
+            center: std::array::from_fn(|d| vec![self.center[d][k]]),
+            pa: std::array::from_fn(|d| vec![self.pa[d][k]]),
             kpref: vec![self.kpref[k] / c],
             coef: vec![1.0],
             bound: vec![1.0],
@@ -155,11 +160,11 @@ impl PairData {
         // stable: ties keep their construction order
         order.sort_by(|&x, &y| bound[y].total_cmp(&bound[x]));
         let perm = |v: &[f64]| order.iter().map(|&k| v[k]).collect::<Vec<f64>>();
-        let perm3 = |v: &[[f64; 3]]| order.iter().map(|&k| v[k]).collect::<Vec<[f64; 3]>>();
         self.zeta = perm(&self.zeta);
+        self.inv_zeta = perm(&self.inv_zeta);
         self.kpref = perm(&self.kpref);
-        self.center = perm3(&self.center);
-        self.pa = perm3(&self.pa);
+        self.center = std::array::from_fn(|d| perm(&self.center[d]));
+        self.pa = std::array::from_fn(|d| perm(&self.pa[d]));
         self.bound = perm(&bound);
         let mut coef = vec![0.0; self.coef.len()];
         for m in 0..self.n_members {
