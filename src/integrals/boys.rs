@@ -66,8 +66,39 @@ pub fn series(m: usize, t: f64) -> f64 {
     (-t).exp() * sum
 }
 
+/// For each m_max, the T above which e^{−T} < 1e−18 (2m+1) F_m(T) for every m < m_max, so
+/// that the upward recursion may leave it out (F_m from its asymptotic form, eq. 9.8.16, an
+/// upper bound close to the value for T ≥ `T_SWITCH`).
+fn no_exp_above() -> &'static [f64; M_MAX + 1] {
+    static TABLE: OnceLock<[f64; M_MAX + 1]> = OnceLock::new();
+    TABLE.get_or_init(|| {
+        let ok = |m: usize, t: f64| {
+            // ln of (2m+1)!! √π / 2^{m+1} T^{−m−1/2}, minus T, against ln 1e−18
+            let mut ln_df = 0.0;
+            let mut k = 2 * m as i64 + 1;
+            while k > 1 {
+                ln_df += (k as f64).ln();
+                k -= 2;
+            }
+            let ln_f = ln_df + 0.5 * std::f64::consts::PI.ln()
+                - (m as f64 + 1.0) * 2f64.ln()
+                - (m as f64 + 0.5) * t.ln();
+            -t < ln_f - 18.0 * 10f64.ln()
+        };
+        let mut out = [f64::INFINITY; M_MAX + 1];
+        for (m_max, o) in out.iter_mut().enumerate() {
+            let mut t = T_SWITCH;
+            while !(0..m_max).all(|m| ok(m, t)) {
+                t += 0.5;
+            }
+            *o = t;
+        }
+        out
+    })
+}
+
 /// F_0(T), …, F_{m_max}(T) into `out[..=m_max]`.
-#[inline(never)]
+#[inline]
 pub fn boys_array(m_max: usize, t: f64, out: &mut [f64]) {
     debug_assert!(m_max <= M_MAX && out.len() > m_max);
     if t >= T_SWITCH {
@@ -76,14 +107,19 @@ pub fn boys_array(m_max: usize, t: f64, out: &mut [f64]) {
         if m_max == 0 {
             return;
         }
-        let ex = (-t).exp();
+        // e^{−T} only matters while it is not negligible next to (2m+1) F_m (upward recursion)
+        let ex = if t < no_exp_above()[m_max] {
+            (-t).exp()
+        } else {
+            0.0
+        };
         for m in 0..m_max {
             out[m + 1] = ((2 * m + 1) as f64 * out[m] - ex) * inv2t;
         }
         return;
     }
     let tab = table();
-    let g = (t / GRID_STEP + 0.5) as usize;
+    let g = (t * (1.0 / GRID_STEP) + 0.5) as usize;
     let dt = g as f64 * GRID_STEP - t;
     let row = &tab[g * N_COLS + m_max..g * N_COLS + m_max + N_TAYLOR];
     // Taylor terms dt^k / k! evaluated independently (short dependency chains).
@@ -185,7 +221,9 @@ mod tests {
     fn all_orders_match_series_and_asymptote() {
         // Series eq. 9.8.9 (Helgaker et al.) at many T; F_m(0) = 1/(2m+1) (common practice).
         let mut out = [0.0; M_MAX + 1];
-        for i in 0..700 {
+        // (up to T = 150: covers the switch to the large-T form and the region where the
+        // upward recursion leaves e^{−T} out)
+        for i in 0..1450 {
             let t = i as f64 * 0.1037;
             boys_array(M_MAX, t, &mut out);
             for m in 0..=M_MAX {

@@ -42,6 +42,8 @@ pub struct EriEngine {
     /// the unit ((NONE, _) when not kept).
     pair_unit: Vec<(u32, u32)>,
     schwarz: Vec<f64>,
+    /// Primitive-quartet screening threshold (see `PRIMITIVE_QUARTET_THRESHOLD`).
+    tau: f64,
     /// Distinguishes engines in the thread-local family cache.
     id: u64,
 }
@@ -144,7 +146,7 @@ impl EriEngine {
                 let ca: Vec<&[f64]> = fa.iter().map(|&x| &coefs[x][..]).collect();
                 let cb: Vec<&[f64]> = fb.iter().map(|&x| &coefs[x][..]).collect();
                 let mut pd = PairData::new(sa, sb, &ca, &cb);
-                if pd.zeta.iter().all(|&z| z > 0.0) {
+                if pd.prims.iter().all(|x| x.zeta > 0.0) {
                     let metas = [
                         &shells[fa[0]],
                         &shells[fb[0]],
@@ -166,13 +168,14 @@ impl EriEngine {
             units,
             pair_unit,
             schwarz: Vec::new(),
+            tau: PRIMITIVE_QUARTET_THRESHOLD,
             id: ENGINE_ID.fetch_add(1, std::sync::atomic::Ordering::Relaxed),
         };
         let diag: Vec<(usize, usize)> = (0..n)
             .flat_map(|a| (0..=a).map(move |b| (a, b)))
             .filter(|&(a, b)| {
                 let (u, _) = eng.pair_unit[a * n + b];
-                u != NONE && eng.units[u as usize].zeta.iter().all(|&z| z > 0.0)
+                u != NONE && eng.units[u as usize].prims.iter().all(|x| x.zeta > 0.0)
             })
             .collect();
         // diagonal quartets (ab|ab) without primitive screening: the bounds must not be
@@ -213,6 +216,15 @@ impl EriEngine {
         eng
     }
 
+    /// As [`EriEngine::new`] with primitive quartets screened at `tau` instead of
+    /// `PRIMITIVE_QUARTET_THRESHOLD` (0 computes every primitive quartet: for checks).
+    pub fn with_primitive_threshold(basis: &BasisSet, tau: f64) -> Self {
+        let mut e = Self::new(basis);
+        e.tau = tau;
+        e.id = ENGINE_ID.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
+        e
+    }
+
     pub fn n_shells(&self) -> usize {
         self.n_shells
     }
@@ -245,23 +257,15 @@ impl EriEngine {
             &self.shells[d],
         ];
         let block = metas.iter().map(|m| m.n_func).product::<usize>();
-        out.clear();
+        // every element is written below: no need to clear
+        out.truncate(block);
         out.resize(block, 0.0);
         if pb.n_members * pk.n_members == 1 {
             if block == 1 && metas.iter().all(|m| m.l == 0) {
-                out[0] = ssss(pb, pk, PRIMITIVE_QUARTET_THRESHOLD);
+                out[0] = ssss(pb, pk, self.tau);
                 return;
             }
-            SCRATCH.with(|s| {
-                contracted_quartet(
-                    metas,
-                    pb,
-                    pk,
-                    PRIMITIVE_QUARTET_THRESHOLD,
-                    out,
-                    &mut s.borrow_mut(),
-                )
-            });
+            SCRATCH.with(|s| contracted_quartet(metas, pb, pk, self.tau, out, &mut s.borrow_mut()));
             return;
         }
         let total = pb.n_members * pk.n_members * block;
@@ -269,16 +273,8 @@ impl EriEngine {
         FAMILY.with(|cache| {
             let mut cache = cache.borrow_mut();
             let all = cache.get_or_compute(self.id, key, total, |dst| {
-                SCRATCH.with(|s| {
-                    contracted_quartet(
-                        metas,
-                        pb,
-                        pk,
-                        PRIMITIVE_QUARTET_THRESHOLD,
-                        dst,
-                        &mut s.borrow_mut(),
-                    )
-                })
+                SCRATCH
+                    .with(|s| contracted_quartet(metas, pb, pk, self.tau, dst, &mut s.borrow_mut()))
             });
             let m = mb as usize * pk.n_members + mk as usize;
             out.copy_from_slice(&all[m * block..(m + 1) * block]);

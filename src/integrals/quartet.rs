@@ -16,7 +16,7 @@ use crate::integrals::boys::{boys_array, M_MAX};
 use crate::integrals::hrr;
 use crate::integrals::shell_pair::PairData;
 use crate::integrals::transform::{transform_axis_sparse, Sparse};
-use crate::integrals::vrr::{self, BatchCoefs, NB_MAX};
+use crate::integrals::vrr::{self, BatchCoefs, VrrCoefs, NB_MAX};
 
 /// 2 π^{5/2}.
 pub const TWO_PI_52: f64 = 2.0 * 17.493418327624862;
@@ -37,9 +37,10 @@ pub struct Scratch {
     vrr: Vec<f64>,
     acc: Vec<f64>,
     pacc: Vec<f64>,
-    bc: Box<BatchCoefs>,
+    bt: Box<BatchTemps>,
     idx_b: Vec<u32>,
     idx_k: Vec<u32>,
+    lanes: Vec<f64>,
     rows: Vec<f64>,
     brows: Vec<f64>,
     t1: Vec<f64>,
@@ -62,12 +63,25 @@ pub fn contracted_quartet(
     let plan = vrr::plan(la, la + lb, lc, lc + ld);
     let nt = plan.targets.len();
     let (nmb, nmk) = (pb.n_members, pk.n_members);
-    s.acc.clear();
-    s.acc.resize(nmb * nmk * nt, 0.0);
-    if plan.l_total == 0 {
-        primitives_ssss(pb, pk, tau, s);
+    let n_acc = nmb * nmk * nt;
+    grow(&mut s.acc, n_acc);
+    if nmb * nmk == 1 && pb.n_prim == 1 && pk.n_prim == 1 {
+        // one primitive quartet (uncontracted shells): straight into the targets
+        if pb.bound[0] * pk.bound[0] >= tau {
+            single(plan, pb, 0, pk, 0, &mut s.vrr);
+            for (x, &tg) in s.acc[..nt].iter_mut().zip(&plan.targets) {
+                *x = s.vrr[tg as usize];
+            }
+        } else {
+            s.acc[..nt].fill(0.0);
+        }
     } else {
-        primitives(plan, pb, pk, tau, s);
+        s.acc[..n_acc].fill(0.0);
+        if plan.l_total == 0 {
+            primitives_ssss(pb, pk, tau, s);
+        } else {
+            primitives(plan, pb, pk, tau, s);
+        }
     }
     let block = ma.n_func * mb.n_func * mc.n_func * md.n_func;
     let acc = std::mem::take(&mut s.acc);
@@ -93,18 +107,26 @@ pub fn ssss(pb: &PairData, pk: &PairData, tau: f64) -> f64 {
     let mut sum = 0.0;
     for p in 0..pb.n_prim {
         let bp = pb.bound[p];
-        if bp * pk.bound[0] < tau {
+        if pk.n_prim == 0 || bp * pk.bound[0] < tau {
             break;
         }
-        let zeta = pb.zeta[p];
-        let pc = [pb.center[0][p], pb.center[1][p], pb.center[2][p]];
+        let zeta = pb.prims[p].zeta;
+        let pc = [
+            pb.prims[p].center[0],
+            pb.prims[p].center[1],
+            pb.prims[p].center[2],
+        ];
         let mut inner = 0.0;
         for q in 0..pk.n_prim {
             if bp * pk.bound[q] < tau {
                 break;
             }
-            let eta = pk.zeta[q];
-            let qc = [pk.center[0][q], pk.center[1][q], pk.center[2][q]];
+            let eta = pk.prims[q].zeta;
+            let qc = [
+                pk.prims[q].center[0],
+                pk.prims[q].center[1],
+                pk.prims[q].center[2],
+            ];
             let inv = 1.0 / (zeta + eta);
             let rho = zeta * eta * inv;
             let pq = [pc[0] - qc[0], pc[1] - qc[1], pc[2] - qc[2]];
@@ -113,9 +135,9 @@ pub fn ssss(pb: &PairData, pk: &PairData, tau: f64) -> f64 {
                 rho * (pq[0] * pq[0] + pq[1] * pq[1] + pq[2] * pq[2]),
                 &mut f,
             );
-            inner += inv.sqrt() * pk.kpref[q] * f[0];
+            inner += inv.sqrt() * pk.prims[q].kpref * f[0];
         }
-        sum += pb.kpref[p] * inner;
+        sum += pb.prims[p].kpref * inner;
     }
     TWO_PI_52 * sum
 }
@@ -129,30 +151,34 @@ fn primitives_ssss(pb: &PairData, pk: &PairData, tau: f64, s: &mut Scratch) {
     s.pacc.resize(nmk, 0.0);
     for p in 0..pb.n_prim {
         let bp = pb.bound[p];
-        if bp * pk.bound[0] < tau {
+        if pk.n_prim == 0 || bp * pk.bound[0] < tau {
             break;
         }
-        let (zeta, kp) = (pb.zeta[p], pb.kpref[p]);
-        let pc = [pb.center[0][p], pb.center[1][p], pb.center[2][p]];
+        let (zeta, kp) = (pb.prims[p].zeta, pb.prims[p].kpref);
+        let pc = [
+            pb.prims[p].center[0],
+            pb.prims[p].center[1],
+            pb.prims[p].center[2],
+        ];
         s.pacc.iter_mut().for_each(|x| *x = 0.0);
         for q in 0..pk.n_prim {
             if bp * pk.bound[q] < tau {
                 break;
             }
-            let eta = pk.zeta[q];
+            let eta = pk.prims[q].zeta;
             let inv = 1.0 / (zeta + eta);
             let rho = zeta * eta * inv;
             let pq = [
-                pc[0] - pk.center[0][q],
-                pc[1] - pk.center[1][q],
-                pc[2] - pk.center[2][q],
+                pc[0] - pk.prims[q].center[0],
+                pc[1] - pk.prims[q].center[1],
+                pc[2] - pk.prims[q].center[2],
             ];
             boys_array(
                 0,
                 rho * (pq[0] * pq[0] + pq[1] * pq[1] + pq[2] * pq[2]),
                 &mut f,
             );
-            let v = TWO_PI_52 * inv.sqrt() * kp * pk.kpref[q] * f[0];
+            let v = TWO_PI_52 * inv.sqrt() * kp * pk.prims[q].kpref * f[0];
             if nmk == 1 {
                 s.pacc[0] += v;
             } else {
@@ -180,8 +206,10 @@ fn primitives_ssss(pb: &PairData, pk: &PairData, tau: f64, s: &mut Scratch) {
 const BATCH_VALUES: usize = 16384;
 
 /// Steps 1–2 for L > 0. Primitive quartets are run in batches through the vectorised
-/// recurrence. For plain shell pairs (coefficients folded into `kpref`) a batch is any run of
-/// the surviving primitive quartets, bra-major. For general-contraction families the
+/// recurrence. For plain shell pairs (coefficients folded into `kpref`) a batch is any run
+/// of the surviving primitive quartets, bra-major; with several batches the targets are
+/// summed lane by lane (lane j collects the quartets at position j of their batch) and
+/// reduced once at the end, in a fixed order. For general-contraction families the
 /// primitive pairs of the side with more of them (the "inner" side) form the batches, for
 /// each primitive pair of the other ("outer") side; the inner member coefficients are applied
 /// per batch, the outer ones once per outer primitive.
@@ -190,13 +218,12 @@ fn primitives(plan: &vrr::VrrPlan, pb: &PairData, pk: &PairData, tau: f64, s: &m
     let nmk = pk.n_members;
     let nt = plan.targets.len();
     let nb_max = (BATCH_VALUES / plan.buf_len).clamp(1, NB_MAX);
-    if s.vrr.len() < plan.buf_len * nb_max {
-        s.vrr.resize(plan.buf_len * nb_max, 0.0);
-    }
+    grow(&mut s.vrr, plan.buf_len * nb_max);
+    let mut lanes = std::mem::take(&mut s.lanes);
+    let mut idx_b = std::mem::take(&mut s.idx_b);
+    let mut idx_k = std::mem::take(&mut s.idx_k);
+    let mut acc = std::mem::take(&mut s.acc);
     if pb.n_members == 1 && nmk == 1 {
-        let Scratch {
-            idx_b, idx_k, acc, ..
-        } = s;
         idx_b.clear();
         idx_k.clear();
         for p in 0..pb.n_prim {
@@ -208,41 +235,78 @@ fn primitives(plan: &vrr::VrrPlan, pb: &PairData, pk: &PairData, tau: f64, s: &m
             idx_b.extend(std::iter::repeat_n(p as u32, n_q));
             idx_k.extend(0..n_q as u32);
         }
-        let mut sums = std::mem::take(acc);
-        let (ib, ik) = (std::mem::take(idx_b), std::mem::take(idx_k));
-        for (cb, ck) in ib.chunks(nb_max).zip(ik.chunks(nb_max)) {
-            let nb = cb.len();
-            batch(plan, pb, pk, cb, ck, s);
-            for (x, &tg) in sums[..nt].iter_mut().zip(&plan.targets) {
-                *x += sum(&s.vrr[tg as usize * nb..(tg as usize + 1) * nb]);
+        if idx_b.len() <= nb_max {
+            // one batch: sum the targets straight away
+            batch(plan, pb, pk, &idx_b, &idx_k, s);
+            contract(&plan.targets, None, &s.vrr, idx_b.len(), &mut acc[..nt]);
+        } else {
+            // several: sum lane by lane (lane width nb_max), reduce once
+            grow(&mut lanes, nt * nb_max);
+            lanes[..nt * nb_max].fill(0.0);
+            for (cb, ck) in idx_b.chunks(nb_max).zip(idx_k.chunks(nb_max)) {
+                batch(plan, pb, pk, cb, ck, s);
+                lanes_add(&plan.targets, &s.vrr, cb.len(), &mut lanes, nb_max);
+            }
+            for (x, l) in acc[..nt].iter_mut().zip(lanes.chunks_exact(nb_max)) {
+                *x = sum(l);
             }
         }
-        s.acc = sums;
-        s.idx_b = ib;
-        s.idx_k = ik;
-        return;
+    } else {
+        let mut pacc = std::mem::take(&mut s.pacc);
+        family_primitives(
+            plan, pb, pk, tau, nb_max, &mut pacc, &mut idx_b, &mut idx_k, &mut acc, s,
+        );
+        s.pacc = pacc;
     }
+    s.acc = acc;
+    s.lanes = lanes;
+    s.idx_b = idx_b;
+    s.idx_k = idx_k;
+}
+
+/// The general-contraction case of [`primitives`].
+#[allow(clippy::too_many_arguments)]
+fn family_primitives(
+    plan: &vrr::VrrPlan,
+    pb: &PairData,
+    pk: &PairData,
+    tau: f64,
+    nb_max: usize,
+    pacc: &mut Vec<f64>,
+    idx_b: &mut Vec<u32>,
+    idx_k: &mut Vec<u32>,
+    acc: &mut [f64],
+    s: &mut Scratch,
+) {
+    let nmk = pk.n_members;
+    let nt = plan.targets.len();
     let over_ket = pk.n_prim >= pb.n_prim;
     let (outer, inner) = if over_ket { (pb, pk) } else { (pk, pb) };
     let (nm_out, nm_in) = (outer.n_members, inner.n_members);
     // with a single outer member its coefficient is folded into kpref: accumulate directly
     let direct = nm_out == 1;
-    let mut acc = std::mem::take(&mut s.acc);
-    let mut pacc = std::mem::take(&mut s.pacc);
-    pacc.clear();
-    pacc.resize(nm_in * nt, 0.0);
-    let inner_idx: Vec<u32> = (0..inner.n_prim as u32).collect();
-    let mut outer_idx = vec![0u32; nb_max];
+    grow(pacc, nm_in * nt);
+    let (inner_idx, outer_idx) = if over_ket {
+        (idx_k, idx_b)
+    } else {
+        (idx_b, idx_k)
+    };
+    inner_idx.clear();
+    inner_idx.extend(0..inner.n_prim as u32);
+    outer_idx.clear();
+    outer_idx.resize(nb_max, 0);
     for o in 0..outer.n_prim {
         let bo = outer.bound[o];
         let n_in = inner.bound.partition_point(|&b| bo * b >= tau);
         if n_in == 0 {
             break;
         }
-        if !direct {
-            pacc.iter_mut().for_each(|x| *x = 0.0);
-        }
-        let dst: &mut [f64] = if direct { &mut acc } else { &mut pacc };
+        let dst: &mut [f64] = if direct {
+            &mut acc[..nm_in * nt]
+        } else {
+            pacc[..nm_in * nt].fill(0.0);
+            &mut pacc[..nm_in * nt]
+        };
         outer_idx.iter_mut().for_each(|x| *x = o as u32);
         let mut i0 = 0;
         while i0 < n_in {
@@ -254,18 +318,16 @@ fn primitives(plan: &vrr::VrrPlan, pb: &PairData, pk: &PairData, tau: f64, s: &m
             } else {
                 batch(plan, pb, pk, ii, oo, s);
             }
-            let vrr = &s.vrr;
-            if nm_in == 1 {
-                for (x, &tg) in dst[..nt].iter_mut().zip(&plan.targets) {
-                    *x += sum(&vrr[tg as usize * nb..(tg as usize + 1) * nb]);
-                }
-            } else {
-                for mi in 0..nm_in {
-                    let cf = &inner.coef[mi * inner.n_prim + i0..mi * inner.n_prim + i0 + nb];
-                    for (x, &tg) in dst[mi * nt..(mi + 1) * nt].iter_mut().zip(&plan.targets) {
-                        *x += dot(cf, &vrr[tg as usize * nb..(tg as usize + 1) * nb]);
-                    }
-                }
+            for mi in 0..nm_in {
+                let cf = (nm_in > 1)
+                    .then(|| &inner.coef[mi * inner.n_prim + i0..mi * inner.n_prim + i0 + nb]);
+                contract(
+                    &plan.targets,
+                    cf,
+                    &s.vrr,
+                    nb,
+                    &mut dst[mi * nt..(mi + 1) * nt],
+                );
             }
             i0 += nb;
         }
@@ -282,61 +344,44 @@ fn primitives(plan: &vrr::VrrPlan, pb: &PairData, pk: &PairData, tau: f64, s: &m
             }
         }
     }
-    s.acc = acc;
-    s.pacc = pacc;
 }
 
-/// One batch: primitive quartets (ib[j], ik[j]) of the bra and ket pair data through the
-/// Boys function and the vertical recurrence; results in s.vrr (batch layout of
-/// `vrr::run_batch`).
-fn batch(
-    plan: &vrr::VrrPlan,
-    pb: &PairData,
-    pk: &PairData,
-    ib: &[u32],
-    ik: &[u32],
-    s: &mut Scratch,
+/// out[t] += Σ_j c[j] · vrr[targets[t]·nb + j] (c = 1 when None), j < nb, in a fixed order.
+fn contract(targets: &[u32], c: Option<&[f64]>, vrr: &[f64], nb: usize, out: &mut [f64]) {
+    #[cfg(target_arch = "x86_64")]
+    if std::arch::is_x86_feature_detected!("avx2") {
+        // SAFETY: the feature is present.
+        unsafe { contract_avx2(targets, c, vrr, nb, out) };
+        return;
+    }
+    contract_impl(targets, c, vrr, nb, out)
+}
+
+#[cfg(target_arch = "x86_64")]
+#[target_feature(enable = "avx2")]
+unsafe fn contract_avx2(
+    targets: &[u32],
+    c: Option<&[f64]>,
+    vrr: &[f64],
+    nb: usize,
+    out: &mut [f64],
 ) {
-    let nb = ib.len();
-    let big_l = plan.l_total;
-    let base = plan.base;
-    let mut t = [0.0; NB_MAX];
-    let mut pref = [0.0; NB_MAX];
-    let mut fm = [0.0; M_MAX + 1];
-    let Scratch { vrr, bc, .. } = s;
-    fill(pb, pk, ib, ik, bc, &mut t, &mut pref);
-    for j in 0..nb {
-        boys_array(big_l, t[j], &mut fm);
-        for m in 0..=big_l {
-            vrr[(base + m) * nb + j] = pref[j] * fm[m];
-        }
-    }
-    if nb == 1 {
-        vrr::run(plan, vrr, &bc.single(0));
-    } else {
-        vrr::run_batch(plan, vrr, nb, bc);
-    }
+    contract_impl(targets, c, vrr, nb, out)
 }
 
-/// Σ v in a fixed order (four partial sums).
-#[inline]
-fn sum(v: &[f64]) -> f64 {
-    let mut s = [0.0; 4];
-    let mut ch = v.chunks_exact(4);
-    for c in &mut ch {
-        for k in 0..4 {
-            s[k] += c[k];
-        }
+#[inline(always)]
+fn contract_impl(targets: &[u32], c: Option<&[f64]>, vrr: &[f64], nb: usize, out: &mut [f64]) {
+    for (x, &tg) in out.iter_mut().zip(targets) {
+        let v = &vrr[tg as usize * nb..tg as usize * nb + nb];
+        *x += match c {
+            None => sum(v),
+            Some(c) => dot(&c[..nb], v),
+        };
     }
-    let mut r = (s[0] + s[1]) + (s[2] + s[3]);
-    for x in ch.remainder() {
-        r += x;
-    }
-    r
 }
 
 /// Σ c·v in a fixed order (four partial sums).
-#[inline]
+#[inline(always)]
 fn dot(c: &[f64], v: &[f64]) -> f64 {
     let mut s = [0.0; 4];
     let mut cc = c.chunks_exact(4);
@@ -353,6 +398,163 @@ fn dot(c: &[f64], v: &[f64]) -> f64 {
     r
 }
 
+/// lanes[t·stride + j] += vrr[targets[t]·nb + j] for j < nb.
+fn lanes_add(targets: &[u32], vrr: &[f64], nb: usize, lanes: &mut [f64], stride: usize) {
+    #[cfg(target_arch = "x86_64")]
+    if std::arch::is_x86_feature_detected!("avx2") {
+        // SAFETY: the feature is present.
+        unsafe { lanes_add_avx2(targets, vrr, nb, lanes, stride) };
+        return;
+    }
+    lanes_add_impl(targets, vrr, nb, lanes, stride)
+}
+
+#[cfg(target_arch = "x86_64")]
+#[target_feature(enable = "avx2")]
+unsafe fn lanes_add_avx2(
+    targets: &[u32],
+    vrr: &[f64],
+    nb: usize,
+    lanes: &mut [f64],
+    stride: usize,
+) {
+    lanes_add_impl(targets, vrr, nb, lanes, stride)
+}
+
+#[inline(always)]
+fn lanes_add_impl(targets: &[u32], vrr: &[f64], nb: usize, lanes: &mut [f64], stride: usize) {
+    for (t, &tg) in targets.iter().enumerate() {
+        let v = &vrr[tg as usize * nb..tg as usize * nb + nb];
+        let l = &mut lanes[t * stride..t * stride + nb];
+        for (x, y) in l.iter_mut().zip(v) {
+            *x += y;
+        }
+    }
+}
+
+/// Σ v in a fixed order (four partial sums).
+#[inline(always)]
+fn sum(v: &[f64]) -> f64 {
+    let mut s = [0.0; 4];
+    let mut ch = v.chunks_exact(4);
+    for c in &mut ch {
+        for k in 0..4 {
+            s[k] += c[k];
+        }
+    }
+    let mut r = (s[0] + s[1]) + (s[2] + s[3]);
+    for x in ch.remainder() {
+        r += x;
+    }
+    r
+}
+
+/// One batch: primitive quartets (ib[j], ik[j]) of the bra and ket pair data through the
+/// Boys function and the vertical recurrence; results in s.vrr (batch layout of
+/// `vrr::run_batch`).
+fn batch(
+    plan: &vrr::VrrPlan,
+    pb: &PairData,
+    pk: &PairData,
+    ib: &[u32],
+    ik: &[u32],
+    s: &mut Scratch,
+) {
+    let nb = ib.len();
+    if nb == 1 {
+        single(plan, pb, ib[0] as usize, pk, ik[0] as usize, &mut s.vrr);
+        return;
+    }
+    let big_l = plan.l_total;
+    let base = plan.base;
+    let Scratch { vrr, bt, .. } = s;
+    let BatchTemps { bc, t, pref, fm } = &mut **bt;
+    fill(pb, pk, ib, ik, bc, t, pref);
+    for j in 0..nb {
+        boys_array(big_l, t[j], fm);
+        for m in 0..=big_l {
+            vrr[(base + m) * nb + j] = pref[j] * fm[m];
+        }
+    }
+    vrr::run_batch(plan, vrr, nb, bc);
+}
+
+/// Boys function and vertical recurrence of the single primitive quartet (p, q), results in
+/// `vrr` at the plan's offsets.
+fn single(
+    plan: &vrr::VrrPlan,
+    pb: &PairData,
+    p: usize,
+    pk: &PairData,
+    q: usize,
+    vrr: &mut Vec<f64>,
+) {
+    let (zeta, eta) = (pb.prims[p].zeta, pk.prims[q].zeta);
+    let inv = 1.0 / (zeta + eta);
+    let rho = zeta * eta * inv;
+    let (wp, wq) = (-eta * inv, zeta * inv);
+    let pq = [
+        pb.prims[p].center[0] - pk.prims[q].center[0],
+        pb.prims[p].center[1] - pk.prims[q].center[1],
+        pb.prims[p].center[2] - pk.prims[q].center[2],
+    ];
+    let t = rho * (pq[0] * pq[0] + pq[1] * pq[1] + pq[2] * pq[2]);
+    let pref = TWO_PI_52 * inv.sqrt() * pb.prims[p].kpref * pk.prims[q].kpref;
+    let c = VrrCoefs {
+        a: [
+            pb.prims[p].pa[0],
+            pb.prims[p].pa[1],
+            pb.prims[p].pa[2],
+            pk.prims[q].pa[0],
+            pk.prims[q].pa[1],
+            pk.prims[q].pa[2],
+        ],
+        b: [
+            wp * pq[0],
+            wp * pq[1],
+            wp * pq[2],
+            wq * pq[0],
+            wq * pq[1],
+            wq * pq[2],
+        ],
+        c: [0.5 * pb.prims[p].inv_zeta, 0.5 * pk.prims[q].inv_zeta],
+        d: [
+            0.5 * eta * inv * pb.prims[p].inv_zeta,
+            0.5 * zeta * inv * pk.prims[q].inv_zeta,
+        ],
+        e: 0.5 * inv,
+    };
+    grow(vrr, plan.buf_len);
+    let big_l = plan.l_total;
+    let f = &mut vrr[plan.base..plan.base + big_l + 1];
+    boys_array(big_l, t, f);
+    for x in f.iter_mut() {
+        *x *= pref;
+    }
+    if big_l > 0 {
+        vrr::run(plan, vrr, &c);
+    }
+}
+
+/// Batch temporaries (kept in the scratch: no zeroing per batch).
+pub struct BatchTemps {
+    bc: BatchCoefs,
+    t: [f64; NB_MAX],
+    pref: [f64; NB_MAX],
+    fm: [f64; M_MAX + 1],
+}
+
+impl Default for BatchTemps {
+    fn default() -> Self {
+        BatchTemps {
+            bc: BatchCoefs::default(),
+            t: [0.0; NB_MAX],
+            pref: [0.0; NB_MAX],
+            fm: [0.0; M_MAX + 1],
+        }
+    }
+}
+
 /// Boys arguments, prefactors and recurrence coefficients of the batch of primitive
 /// quartets (ib[j], ik[j]).
 #[inline(never)]
@@ -365,54 +567,83 @@ fn fill(
     t: &mut [f64; NB_MAX],
     pref: &mut [f64; NB_MAX],
 ) {
-    for (j, (&p, &q)) in ib.iter().zip(ik).enumerate() {
-        let (p, q) = (p as usize, q as usize);
-        let (zeta, eta) = (pb.zeta[p], pk.zeta[q]);
+    let nb = ib.len().min(NB_MAX);
+    for j in 0..nb {
+        let (x, y) = (&pb.prims[ib[j] as usize], &pk.prims[ik[j] as usize]);
+        let (zeta, eta) = (x.zeta, y.zeta);
         let inv = 1.0 / (zeta + eta);
         let rho = zeta * eta * inv;
         let (wp, wq) = (-eta * inv, zeta * inv);
-        let mut r2 = 0.0;
+        let pq = [
+            x.center[0] - y.center[0],
+            x.center[1] - y.center[1],
+            x.center[2] - y.center[2],
+        ];
         for d in 0..3 {
-            let pq = pb.center[d][p] - pk.center[d][q];
-            r2 += pq * pq;
-            bc.b[d][j] = wp * pq;
-            bc.b[3 + d][j] = wq * pq;
-            bc.a[d][j] = pb.pa[d][p];
-            bc.a[3 + d][j] = pk.pa[d][q];
+            bc.b[d][j] = wp * pq[d];
+            bc.b[3 + d][j] = wq * pq[d];
+            bc.a[d][j] = x.pa[d];
+            bc.a[3 + d][j] = y.pa[d];
         }
-        t[j] = rho * r2;
-        pref[j] = TWO_PI_52 * inv.sqrt() * pb.kpref[p] * pk.kpref[q];
-        bc.c[0][j] = 0.5 * pb.inv_zeta[p];
-        bc.c[1][j] = 0.5 * pk.inv_zeta[q];
-        bc.d[0][j] = 0.5 * eta * inv * pb.inv_zeta[p];
-        bc.d[1][j] = 0.5 * zeta * inv * pk.inv_zeta[q];
+        t[j] = rho * (pq[0] * pq[0] + pq[1] * pq[1] + pq[2] * pq[2]);
+        pref[j] = TWO_PI_52 * inv.sqrt() * x.kpref * y.kpref;
+        bc.c[0][j] = 0.5 * x.inv_zeta;
+        bc.c[1][j] = 0.5 * y.inv_zeta;
+        bc.d[0][j] = 0.5 * eta * inv * x.inv_zeta;
+        bc.d[1][j] = 0.5 * zeta * inv * y.inv_zeta;
         bc.e[j] = 0.5 * inv;
     }
 }
 
-/// Apply the transforms of the listed axes (those that are not the identity) to `src` with
-/// dimensions `dims`, alternating between `t1` and `t2`. Returns where the result is:
-/// None (nothing applied: still `src`), Some(false) = `t1`, Some(true) = `t2`.
-fn transform_axes(
-    src: &[f64],
+/// Apply the transforms (those that are not the identity) of the axes listed, in order, to
+/// `src` with dimensions `dims`: through `tmp` when there are two, into `dst` (grown as
+/// needed). Returns the data: `src` itself when there is nothing to do, else `dst`.
+fn transform_axes<'a>(
+    src: &'a [f64],
     dims: &mut [usize; 3],
     list: [(usize, &ShellMeta); 2],
-    t1: &mut Vec<f64>,
-    t2: &mut Vec<f64>,
-) -> Option<bool> {
-    let mut state = None;
+    tmp: &mut Vec<f64>,
+    dst: &'a mut Vec<f64>,
+) -> &'a [f64] {
+    let mut todo: [(usize, Option<&Sparse>, usize); 2] = [(0, None, 0); 2];
+    let mut k = 0;
     for (axis, m) in list {
         if let Some(t) = &m.transform {
-            match state {
-                None => transform_axis_sparse(src, &dims[..], axis, t, t1),
-                Some(false) => transform_axis_sparse(t1, &dims[..], axis, t, t2),
-                Some(true) => transform_axis_sparse(t2, &dims[..], axis, t, t1),
-            }
-            state = Some(state == Some(false));
-            dims[axis] = m.n_func;
+            todo[k] = (axis, Some(t), m.n_func);
+            k += 1;
         }
     }
-    state
+    let size = |dims: &[usize; 3], axis: usize, rows: usize| {
+        dims.iter().product::<usize>() / dims[axis] * rows
+    };
+    match (k, todo) {
+        (0, _) => src,
+        (1, [(axis, Some(t), rows), _]) => {
+            let n = size(dims, axis, rows);
+            grow(dst, n);
+            transform_axis_sparse(src, *dims, axis, t, &mut dst[..n]);
+            dims[axis] = rows;
+            &dst[..n]
+        }
+        (_, [(a1, Some(t1), r1), (a2, Some(t2), r2)]) => {
+            let n1 = size(dims, a1, r1);
+            grow(tmp, n1);
+            transform_axis_sparse(src, *dims, a1, t1, &mut tmp[..n1]);
+            dims[a1] = r1;
+            let n2 = size(dims, a2, r2);
+            grow(dst, n2);
+            transform_axis_sparse(&tmp[..n1], *dims, a2, t2, &mut dst[..n2]);
+            dims[a2] = r2;
+            &dst[..n2]
+        }
+        _ => unreachable!("two axes at most"),
+    }
+}
+
+fn grow(v: &mut Vec<f64>, n: usize) {
+    if v.len() < n {
+        v.resize(n, 0.0);
+    }
 }
 
 /// Step 3 for one member pair: `acc` holds the contracted [e0|f0], f-major (n_f × n_e).
@@ -441,9 +672,7 @@ fn finish(
     // ket HRR: rows f (length n_e) → rows (c, d)
     let ket: &[f64] = if md.l > 0 {
         let hp = hrr::plan(mc.l, md.l);
-        if rows.len() < hp.n_rows * n_e {
-            rows.resize(hp.n_rows * n_e, 0.0);
-        }
+        grow(rows, hp.n_rows * n_e);
         rows[..acc.len()].copy_from_slice(acc);
         hrr::run(hp, rows, n_e, cd);
         &rows[hp.out_start() * n_e..(hp.out_start() + hp.n_out) * n_e]
@@ -452,18 +681,11 @@ fn finish(
     };
     // ket transforms on [c][d][e]
     let mut dims = [mc.n_cart, md.n_cart, n_e];
-    let cur: &[f64] = match transform_axes(ket, &mut dims, [(1, md), (0, mc)], t1, t2) {
-        None => ket,
-        Some(false) => t1,
-        Some(true) => t2,
-    };
+    let cur = transform_axes(ket, &mut dims, [(1, md), (0, mc)], t2, t1);
     let ncd = dims[0] * dims[1];
     // transpose [cd][e] → [e][cd]: the input rows of the bra HRR
     let bra_plan = (mb.l > 0).then(|| hrr::plan(ma.l, mb.l));
-    let need = bra_plan.map_or(n_e, |hp| hp.n_rows) * ncd;
-    if brows.len() < need {
-        brows.resize(need, 0.0);
-    }
+    grow(brows, bra_plan.map_or(n_e, |hp| hp.n_rows) * ncd);
     for k in 0..ncd {
         let src = &cur[k * n_e..(k + 1) * n_e];
         for (e, &v) in src.iter().enumerate() {
@@ -478,12 +700,21 @@ fn finish(
         None => (0, n_e),
     };
     let bra = &brows[start * ncd..(start + n_ab) * ncd];
-    // bra transforms on [a][b][cd]
+    // bra transforms on [a][b][cd], the last one straight into `out`
     let mut dims = [ma.n_cart, mb.n_cart, ncd];
-    let res: &[f64] = match transform_axes(bra, &mut dims, [(1, mb), (0, ma)], t1, t2) {
-        None => bra,
-        Some(false) => t1,
-        Some(true) => t2,
-    };
-    out.copy_from_slice(&res[..out.len()]);
+    let todo = [(1, mb), (0, ma)];
+    match todo.iter().filter(|(_, m)| m.transform.is_some()).count() {
+        0 => out.copy_from_slice(bra),
+        1 => {
+            let &(axis, m) = todo.iter().find(|(_, m)| m.transform.is_some()).unwrap();
+            transform_axis_sparse(bra, dims, axis, m.transform.as_ref().unwrap(), out);
+        }
+        _ => {
+            let n1 = ma.n_cart * mb.n_func * ncd;
+            grow(t1, n1);
+            transform_axis_sparse(bra, dims, 1, mb.transform.as_ref().unwrap(), &mut t1[..n1]);
+            dims[1] = mb.n_func;
+            transform_axis_sparse(&t1[..n1], dims, 0, ma.transform.as_ref().unwrap(), out);
+        }
+    }
 }

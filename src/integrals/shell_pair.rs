@@ -18,6 +18,20 @@ use crate::basis::Shell;
 /// general-contraction family keeps the same primitive list).
 pub const PRIMITIVE_PAIR_THRESHOLD: f64 = 1e-20;
 
+/// One primitive pair.
+#[derive(Debug, Clone, Copy)]
+pub struct Prim {
+    pub zeta: f64,
+    /// 1/ζ.
+    pub inv_zeta: f64,
+    /// K_AB / ζ, times the coefficient product when there is a single member.
+    pub kpref: f64,
+    /// P.
+    pub center: [f64; 3],
+    /// P − A.
+    pub pa: [f64; 3],
+}
+
 #[derive(Debug, Clone)]
 pub struct PairData {
     pub la: usize,
@@ -28,15 +42,7 @@ pub struct PairData {
     /// families has index i · n_b + j.
     pub n_members: usize,
     pub n_prim: usize,
-    pub zeta: Vec<f64>,
-    /// 1/ζ.
-    pub inv_zeta: Vec<f64>,
-    /// P, one array per direction.
-    pub center: [Vec<f64>; 3],
-    /// P − A, one array per direction.
-    pub pa: [Vec<f64>; 3],
-    /// K_AB / ζ, times the coefficient product when there is a single member.
-    pub kpref: Vec<f64>,
+    pub prims: Vec<Prim>,
     /// Coefficient products, member-major: coef[m · n_prim + k].
     pub coef: Vec<f64>,
     /// Screening bound of each primitive pair (Cauchy–Schwarz factor times the largest
@@ -108,13 +114,15 @@ impl PairData {
             ab,
             n_members,
             n_prim,
-            zeta: prims.iter().map(|p| p.0).collect(),
-            inv_zeta: prims.iter().map(|p| 1.0 / p.0).collect(),
-            center: std::array::from_fn(|d| prims.iter().map(|p| p.1[d]).collect()),
-            pa: std::array::from_fn(|d| prims.iter().map(|p| p.2[d]).collect()),
-            kpref: prims
+            prims: prims
                 .iter()
-                .map(|p| p.3 / p.0 * if n_members == 1 { p.4[0] } else { 1.0 })
+                .map(|p| Prim {
+                    zeta: p.0,
+                    inv_zeta: 1.0 / p.0,
+                    kpref: p.3 / p.0 * if n_members == 1 { p.4[0] } else { 1.0 },
+                    center: p.1,
+                    pa: p.2,
+                })
                 .collect(),
             coef,
             bound: vec![1.0; n_prim],
@@ -134,11 +142,10 @@ impl PairData {
             ab: self.ab,
             n_members: 1,
             n_prim: 1,
-            zeta: vec![self.zeta[k]],
-            inv_zeta: vec![self.inv_zeta[k]],
-            center: std::array::from_fn(|d| vec![self.center[d][k]]),
-            pa: std::array::from_fn(|d| vec![self.pa[d][k]]),
-            kpref: vec![self.kpref[k] / c],
+            prims: vec![Prim {
+                kpref: self.prims[k].kpref / c,
+                ..self.prims[k]
+            }],
             coef: vec![1.0],
             bound: vec![1.0],
         }
@@ -160,11 +167,7 @@ impl PairData {
         // stable: ties keep their construction order
         order.sort_by(|&x, &y| bound[y].total_cmp(&bound[x]));
         let perm = |v: &[f64]| order.iter().map(|&k| v[k]).collect::<Vec<f64>>();
-        self.zeta = perm(&self.zeta);
-        self.inv_zeta = perm(&self.inv_zeta);
-        self.kpref = perm(&self.kpref);
-        self.center = std::array::from_fn(|d| perm(&self.center[d]));
-        self.pa = std::array::from_fn(|d| perm(&self.pa[d]));
+        self.prims = order.iter().map(|&k| self.prims[k]).collect();
         self.bound = perm(&bound);
         let mut coef = vec![0.0; self.coef.len()];
         for m in 0..self.n_members {

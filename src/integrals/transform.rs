@@ -41,51 +41,83 @@ pub fn is_identity(m: &[f64], n: usize) -> bool {
         && (0..n).all(|i| (0..n).all(|j| m[i * n + j] == if i == j { 1.0 } else { 0.0 }))
 }
 
-/// A transform matrix kept as its nonzero entries (row, column, value) in row-major order:
-/// the solid-harmonic matrices are mostly zeros.
+/// A transform matrix kept as its nonzero entries, row by row: the solid-harmonic matrices
+/// are mostly zeros. Every row has at least one entry.
 #[derive(Debug, Clone)]
 pub struct Sparse {
     pub rows: usize,
-    pub entries: Vec<(u32, u32, f64)>,
+    /// Entries of row r: entries[row_start[r]..row_start[r + 1]], as (column, value).
+    row_start: Vec<usize>,
+    entries: Vec<(usize, f64)>,
 }
 
 impl Sparse {
     /// From a dense rows × cols row-major matrix.
     pub fn from_dense(m: &[f64], rows: usize, cols: usize) -> Self {
         let mut entries = Vec::new();
+        let mut row_start = vec![0];
         for r in 0..rows {
             for c in 0..cols {
                 if m[r * cols + c] != 0.0 {
-                    entries.push((r as u32, c as u32, m[r * cols + c]));
+                    entries.push((c, m[r * cols + c]));
                 }
             }
+            assert!(entries.len() > row_start[r], "transform row {r} is empty");
+            row_start.push(entries.len());
         }
-        Sparse { rows, entries }
+        Sparse {
+            rows,
+            row_start,
+            entries,
+        }
     }
 }
 
-/// As [`transform_axis`] with a sparse matrix: same result, same summation order.
+/// As [`transform_axis`] with a sparse matrix, into `dst[..outer · rows · inner]` (no need to
+/// clear it first: the first entry of each row is assigned, the others added).
 pub fn transform_axis_sparse(
     src: &[f64],
-    dims: &[usize],
+    dims: [usize; 3],
     axis: usize,
     m: &Sparse,
-    dst: &mut Vec<f64>,
+    dst: &mut [f64],
 ) {
+    #[cfg(target_arch = "x86_64")]
+    if std::arch::is_x86_feature_detected!("avx2") {
+        // SAFETY: the feature is present.
+        unsafe { sparse_avx2(src, dims, axis, m, dst) };
+        return;
+    }
+    sparse_impl(src, dims, axis, m, dst)
+}
+
+#[cfg(target_arch = "x86_64")]
+#[target_feature(enable = "avx2")]
+unsafe fn sparse_avx2(src: &[f64], dims: [usize; 3], axis: usize, m: &Sparse, dst: &mut [f64]) {
+    sparse_impl(src, dims, axis, m, dst)
+}
+
+#[inline(always)]
+fn sparse_impl(src: &[f64], dims: [usize; 3], axis: usize, m: &Sparse, dst: &mut [f64]) {
     let cols = dims[axis];
     let outer: usize = dims[..axis].iter().product();
     let inner: usize = dims[axis + 1..].iter().product();
-    dst.clear();
-    dst.resize(outer * m.rows * inner, 0.0);
     for o in 0..outer {
         let s_base = o * cols * inner;
         let d_base = o * m.rows * inner;
-        for &(r, c, f) in &m.entries {
-            let (r, c) = (r as usize, c as usize);
+        for r in 0..m.rows {
             let d = &mut dst[d_base + r * inner..d_base + (r + 1) * inner];
+            let ents = &m.entries[m.row_start[r]..m.row_start[r + 1]];
+            let (c, f) = ents[0];
             let s = &src[s_base + c * inner..s_base + (c + 1) * inner];
             for (x, y) in d.iter_mut().zip(s) {
-                *x += f * y;
+                *x = f * y;
+            }
+            for &(c, f) in &ents[1..] {
+                let s = &src[s_base + c * inner..s_base + (c + 1) * inner];
+                for (x, y) in d.iter_mut().zip(s) {
+                    *x += f * y;
+                }
             }
         }
     }
