@@ -16,7 +16,7 @@ use crate::integrals::boys::{boys_array, M_MAX};
 use crate::integrals::hrr;
 use crate::integrals::shell_pair::PairData;
 use crate::integrals::transform::{transform_axis_sparse, Sparse};
-use crate::integrals::vrr::{self, BatchCoefs, VrrCoefs, NB_MAX};
+use crate::integrals::vrr::{self, BatchCoefs, VrrCoefs, LANES, NB_MAX};
 
 /// 2 π^{5/2}.
 pub const TWO_PI_52: f64 = 2.0 * 17.493418327624862;
@@ -217,8 +217,8 @@ const BATCH_VALUES: usize = 16384;
 fn primitives(plan: &vrr::VrrPlan, pb: &PairData, pk: &PairData, tau: f64, s: &mut Scratch) {
     let nmk = pk.n_members;
     let nt = plan.targets.len();
-    let nb_max = (BATCH_VALUES / plan.buf_len).clamp(1, NB_MAX);
-    grow(&mut s.vrr, plan.buf_len * nb_max);
+    // (a multiple of LANES: batches are padded to whole chunks)
+    let nb_max = (BATCH_VALUES / plan.buf_len).clamp(LANES, NB_MAX) / LANES * LANES;
     let mut lanes = std::mem::take(&mut s.lanes);
     let mut idx_b = std::mem::take(&mut s.idx_b);
     let mut idx_k = std::mem::take(&mut s.idx_k);
@@ -237,15 +237,15 @@ fn primitives(plan: &vrr::VrrPlan, pb: &PairData, pk: &PairData, tau: f64, s: &m
         }
         if idx_b.len() <= nb_max {
             // one batch: sum the targets straight away
-            batch(plan, pb, pk, &idx_b, &idx_k, s);
-            contract(&plan.targets, None, &s.vrr, idx_b.len(), &mut acc[..nt]);
+            let st = batch(plan, pb, pk, &idx_b, &idx_k, s);
+            contract(&plan.targets, None, &s.vrr, st, idx_b.len(), &mut acc[..nt]);
         } else {
             // several: sum lane by lane (lane width nb_max), reduce once
             grow(&mut lanes, nt * nb_max);
             lanes[..nt * nb_max].fill(0.0);
             for (cb, ck) in idx_b.chunks(nb_max).zip(idx_k.chunks(nb_max)) {
-                batch(plan, pb, pk, cb, ck, s);
-                lanes_add(&plan.targets, &s.vrr, cb.len(), &mut lanes, nb_max);
+                let st = batch(plan, pb, pk, cb, ck, s);
+                lanes_add(&plan.targets, &s.vrr, st, cb.len(), &mut lanes, nb_max);
             }
             for (x, l) in acc[..nt].iter_mut().zip(lanes.chunks_exact(nb_max)) {
                 *x = sum(l);
@@ -313,11 +313,11 @@ fn family_primitives(
             let nb = (n_in - i0).min(nb_max);
             let ii = &inner_idx[i0..i0 + nb];
             let oo = &outer_idx[..nb];
-            if over_ket {
-                batch(plan, pb, pk, oo, ii, s);
+            let st = if over_ket {
+                batch(plan, pb, pk, oo, ii, s)
             } else {
-                batch(plan, pb, pk, ii, oo, s);
-            }
+                batch(plan, pb, pk, ii, oo, s)
+            };
             for mi in 0..nm_in {
                 let cf = (nm_in > 1)
                     .then(|| &inner.coef[mi * inner.n_prim + i0..mi * inner.n_prim + i0 + nb]);
@@ -325,6 +325,7 @@ fn family_primitives(
                     &plan.targets,
                     cf,
                     &s.vrr,
+                    st,
                     nb,
                     &mut dst[mi * nt..(mi + 1) * nt],
                 );
@@ -347,14 +348,21 @@ fn family_primitives(
 }
 
 /// out[t] += Σ_j c[j] · vrr[targets[t]·nb + j] (c = 1 when None), j < nb, in a fixed order.
-fn contract(targets: &[u32], c: Option<&[f64]>, vrr: &[f64], nb: usize, out: &mut [f64]) {
+fn contract(
+    targets: &[u32],
+    c: Option<&[f64]>,
+    vrr: &[f64],
+    stride: usize,
+    nb: usize,
+    out: &mut [f64],
+) {
     #[cfg(target_arch = "x86_64")]
     if std::arch::is_x86_feature_detected!("avx2") {
         // SAFETY: the feature is present.
-        unsafe { contract_avx2(targets, c, vrr, nb, out) };
+        unsafe { contract_avx2(targets, c, vrr, stride, nb, out) };
         return;
     }
-    contract_impl(targets, c, vrr, nb, out)
+    contract_impl(targets, c, vrr, stride, nb, out)
 }
 
 #[cfg(target_arch = "x86_64")]
@@ -363,16 +371,24 @@ unsafe fn contract_avx2(
     targets: &[u32],
     c: Option<&[f64]>,
     vrr: &[f64],
+    stride: usize,
     nb: usize,
     out: &mut [f64],
 ) {
-    contract_impl(targets, c, vrr, nb, out)
+    contract_impl(targets, c, vrr, stride, nb, out)
 }
 
 #[inline(always)]
-fn contract_impl(targets: &[u32], c: Option<&[f64]>, vrr: &[f64], nb: usize, out: &mut [f64]) {
+fn contract_impl(
+    targets: &[u32],
+    c: Option<&[f64]>,
+    vrr: &[f64],
+    stride: usize,
+    nb: usize,
+    out: &mut [f64],
+) {
     for (x, &tg) in out.iter_mut().zip(targets) {
-        let v = &vrr[tg as usize * nb..tg as usize * nb + nb];
+        let v = &vrr[tg as usize * stride..tg as usize * stride + nb];
         *x += match c {
             None => sum(v),
             Some(c) => dot(&c[..nb], v),
@@ -399,14 +415,21 @@ fn dot(c: &[f64], v: &[f64]) -> f64 {
 }
 
 /// lanes[t·stride + j] += vrr[targets[t]·nb + j] for j < nb.
-fn lanes_add(targets: &[u32], vrr: &[f64], nb: usize, lanes: &mut [f64], stride: usize) {
+fn lanes_add(
+    targets: &[u32],
+    vrr: &[f64],
+    vstride: usize,
+    nb: usize,
+    lanes: &mut [f64],
+    stride: usize,
+) {
     #[cfg(target_arch = "x86_64")]
     if std::arch::is_x86_feature_detected!("avx2") {
         // SAFETY: the feature is present.
-        unsafe { lanes_add_avx2(targets, vrr, nb, lanes, stride) };
+        unsafe { lanes_add_avx2(targets, vrr, vstride, nb, lanes, stride) };
         return;
     }
-    lanes_add_impl(targets, vrr, nb, lanes, stride)
+    lanes_add_impl(targets, vrr, vstride, nb, lanes, stride)
 }
 
 #[cfg(target_arch = "x86_64")]
@@ -414,17 +437,25 @@ fn lanes_add(targets: &[u32], vrr: &[f64], nb: usize, lanes: &mut [f64], stride:
 unsafe fn lanes_add_avx2(
     targets: &[u32],
     vrr: &[f64],
+    vstride: usize,
     nb: usize,
     lanes: &mut [f64],
     stride: usize,
 ) {
-    lanes_add_impl(targets, vrr, nb, lanes, stride)
+    lanes_add_impl(targets, vrr, vstride, nb, lanes, stride)
 }
 
 #[inline(always)]
-fn lanes_add_impl(targets: &[u32], vrr: &[f64], nb: usize, lanes: &mut [f64], stride: usize) {
+fn lanes_add_impl(
+    targets: &[u32],
+    vrr: &[f64],
+    vstride: usize,
+    nb: usize,
+    lanes: &mut [f64],
+    stride: usize,
+) {
     for (t, &tg) in targets.iter().enumerate() {
-        let v = &vrr[tg as usize * nb..tg as usize * nb + nb];
+        let v = &vrr[tg as usize * vstride..tg as usize * vstride + nb];
         let l = &mut lanes[t * stride..t * stride + nb];
         for (x, y) in l.iter_mut().zip(v) {
             *x += y;
@@ -459,24 +490,33 @@ fn batch(
     ib: &[u32],
     ik: &[u32],
     s: &mut Scratch,
-) {
+) -> usize {
     let nb = ib.len();
     if nb == 1 {
         single(plan, pb, ib[0] as usize, pk, ik[0] as usize, &mut s.vrr);
-        return;
+        return 1;
     }
+    // padded to whole vector chunks; the padding lanes repeat quartet 0 with prefactor 0
+    let nbp = nb.div_ceil(LANES) * LANES;
     let big_l = plan.l_total;
     let base = plan.base;
     let Scratch { vrr, bt, .. } = s;
+    grow(vrr, plan.buf_len * nbp);
     let BatchTemps { bc, t, pref, fm } = &mut **bt;
     fill(pb, pk, ib, ik, bc, t, pref);
-    for j in 0..nb {
+    for j in nb..nbp {
+        bc.copy_lane(0, j);
+        t[j] = t[0];
+        pref[j] = 0.0;
+    }
+    for j in 0..nbp {
         boys_array(big_l, t[j], fm);
         for m in 0..=big_l {
-            vrr[(base + m) * nb + j] = pref[j] * fm[m];
+            vrr[(base + m) * nbp + j] = pref[j] * fm[m];
         }
     }
-    vrr::run_batch(plan, vrr, nb, bc);
+    vrr::run_batch(plan, vrr, nbp, bc);
+    nbp
 }
 
 /// Boys function and vertical recurrence of the single primitive quartet (p, q), results in

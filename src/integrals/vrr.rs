@@ -85,6 +85,9 @@ pub struct VrrCoefs {
 /// Largest number of primitive quartets run through a plan together.
 pub const NB_MAX: usize = 64;
 
+/// Batches are padded to a multiple of this many quartets (the vector width of AVX2).
+pub const LANES: usize = 4;
+
 /// The coefficients of [`VrrCoefs`] for a batch of primitive quartets (entry j of each
 /// array belongs to quartet j).
 pub struct BatchCoefs {
@@ -108,15 +111,17 @@ impl Default for BatchCoefs {
 }
 
 impl BatchCoefs {
-    /// The coefficients of quartet j alone.
-    pub fn single(&self, j: usize) -> VrrCoefs {
-        VrrCoefs {
-            a: std::array::from_fn(|k| self.a[k][j]),
-            b: std::array::from_fn(|k| self.b[k][j]),
-            c: [self.c[0][j], self.c[1][j]],
-            d: [self.d[0][j], self.d[1][j]],
-            e: self.e[j],
+    /// Copy the coefficients of quartet `from` to quartet `to` (padding lanes).
+    pub fn copy_lane(&mut self, from: usize, to: usize) {
+        for k in 0..6 {
+            self.a[k][to] = self.a[k][from];
+            self.b[k][to] = self.b[k][from];
         }
+        for k in 0..2 {
+            self.c[k][to] = self.c[k][from];
+            self.d[k][to] = self.d[k][from];
+        }
+        self.e[to] = self.e[from];
     }
 }
 
@@ -416,7 +421,8 @@ pub fn run(plan: &VrrPlan, buf: &mut [f64], c: &VrrCoefs) {
     }
 }
 
-/// Run the plan on a batch of `nb` primitive quartets (2 ≤ nb ≤ NB_MAX): order m of the node
+/// Run the plan on a batch of `nb` primitive quartets (nb a multiple of `LANES`, ≤ NB_MAX;
+/// pad with quartets whose [00|00]^(m) are zero): order m of the node
 /// at offset o of quartet j sits at buf[(o + m)·nb + j], so every step is a short loop over
 /// the batch that the compiler vectorises. [00|00]^(m) must be filled.
 ///
@@ -425,7 +431,7 @@ pub fn run(plan: &VrrPlan, buf: &mut [f64], c: &VrrCoefs) {
 /// build).
 #[inline(never)]
 pub fn run_batch(plan: &VrrPlan, buf: &mut [f64], nb: usize, c: &BatchCoefs) {
-    assert!(nb <= NB_MAX && buf.len() >= plan.buf_len * nb);
+    assert!(nb <= NB_MAX && nb % LANES == 0 && buf.len() >= plan.buf_len * nb);
     #[cfg(target_arch = "x86_64")]
     if std::arch::is_x86_feature_detected!("avx2") {
         // SAFETY: the feature is present; the bounds were checked above.
@@ -467,47 +473,48 @@ unsafe fn batch<const KIND: u8>(
     n: usize,
     nb: usize,
 ) {
-    use std::slice::{from_raw_parts, from_raw_parts_mut};
+    // nb is a multiple of LANES: every loop below runs over whole chunks of LANES values,
+    // loaded into and stored from local arrays (no aliasing questions for the compiler)
+    type V = [f64; LANES];
+    #[inline(always)]
+    unsafe fn ld(p: *const f64) -> V {
+        (p as *const V).read_unaligned()
+    }
+    let chunks = nb / LANES;
     for st in steps {
         let dir = st.dir as usize;
         let side = dir / 3;
-        let (a, b) = (&c.a[dir][..nb], &c.b[dir][..nb]);
-        let (cc, dd, e) = (&c.c[side][..nb], &c.d[side][..nb], &c.e[..nb]);
+        let (a, b) = (c.a[dir].as_ptr(), c.b[dir].as_ptr());
+        let (cc, dd, e) = (c.c[side].as_ptr(), c.d[side].as_ptr(), c.e.as_ptr());
         let (k1, k2) = (st.k1, st.k2);
         for m in 0..n {
-            let d = from_raw_parts_mut(ptr.add((st.dst as usize + m) * nb), nb);
-            let x = from_raw_parts(ptr.add((st.s1 as usize + m) * nb), nb);
-            let y = from_raw_parts(ptr.add((st.s1 as usize + m + 1) * nb), nb);
-            match KIND {
-                0 => {
-                    for j in 0..nb {
-                        d[j] = a[j] * x[j] + b[j] * y[j];
+            let d = ptr.add((st.dst as usize + m) * nb);
+            let x = ptr.add((st.s1 as usize + m) * nb);
+            let y = ptr.add((st.s1 as usize + m + 1) * nb);
+            let u = ptr.add((st.s3 as usize + m) * nb);
+            let w = ptr.add((st.s3 as usize + m + 1) * nb);
+            let z = ptr.add((st.s5 as usize + m + 1) * nb);
+            for ch in 0..chunks {
+                let o = ch * LANES;
+                let (av, bv, xv, yv) = (ld(a.add(o)), ld(b.add(o)), ld(x.add(o)), ld(y.add(o)));
+                let mut r: V = [0.0; LANES];
+                for k in 0..LANES {
+                    r[k] = av[k] * xv[k] + bv[k] * yv[k];
+                }
+                if KIND & 1 != 0 {
+                    let (cv, dv, uv, wv) =
+                        (ld(cc.add(o)), ld(dd.add(o)), ld(u.add(o)), ld(w.add(o)));
+                    for k in 0..LANES {
+                        r[k] += k1 * (cv[k] * uv[k] - dv[k] * wv[k]);
                     }
                 }
-                1 => {
-                    let u = from_raw_parts(ptr.add((st.s3 as usize + m) * nb), nb);
-                    let w = from_raw_parts(ptr.add((st.s3 as usize + m + 1) * nb), nb);
-                    for j in 0..nb {
-                        d[j] = a[j] * x[j] + b[j] * y[j] + k1 * (cc[j] * u[j] - dd[j] * w[j]);
+                if KIND & 2 != 0 {
+                    let (ev, zv) = (ld(e.add(o)), ld(z.add(o)));
+                    for k in 0..LANES {
+                        r[k] += k2 * ev[k] * zv[k];
                     }
                 }
-                2 => {
-                    let z = from_raw_parts(ptr.add((st.s5 as usize + m + 1) * nb), nb);
-                    for j in 0..nb {
-                        d[j] = a[j] * x[j] + b[j] * y[j] + k2 * e[j] * z[j];
-                    }
-                }
-                _ => {
-                    let u = from_raw_parts(ptr.add((st.s3 as usize + m) * nb), nb);
-                    let w = from_raw_parts(ptr.add((st.s3 as usize + m + 1) * nb), nb);
-                    let z = from_raw_parts(ptr.add((st.s5 as usize + m + 1) * nb), nb);
-                    for j in 0..nb {
-                        d[j] = a[j] * x[j]
-                            + b[j] * y[j]
-                            + k1 * (cc[j] * u[j] - dd[j] * w[j])
-                            + k2 * e[j] * z[j];
-                    }
-                }
+                (d.add(o) as *mut V).write_unaligned(r);
             }
         }
     }
