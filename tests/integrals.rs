@@ -965,3 +965,51 @@ fn general_contraction_families_match_quadrature_in_any_order() {
         assert!(err < 1e-11, "({i}{j}|{k}{l}): {err}");
     }
 }
+
+#[test]
+fn ket_batches_equal_single_quartets_bit_for_bit() {
+    // `shell_quartets` promises exactly the numbers of `shell_quartet` (a property of the
+    // engine, no external value needed). Water in cc-pVTZ (Cartesian and pure variants):
+    // general contractions, contracted and uncontracted shells s–f.
+    let water = Molecule::new(vec![
+        Atom {
+            z: 8,
+            position: [0.0, -0.143225816552, 0.0],
+        },
+        Atom {
+            z: 1,
+            position: [1.638036840407, 1.136548822547, 0.0],
+        },
+        Atom {
+            z: 1,
+            position: [-1.638036840407, 1.136548822547, 0.0],
+        },
+    ]);
+    for harmonics in [None, Some(bandcast::basis::Harmonics::Cartesian)] {
+        let basis = bandcast::basis::load("cc-pVTZ", &water, harmonics).unwrap();
+        let e = EriEngine::new(&basis);
+        let n = e.n_shells();
+        let pairs: Vec<(usize, usize)> = (0..n).flat_map(|a| (0..=a).map(move |b| (a, b))).collect();
+        let (mut batch, mut one) = (Vec::new(), Vec::new());
+        let mut compared = 0;
+        for (i, &(a, b)) in pairs.iter().enumerate() {
+            // kets in an order unlike the engine's grouping, with repeats
+            let mut kets: Vec<(usize, usize)> = pairs[..=i].iter().rev().copied().collect();
+            kets.push(pairs[i / 2]);
+            e.shell_quartets(a, b, &kets, &mut batch);
+            let mut off = 0;
+            for &(c, d) in &kets {
+                e.shell_quartet(a, b, c, d, &mut one);
+                let got = &batch[off..off + one.len()];
+                assert!(
+                    got.iter().zip(&one).all(|(x, y)| x.to_bits() == y.to_bits()),
+                    "({a}{b}|{c}{d}) differs"
+                );
+                off += one.len();
+                compared += 1;
+            }
+            assert_eq!(off, batch.len());
+        }
+        assert!(compared > 10000);
+    }
+}

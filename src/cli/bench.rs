@@ -43,6 +43,10 @@ pub struct IntegralsArgs {
     /// Schwarz threshold for skipping quartets in the molecule runs.
     #[arg(long, default_value_t = 1e-12, value_name = "EH")]
     pub threshold: f64,
+    /// Compute the molecule runs with one `shell_quartets` call per bra pair (kets batched)
+    /// instead of one `shell_quartet` call per quartet.
+    #[arg(long)]
+    pub ket_batches: bool,
     /// Seconds spent on each class.
     #[arg(long, default_value_t = 0.3, value_name = "S")]
     pub seconds_per_class: f64,
@@ -115,7 +119,7 @@ fn integrals(a: IntegralsArgs) -> Result<()> {
     for (file, basis_name) in &runs {
         let mol = read_xyz(file, LengthUnit::Angstrom)?;
         let basis = bandcast::basis::load(basis_name, &mol, None)?;
-        let t = all_eris(&basis, a.threshold);
+        let t = all_eris(&basis, a.threshold, a.ket_batches);
         mols.push((file.display().to_string(), basis_name.clone(), t));
     }
     if a.json {
@@ -158,8 +162,16 @@ fn integrals(a: IntegralsArgs) -> Result<()> {
         println!();
         println!("all unique ERIs: {f} / {b}");
         println!(
-            "  {} basis functions, {} shells, {} threads, Schwarz threshold {:.0e}",
-            t.n_basis, t.n_shells, t.threads, a.threshold
+            "  {} basis functions, {} shells, {} threads, Schwarz threshold {:.0e}{}",
+            t.n_basis,
+            t.n_shells,
+            t.threads,
+            a.threshold,
+            if a.ket_batches {
+                ", kets batched per bra pair"
+            } else {
+                ""
+            }
         );
         println!(
             "  setup {:.3} s; {} quartets computed, {} screened out",

@@ -114,8 +114,9 @@ pub fn class_throughput(ls: [usize; 4], n_prim: usize, min_seconds: f64) -> Clas
 }
 
 /// Compute every unique shell quartet (8-fold symmetry) not removed by the Schwarz bound
-/// at `threshold`, in parallel over bra pairs.
-pub fn all_eris(basis: &BasisSet, threshold: f64) -> MoleculeTiming {
+/// at `threshold`, in parallel over bra pairs: one `EriEngine::shell_quartet` call per
+/// quartet, or with `ket_batches` one `EriEngine::shell_quartets` call per bra pair.
+pub fn all_eris(basis: &BasisSet, threshold: f64, ket_batches: bool) -> MoleculeTiming {
     let t0 = Instant::now();
     let engine = EriEngine::new(basis);
     let setup = t0.elapsed().as_secs_f64();
@@ -131,13 +132,24 @@ pub fn all_eris(basis: &BasisSet, threshold: f64) -> MoleculeTiming {
             let mut out = Vec::new();
             let (mut done, mut skipped, mut count, mut sum) = (0, 0, 0, 0.0);
             let sab = sch[a * n + b];
+            let mut kets = Vec::new();
             for &(c, d) in &pairs[..=i] {
                 if sab * sch[c * n + d] < threshold {
                     skipped += 1;
                     continue;
                 }
+                if ket_batches {
+                    kets.push((c, d));
+                    continue;
+                }
                 engine.shell_quartet(a, b, c, d, &mut out);
                 done += 1;
+                count += out.len();
+                sum += out.iter().map(|x| x.abs()).sum::<f64>();
+            }
+            if ket_batches {
+                engine.shell_quartets(a, b, &kets, &mut out);
+                done += kets.len();
                 count += out.len();
                 sum += out.iter().map(|x| x.abs()).sum::<f64>();
             }

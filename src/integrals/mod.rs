@@ -6,8 +6,8 @@
 //! - `cartesian`: Cartesian component order.
 //! - `hermite_expansion`, `hermite_coulomb`: McMurchie–Davidson E and R quantities.
 //! - `overlap`, `kinetic`, `nuclear`, `dipole`: one-electron matrices (driver in `one_electron`).
-//! - `shell_pair`, `vrr`, `hrr`, `quartet`, `family_cache`, `eri`: the two-electron engine
-//!   (Head-Gordon–Pople); `schwarz` screening helpers.
+//! - `shell_pair`, `vrr`, `hrr`, `quartet`, `ket_batch`, `family_cache`, `eri`: the
+//!   two-electron engine (Head-Gordon–Pople); `schwarz` screening helpers.
 //! - `density_fitting`: (P|Q) and (P|μν) for density fitting.
 //! - `bench`: workloads behind `bandcast bench integrals`.
 pub mod bench;
@@ -20,6 +20,7 @@ pub mod family_cache;
 pub mod hermite_coulomb;
 pub mod hermite_expansion;
 pub mod hrr;
+pub mod ket_batch;
 pub mod kinetic;
 pub mod mo_transform;
 pub mod nuclear;

@@ -14,7 +14,7 @@
 
 use crate::integrals::boys::{boys_array, M_MAX};
 use crate::integrals::hrr;
-use crate::integrals::shell_pair::PairData;
+use crate::integrals::shell_pair::{PairData, Prim};
 use crate::integrals::transform::{transform_axis_sparse, Sparse};
 use crate::integrals::vrr::{self, BatchCoefs, VrrCoefs, LANES, NB_MAX};
 
@@ -35,7 +35,7 @@ pub struct ShellMeta {
 #[derive(Default)]
 pub struct Scratch {
     vrr: Vec<f64>,
-    acc: Vec<f64>,
+    pub(crate) acc: Vec<f64>,
     pacc: Vec<f64>,
     bt: Box<BatchTemps>,
     idx_b: Vec<u32>,
@@ -45,6 +45,13 @@ pub struct Scratch {
     brows: Vec<f64>,
     t1: Vec<f64>,
     t2: Vec<f64>,
+}
+
+impl Scratch {
+    /// The recurrence results of the last batch.
+    pub(crate) fn vrr_slice(&self) -> &[f64] {
+        &self.vrr
+    }
 }
 
 /// (ab|cd) for every member pair of the bra (`pb`) and ket (`pk`) pair data, into
@@ -68,9 +75,10 @@ pub fn contracted_quartet(
     if nmb * nmk == 1 && pb.n_prim == 1 && pk.n_prim == 1 {
         // one primitive quartet (uncontracted shells): straight into the targets
         if pb.bound[0] * pk.bound[0] >= tau {
-            single(plan, pb, 0, pk, 0, &mut s.vrr);
+            single(plan, &pb.prims[0], &pk.prims[0], &mut s.vrr);
+            // 0 + v, as the summing paths (and `ket_batch`) give: same bits, signed zeros too
             for (x, &tg) in s.acc[..nt].iter_mut().zip(&plan.targets) {
-                *x = s.vrr[tg as usize];
+                *x = 0.0 + s.vrr[tg as usize];
             }
         } else {
             s.acc[..nt].fill(0.0);
@@ -203,7 +211,7 @@ fn primitives_ssss(pb: &PairData, pk: &PairData, tau: f64, s: &mut Scratch) {
 }
 
 /// Values of VRR scratch per batch (keeps a batch in the fast caches).
-const BATCH_VALUES: usize = 16384;
+pub(crate) const BATCH_VALUES: usize = 16384;
 
 /// Steps 1–2 for L > 0. Primitive quartets are run in batches through the vectorised
 /// recurrence. For plain shell pairs (coefficients folded into `kpref`) a batch is any run
@@ -348,7 +356,7 @@ fn family_primitives(
 }
 
 /// out[t] += Σ_j c[j] · vrr[targets[t]·nb + j] (c = 1 when None), j < nb, in a fixed order.
-fn contract(
+pub(crate) fn contract(
     targets: &[u32],
     c: Option<&[f64]>,
     vrr: &[f64],
@@ -491,9 +499,24 @@ fn batch(
     ik: &[u32],
     s: &mut Scratch,
 ) -> usize {
-    let nb = ib.len();
+    let lanes = ib
+        .iter()
+        .zip(ik)
+        .map(|(&p, &q)| (&pb.prims[p as usize], &pk.prims[q as usize]));
+    batch_lanes(plan, lanes, ib.len(), s)
+}
+
+/// As [`batch`] for `nb` primitive quartets given as pairs of primitive-pair records.
+/// Returns the lane stride of the results in s.vrr (1 for a single quartet).
+pub(crate) fn batch_lanes<'a>(
+    plan: &vrr::VrrPlan,
+    lanes: impl Iterator<Item = (&'a Prim, &'a Prim)> + Clone,
+    nb: usize,
+    s: &mut Scratch,
+) -> usize {
     if nb == 1 {
-        single(plan, pb, ib[0] as usize, pk, ik[0] as usize, &mut s.vrr);
+        let (x, y) = lanes.clone().next().expect("one lane");
+        single(plan, x, y, &mut s.vrr);
         return 1;
     }
     // padded to whole vector chunks; the padding lanes repeat quartet 0 with prefactor 0
@@ -503,7 +526,7 @@ fn batch(
     let Scratch { vrr, bt, .. } = s;
     grow(vrr, plan.buf_len * nbp);
     let BatchTemps { bc, t, pref, fm } = &mut **bt;
-    fill(pb, pk, ib, ik, bc, t, pref);
+    fill(lanes, bc, t, pref);
     for j in nb..nbp {
         bc.copy_lane(0, j);
         t[j] = t[0];
@@ -521,34 +544,20 @@ fn batch(
 
 /// Boys function and vertical recurrence of the single primitive quartet (p, q), results in
 /// `vrr` at the plan's offsets.
-fn single(
-    plan: &vrr::VrrPlan,
-    pb: &PairData,
-    p: usize,
-    pk: &PairData,
-    q: usize,
-    vrr: &mut Vec<f64>,
-) {
-    let (zeta, eta) = (pb.prims[p].zeta, pk.prims[q].zeta);
+fn single(plan: &vrr::VrrPlan, x: &Prim, y: &Prim, vrr: &mut Vec<f64>) {
+    let (zeta, eta) = (x.zeta, y.zeta);
     let inv = 1.0 / (zeta + eta);
     let rho = zeta * eta * inv;
     let (wp, wq) = (-eta * inv, zeta * inv);
     let pq = [
-        pb.prims[p].center[0] - pk.prims[q].center[0],
-        pb.prims[p].center[1] - pk.prims[q].center[1],
-        pb.prims[p].center[2] - pk.prims[q].center[2],
+        x.center[0] - y.center[0],
+        x.center[1] - y.center[1],
+        x.center[2] - y.center[2],
     ];
     let t = rho * (pq[0] * pq[0] + pq[1] * pq[1] + pq[2] * pq[2]);
-    let pref = TWO_PI_52 * inv.sqrt() * pb.prims[p].kpref * pk.prims[q].kpref;
+    let pref = TWO_PI_52 * inv.sqrt() * x.kpref * y.kpref;
     let c = VrrCoefs {
-        a: [
-            pb.prims[p].pa[0],
-            pb.prims[p].pa[1],
-            pb.prims[p].pa[2],
-            pk.prims[q].pa[0],
-            pk.prims[q].pa[1],
-            pk.prims[q].pa[2],
-        ],
+        a: [x.pa[0], x.pa[1], x.pa[2], y.pa[0], y.pa[1], y.pa[2]],
         b: [
             wp * pq[0],
             wp * pq[1],
@@ -557,11 +566,8 @@ fn single(
             wq * pq[1],
             wq * pq[2],
         ],
-        c: [0.5 * pb.prims[p].inv_zeta, 0.5 * pk.prims[q].inv_zeta],
-        d: [
-            0.5 * eta * inv * pb.prims[p].inv_zeta,
-            0.5 * zeta * inv * pk.prims[q].inv_zeta,
-        ],
+        c: [0.5 * x.inv_zeta, 0.5 * y.inv_zeta],
+        d: [0.5 * eta * inv * x.inv_zeta, 0.5 * zeta * inv * y.inv_zeta],
         e: 0.5 * inv,
     };
     grow(vrr, plan.buf_len);
@@ -598,18 +604,13 @@ impl Default for BatchTemps {
 /// Boys arguments, prefactors and recurrence coefficients of the batch of primitive
 /// quartets (ib[j], ik[j]).
 #[inline(never)]
-fn fill(
-    pb: &PairData,
-    pk: &PairData,
-    ib: &[u32],
-    ik: &[u32],
+fn fill<'a>(
+    lanes: impl Iterator<Item = (&'a Prim, &'a Prim)>,
     bc: &mut BatchCoefs,
     t: &mut [f64; NB_MAX],
     pref: &mut [f64; NB_MAX],
 ) {
-    let nb = ib.len().min(NB_MAX);
-    for j in 0..nb {
-        let (x, y) = (&pb.prims[ib[j] as usize], &pk.prims[ik[j] as usize]);
+    for (j, (x, y)) in lanes.take(NB_MAX).enumerate() {
         let (zeta, eta) = (x.zeta, y.zeta);
         let inv = 1.0 / (zeta + eta);
         let rho = zeta * eta * inv;
@@ -680,7 +681,7 @@ fn transform_axes<'a>(
     }
 }
 
-fn grow(v: &mut Vec<f64>, n: usize) {
+pub(crate) fn grow(v: &mut Vec<f64>, n: usize) {
     if v.len() < n {
         v.resize(n, 0.0);
     }
@@ -688,7 +689,7 @@ fn grow(v: &mut Vec<f64>, n: usize) {
 
 /// Step 3 for one member pair: `acc` holds the contracted [e0|f0], f-major (n_f × n_e).
 #[inline(never)]
-fn finish(
+pub(crate) fn finish(
     metas: [&ShellMeta; 4],
     acc: &[f64],
     ab: [f64; 3],

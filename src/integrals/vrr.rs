@@ -148,8 +148,8 @@ struct Node {
 
 struct Graph {
     nodes: Vec<Node>,
-    /// Node of (e, f) at comp_index(e) · n_comp + comp_index(f), or usize::MAX.
-    index: Vec<usize>,
+    /// Node of (e, f) at comp_index(e) · n_comp + comp_index(f), or u32::MAX.
+    index: Vec<u32>,
     n_comp: usize,
     by_level: Vec<Vec<usize>>,
 }
@@ -168,7 +168,7 @@ impl Graph {
         let n_comp = top * (top + 1) * (top + 2) / 6;
         Graph {
             nodes: Vec::new(),
-            index: vec![usize::MAX; n_comp * n_comp],
+            index: vec![u32::MAX; n_comp * n_comp],
             n_comp,
             by_level: vec![Vec::new(); lab + lcd + 1],
         }
@@ -181,14 +181,14 @@ impl Graph {
     /// The node for `key`, created if new, needing orders up to at least `m`.
     fn request(&mut self, key: Key, m: usize) -> usize {
         let slot = self.slot(key);
-        let k = self.index[slot];
-        if k != usize::MAX {
+        let k = self.index[slot] as usize;
+        if k != u32::MAX as usize {
             self.nodes[k].m = self.nodes[k].m.max(m);
             return k;
         }
-        let level: usize = key.0.iter().chain(key.1.iter()).map(|&x| x as usize).sum();
+        let level = (key.0[0] + key.0[1] + key.0[2] + key.1[0] + key.1[1] + key.1[2]) as usize;
         self.nodes.push(Node { key, m });
-        self.index[slot] = self.nodes.len() - 1;
+        self.index[slot] = (self.nodes.len() - 1) as u32;
         self.by_level[level].push(self.nodes.len() - 1);
         self.nodes.len() - 1
     }
@@ -295,7 +295,7 @@ fn build(la: usize, lab: usize, lc: usize, lcd: usize, strat: Strategy) -> VrrPl
     let zero_len = big_l + 2;
     let mut offset = vec![0usize; g.nodes.len()];
     let mut pos = zero_len;
-    let base_node = g.index[g.slot(([0; 3], [0; 3]))];
+    let base_node = g.index[g.slot(([0; 3], [0; 3]))] as usize;
     // base first, then the rest by level (the order in which steps are run)
     let mut order: Vec<usize> = vec![base_node];
     for level in 1..=big_l {
@@ -309,14 +309,31 @@ fn build(la: usize, lab: usize, lc: usize, lcd: usize, strat: Strategy) -> VrrPl
     // runs of equal kind and number of orders
     let kind_of = |r: &Rec| (r.s3.is_some() as u8) | ((r.s5.is_some() as u8) << 1);
     let mut ordered: Vec<&Rec> = Vec::with_capacity(recs.len());
+    // bucket sort of each level by (kind, m), stable
+    let n_keys = 4 * (big_l + 1);
+    let mut count = vec![0usize; n_keys + 1];
+    let mut keys: Vec<usize> = Vec::new();
     for level in 1..=big_l {
         // the recs of this level sit at recs[level_end[level + 1]..level_end[level]]
         let seg = &recs[level_end[level + 1]..level_end[level]];
+        keys.clear();
+        keys.extend(
+            seg.iter()
+                .map(|r| kind_of(r) as usize * (big_l + 1) + g.nodes[r.node].m),
+        );
+        count.iter_mut().for_each(|c| *c = 0);
+        for &k in &keys {
+            count[k + 1] += 1;
+        }
+        for k in 0..n_keys {
+            count[k + 1] += count[k];
+        }
         let from = ordered.len();
-        ordered.extend(seg.iter());
-        ordered[from..].sort_unstable_by_key(|r| {
-            ((kind_of(r) as u64) << 48) | ((g.nodes[r.node].m as u64) << 32) | r.node as u64
-        });
+        ordered.resize(from + seg.len(), &seg[0]);
+        for (r, &k) in seg.iter().zip(&keys) {
+            ordered[from + count[k]] = r;
+            count[k] += 1;
+        }
     }
     let mut steps = Vec::with_capacity(recs.len());
     let mut runs: Vec<Run> = Vec::new();
