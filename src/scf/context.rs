@@ -7,16 +7,17 @@
 //! `Occupation::Mom`) without recomputing integrals.
 
 use std::collections::HashMap;
+use std::time::Instant;
 
 use bandcast_linalg::Mat;
 
 use super::driver::{self, IterationInfo, Problem, Start};
 use super::fock::quartets::QuartetPlan;
 use super::fock::source::EngineSource;
-use super::fock::{DirectFock, FockBuilder, InCoreFock};
+use super::fock::{DfFock, DirectFock, FockBuilder, InCoreFock};
 use super::guess;
 use super::occupation;
-use super::options::{FockMethod, Guess, Occupation, Reference, ScfOptions};
+use super::options::{DfStart, FockMethod, Guess, Occupation, Reference, ScfOptions};
 use super::orthogonalize::Orthogonalizer;
 use super::spin::s_squared;
 use super::wavefunction::Wavefunction;
@@ -42,9 +43,85 @@ pub struct ScfContext {
     pub engine: EriEngine,
     plan: Option<QuartetPlan>,
     incore: Option<InCoreFock>,
+    df: Option<DfFock>,
     sad: Option<Mat<f64>>,
     /// Description of the Fock builder used by the last run.
     pub last_builder: String,
+    /// What the last run did (builder, density-fitted start, timings).
+    pub last_run: RunRecord,
+    /// Wall seconds of the set-up steps of `ScfContext::new`.
+    pub setup_timings: Vec<(String, f64)>,
+}
+
+/// The auxiliary set for density-fitted J and K unless `ScfOptions::jk_fitting` names one.
+pub const DEFAULT_JK_FITTING: &str = "def2-universal-JKFIT";
+/// Convergence of a density-fitted start before the exact iterations take over: the exact
+/// iterations then only remove the fitting error.
+const DF_START_E_TOL: f64 = 1e-7;
+const DF_START_COMMUTATOR_TOL: f64 = 1e-5;
+
+/// Which Fock builder a run uses.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum BuilderChoice {
+    InCore,
+    /// Integral-direct, optionally after converging with density fitting.
+    Direct {
+        df_start: bool,
+    },
+    DensityFitted,
+}
+
+/// What one `ScfContext::run` did.
+#[derive(Debug, Clone, Default)]
+pub struct RunRecord {
+    /// Description of the Fock builder of the final iterations.
+    pub builder: String,
+    /// J and K of the final iterations were density-fitted (the energy is not the
+    /// exact-integral one).
+    pub density_fitted: bool,
+    /// The density-fitted start before exact iterations, if there was one.
+    pub df_start: Option<DfStartRecord>,
+    /// Why an automatic density-fitted start was not made (e.g. no fitting functions for
+    /// an element).
+    pub df_start_skipped: Option<String>,
+    pub memory_budget_bytes: usize,
+    /// Wall seconds per step (guess, integral storage, iterations, …) in order.
+    pub timings: Vec<(String, f64)>,
+}
+
+#[derive(Debug, Clone)]
+pub struct DfStartRecord {
+    pub iterations: usize,
+    pub builder: String,
+    /// The density-fitted energy it converged to.
+    pub energy: f64,
+}
+
+fn problem<'a>(
+    s: &'a Mat<f64>,
+    h: &'a Mat<f64>,
+    e_nuc: f64,
+    ortho: &'a Orthogonalizer,
+    n_alpha: usize,
+    n_beta: usize,
+) -> Problem<'a> {
+    Problem {
+        s,
+        h,
+        e_nuc,
+        ortho,
+        n_alpha,
+        n_beta,
+    }
+}
+
+/// Run `f`, recording its wall time as "iterations".
+fn timed<T>(rec: &mut RunRecord, f: impl FnOnce() -> T) -> T {
+    let t = Instant::now();
+    let r = f();
+    rec.timings
+        .push(("iterations".into(), t.elapsed().as_secs_f64()));
+    r
 }
 
 /// SCF on `mol` in `basis` (see `ScfOptions` for what can be asked).
@@ -70,20 +147,33 @@ impl ScfContext {
         if basis.n_basis == 0 {
             return Err(Error::input("the basis set has no functions"));
         }
+        let mut setup_timings = Vec::new();
+        let mut t = Instant::now();
+        let mut lap = |name: &str, t: &mut Instant| {
+            setup_timings.push((name.to_string(), t.elapsed().as_secs_f64()));
+            *t = Instant::now();
+        };
         let s = integrals::overlap(basis);
         let h = core_hamiltonian(basis, mol);
+        lap("one-electron integrals", &mut t);
         let ortho = Orthogonalizer::canonical(&s, lindep_threshold)?;
+        lap("orthogonalisation", &mut t);
+        let engine = EriEngine::new(basis);
+        lap("ERI engine and Schwarz bounds", &mut t);
         Ok(ScfContext {
             atoms: mol.atoms.clone(),
             basis: basis.clone(),
             s,
             h,
             ortho,
-            engine: EriEngine::new(basis),
+            engine,
             plan: None,
             incore: None,
+            df: None,
             sad: None,
             last_builder: String::new(),
+            last_run: RunRecord::default(),
+            setup_timings,
         })
     }
 
@@ -99,6 +189,43 @@ impl ScfContext {
     /// Bytes the in-core store needs at this screening threshold.
     pub fn in_core_bytes(&mut self, threshold: f64) -> usize {
         InCoreFock::estimate_bytes(self.plan(threshold))
+    }
+
+    /// The Fock builder `run` would use for these options (without building anything but
+    /// the quartet list).
+    pub fn choose_builder(&mut self, opts: &ScfOptions) -> BuilderChoice {
+        let fits = self.in_core_bytes(opts.screening) <= opts.memory_budget_bytes;
+        match opts.fock {
+            FockMethod::InCore => BuilderChoice::InCore,
+            FockMethod::DensityFitted => BuilderChoice::DensityFitted,
+            FockMethod::Direct => BuilderChoice::Direct {
+                df_start: opts.df_start == DfStart::Always,
+            },
+            FockMethod::Auto if fits => BuilderChoice::InCore,
+            FockMethod::Auto => BuilderChoice::Direct {
+                df_start: match opts.df_start {
+                    DfStart::Always => true,
+                    DfStart::Never => false,
+                    DfStart::Auto => !matches!(opts.guess, Guess::Orbitals { .. }),
+                },
+            },
+        }
+    }
+
+    /// The density-fitting builder for `opts` (built once and kept).
+    fn df_builder(&mut self, mol: &Molecule, opts: &ScfOptions) -> Result<&mut DfFock> {
+        let name = opts.jk_fitting.as_deref().unwrap_or(DEFAULT_JK_FITTING);
+        let aux = crate::basis::load_auxiliary(name, mol)?;
+        if self.df.as_ref().is_none_or(|d| d.aux_name() != aux.name) {
+            self.df = None;
+            let t = Instant::now();
+            self.df = Some(DfFock::new(&self.basis, &aux, opts.memory_budget_bytes)?);
+            self.last_run.timings.push((
+                "density-fitting integrals".into(),
+                t.elapsed().as_secs_f64(),
+            ));
+        }
+        Ok(self.df.as_mut().expect("just built"))
     }
 
     /// One SCF for the electron count and spin of `mol` (same nuclei as the context).
@@ -123,39 +250,104 @@ impl ScfContext {
                 self.basis.name
             )));
         }
-        let start = self.start(mol, opts, n_alpha, n_beta)?;
+        self.last_run = RunRecord {
+            memory_budget_bytes: opts.memory_budget_bytes,
+            ..RunRecord::default()
+        };
+        let t = Instant::now();
+        let mut start = self.start(mol, opts, n_alpha, n_beta)?;
+        self.last_run
+            .timings
+            .push(("guess".into(), t.elapsed().as_secs_f64()));
 
-        // Fock builder.
-        let threshold = opts.screening;
-        let need = self.in_core_bytes(threshold);
-        let use_incore = match opts.fock {
-            FockMethod::InCore => true,
-            FockMethod::Direct => false,
-            FockMethod::Auto => need <= opts.memory_budget_bytes,
+        let choice = self.choose_builder(opts);
+        let e_nuc = mol.nuclear_repulsion();
+        let sol = match choice {
+            BuilderChoice::InCore => {
+                if self.incore.is_none() {
+                    let t = Instant::now();
+                    let src = EngineSource::new(&self.engine, &self.basis);
+                    let plan = self.plan.as_ref().expect("built by choose_builder");
+                    self.incore = Some(InCoreFock::new(&src, plan, opts.memory_budget_bytes)?);
+                    self.last_run
+                        .timings
+                        .push(("in-core integrals".into(), t.elapsed().as_secs_f64()));
+                }
+                let builder = self.incore.as_mut().expect("just built");
+                self.last_run.builder = builder.describe();
+                let problem = problem(&self.s, &self.h, e_nuc, &self.ortho, n_alpha, n_beta);
+                timed(&mut self.last_run, || {
+                    driver::iterate(&problem, builder, opts, start, log)
+                })?
+            }
+            BuilderChoice::DensityFitted => {
+                self.df_builder(mol, opts)?;
+                let builder = self.df.as_mut().expect("just built");
+                self.last_run.builder = builder.describe();
+                self.last_run.density_fitted = true;
+                let problem = problem(&self.s, &self.h, e_nuc, &self.ortho, n_alpha, n_beta);
+                timed(&mut self.last_run, || {
+                    driver::iterate(&problem, builder, opts, start, log)
+                })?
+            }
+            BuilderChoice::Direct { df_start } => {
+                if df_start {
+                    match self.df_builder(mol, opts) {
+                        Ok(_) => {
+                            let builder = self.df.as_mut().expect("just built");
+                            let loose = ScfOptions {
+                                e_tol: opts.e_tol.max(DF_START_E_TOL),
+                                commutator_tol: opts.commutator_tol.max(DF_START_COMMUTATOR_TOL),
+                                ..opts.clone()
+                            };
+                            let problem =
+                                problem(&self.s, &self.h, e_nuc, &self.ortho, n_alpha, n_beta);
+                            let t = Instant::now();
+                            let mut tagged = |i: &IterationInfo| {
+                                let mut j = i.clone();
+                                j.note = format!("density-fitted start {}", j.note)
+                                    .trim_end()
+                                    .to_string();
+                                log(&j)
+                            };
+                            let pre =
+                                driver::iterate(&problem, builder, &loose, start, &mut tagged)?;
+                            self.last_run.df_start = Some(DfStartRecord {
+                                iterations: pre.iterations,
+                                builder: builder.describe(),
+                                energy: pre.energy,
+                            });
+                            self.last_run
+                                .timings
+                                .push(("density-fitted start".into(), t.elapsed().as_secs_f64()));
+                            start = Start::Orbitals {
+                                c_alpha: pre.c_alpha,
+                                c_beta: pre.c_beta,
+                                occ_alpha: pre.occ_alpha,
+                                occ_beta: pre.occ_beta,
+                            };
+                            // The tensor is not needed by the exact iterations.
+                            self.df = None;
+                        }
+                        Err(e) => {
+                            self.last_run.df_start_skipped = Some(e.to_string());
+                        }
+                    }
+                }
+                let src = EngineSource::new(&self.engine, &self.basis);
+                let plan = self.plan.clone().expect("built by choose_builder");
+                let mut direct = DirectFock::new(&src, plan);
+                self.last_run.builder = direct.describe();
+                let problem = problem(&self.s, &self.h, e_nuc, &self.ortho, n_alpha, n_beta);
+                let t = Instant::now();
+                let r = driver::iterate(&problem, &mut direct, opts, start, log);
+                self.last_run
+                    .timings
+                    .push(("iterations".into(), t.elapsed().as_secs_f64()));
+                r?
+            }
         };
-        if use_incore && self.incore.is_none() {
-            let src = EngineSource::new(&self.engine, &self.basis);
-            let plan = self.plan.as_ref().expect("built above");
-            self.incore = Some(InCoreFock::new(&src, plan, opts.memory_budget_bytes)?);
-        }
-        let problem = Problem {
-            s: &self.s,
-            h: &self.h,
-            e_nuc: mol.nuclear_repulsion(),
-            ortho: &self.ortho,
-            n_alpha,
-            n_beta,
-        };
-        let src = EngineSource::new(&self.engine, &self.basis);
-        let mut direct;
-        let builder: &mut dyn FockBuilder = if use_incore {
-            self.incore.as_mut().expect("built above")
-        } else {
-            direct = DirectFock::new(&src, self.plan.clone().expect("built above"));
-            &mut direct
-        };
-        self.last_builder = builder.describe();
-        let sol = driver::iterate(&problem, builder, opts, start, log)?;
+        self.last_builder = self.last_run.builder.clone();
 
         let s2 = match opts.reference {
             Reference::Rhf => 0.0,

@@ -8,9 +8,15 @@
 //! the full matrices are then J = (J̃ + J̃ᵀ)/4 and K = (K̃ + K̃ᵀ)/8 (`finish`). This is the
 //! usual symmetric-digestion scheme of direct SCF (Almlöf, Faegri & Korsell, J. Comput. Chem.
 //! 3 (1982) 385).
+//!
+//! The kernel reads the density rows and updates the accumulator rows in place (no local
+//! copies of the six density and six result blocks): per quartet there is no set-up beyond
+//! slicing rows, which matters because most quartets of a molecule are small ((ss|ss) holds
+//! one integral). (ss|ss) has its own six-line path.
 
 use bandcast_linalg::Mat;
 
+use super::schedule::Partial;
 use super::Jk;
 
 /// Per-chunk accumulators: half J and K per density, row-major n × n.
@@ -19,7 +25,6 @@ pub struct Accumulator {
     pub n: usize,
     pub j: Vec<Vec<f64>>,
     pub k: Vec<Vec<f64>>,
-    scratch: Vec<f64>,
 }
 
 /// Densities in row-major form with their per-shell-pair maxima (for density screening).
@@ -53,8 +58,8 @@ impl Densities {
                 let mut m = 0.0f64;
                 for dv in &d {
                     for i in offsets[a]..offsets[a] + sizes[a] {
-                        for j in offsets[b]..offsets[b] + sizes[b] {
-                            m = m.max(dv[i * n + j].abs());
+                        for x in &dv[i * n + offsets[b]..i * n + offsets[b] + sizes[b]] {
+                            m = m.max(x.abs());
                         }
                     }
                 }
@@ -89,12 +94,12 @@ impl Accumulator {
             n,
             j: vec![vec![0.0; n * n]; n_dens],
             k: vec![vec![0.0; n * n]; n_dens],
-            scratch: Vec::new(),
         }
     }
 
     /// Add the contributions of block (ab|cd), weighted by `deg`, for every density.
-    #[allow(clippy::too_many_arguments)]
+    /// `off` are the first AO indices and `size` the numbers of functions of a, b, c, d.
+    #[inline]
     pub fn add_block(
         &mut self,
         block: &[f64],
@@ -104,75 +109,16 @@ impl Accumulator {
         dens: &Densities,
     ) {
         let n = self.n;
-        let [oa, ob, oc, od] = off;
-        let [na, nb, nc, nd] = size;
-        let (sab, scd, sac, sbd, sad, sbc) = (na * nb, nc * nd, na * nc, nb * nd, na * nd, nb * nc);
-        let tot = 2 * (sab + scd + sac + sbd + sad + sbc);
-        self.scratch.clear();
-        self.scratch.resize(tot, 0.0);
-        for (t, dm) in dens.d.iter().enumerate() {
-            // Local density blocks, then local accumulators.
-            let (dloc, acc) = self.scratch.split_at_mut(sab + scd + sac + sbd + sad + sbc);
-            acc.iter_mut().for_each(|v| *v = 0.0);
-            let (d_ab, rest) = dloc.split_at_mut(sab);
-            let (d_cd, rest) = rest.split_at_mut(scd);
-            let (d_ac, rest) = rest.split_at_mut(sac);
-            let (d_bd, rest) = rest.split_at_mut(sbd);
-            let (d_ad, d_bc) = rest.split_at_mut(sad);
-            fill(d_ab, dm, n, oa, na, ob, nb);
-            fill(d_cd, dm, n, oc, nc, od, nd);
-            fill(d_ac, dm, n, oa, na, oc, nc);
-            fill(d_bd, dm, n, ob, nb, od, nd);
-            fill(d_ad, dm, n, oa, na, od, nd);
-            fill(d_bc, dm, n, ob, nb, oc, nc);
-            let (j_ab, rest) = acc.split_at_mut(sab);
-            let (j_cd, rest) = rest.split_at_mut(scd);
-            let (k_ac, rest) = rest.split_at_mut(sac);
-            let (k_bd, rest) = rest.split_at_mut(sbd);
-            let (k_ad, k_bc) = rest.split_at_mut(sad);
-            let mut idx = 0;
-            for i in 0..na {
-                for j in 0..nb {
-                    let dij = d_ab[i * nb + j];
-                    let mut jij = 0.0;
-                    for k in 0..nc {
-                        let dik = d_ac[i * nc + k];
-                        let djk = d_bc[j * nc + k];
-                        let mut kik = 0.0;
-                        let mut kjk = 0.0;
-                        let row = &block[idx..idx + nd];
-                        idx += nd;
-                        for (l, &v0) in row.iter().enumerate() {
-                            let v = v0 * deg;
-                            jij += d_cd[k * nd + l] * v;
-                            j_cd[k * nd + l] += dij * v;
-                            kik += d_bd[j * nd + l] * v;
-                            k_bd[j * nd + l] += dik * v;
-                            kjk += d_ad[i * nd + l] * v;
-                            k_ad[i * nd + l] += djk * v;
-                        }
-                        k_ac[i * nc + k] += kik;
-                        k_bc[j * nc + k] += kjk;
-                    }
-                    j_ab[i * nb + j] += jij;
-                }
+        assert!(
+            off.iter().zip(&size).all(|(o, s)| o + s <= n)
+                && block.len() >= size.iter().product::<usize>()
+        );
+        for ((d, jt), kt) in dens.d.iter().zip(&mut self.j).zip(&mut self.k) {
+            if size == [1, 1, 1, 1] {
+                digest_ssss(block[0] * deg, off, d, jt, kt, n);
+            } else {
+                digest(block, off, size, deg, d, jt, kt, n);
             }
-            scatter(&mut self.j[t], j_ab, n, oa, na, ob, nb);
-            scatter(&mut self.j[t], j_cd, n, oc, nc, od, nd);
-            scatter(&mut self.k[t], k_ac, n, oa, na, oc, nc);
-            scatter(&mut self.k[t], k_bd, n, ob, nb, od, nd);
-            scatter(&mut self.k[t], k_ad, n, oa, na, od, nd);
-            scatter(&mut self.k[t], k_bc, n, ob, nb, oc, nc);
-        }
-    }
-
-    /// Add another accumulator (used to reduce chunks in a fixed order).
-    pub fn add(&mut self, other: &Accumulator) {
-        for (a, b) in self.j.iter_mut().zip(&other.j) {
-            a.iter_mut().zip(b).for_each(|(x, y)| *x += y);
-        }
-        for (a, b) in self.k.iter_mut().zip(&other.k) {
-            a.iter_mut().zip(b).for_each(|(x, y)| *x += y);
         }
     }
 
@@ -190,19 +136,110 @@ impl Accumulator {
     }
 }
 
-#[inline]
-fn fill(dst: &mut [f64], d: &[f64], n: usize, o1: usize, n1: usize, o2: usize, n2: usize) {
-    for i in 0..n1 {
-        dst[i * n2..(i + 1) * n2].copy_from_slice(&d[(o1 + i) * n + o2..(o1 + i) * n + o2 + n2]);
+impl Partial for Accumulator {
+    fn clear(&mut self) {
+        for v in self.j.iter_mut().chain(self.k.iter_mut()) {
+            v.iter_mut().for_each(|x| *x = 0.0);
+        }
+    }
+
+    fn add(&mut self, other: &Accumulator) {
+        for (a, b) in self.j.iter_mut().zip(&other.j) {
+            a.iter_mut().zip(b).for_each(|(x, y)| *x += y);
+        }
+        for (a, b) in self.k.iter_mut().zip(&other.k) {
+            a.iter_mut().zip(b).for_each(|(x, y)| *x += y);
+        }
     }
 }
 
+/// (ss|ss): one integral `v` (already weighted), six updates.
 #[inline]
-fn scatter(m: &mut [f64], src: &[f64], n: usize, o1: usize, n1: usize, o2: usize, n2: usize) {
-    for i in 0..n1 {
-        let row = &mut m[(o1 + i) * n + o2..(o1 + i) * n + o2 + n2];
-        row.iter_mut()
-            .zip(&src[i * n2..(i + 1) * n2])
-            .for_each(|(x, y)| *x += y);
+fn digest_ssss(v: f64, off: [usize; 4], d: &[f64], jt: &mut [f64], kt: &mut [f64], n: usize) {
+    let [a, b, c, e] = off;
+    jt[a * n + b] += d[c * n + e] * v;
+    jt[c * n + e] += d[a * n + b] * v;
+    kt[a * n + c] += d[b * n + e] * v;
+    kt[b * n + e] += d[a * n + c] * v;
+    kt[a * n + e] += d[b * n + c] * v;
+    kt[b * n + c] += d[a * n + e] * v;
+}
+
+/// The general block: loops i (a), j (b), k (c), l (d) with the l loop over contiguous row
+/// pieces of D and of the accumulators.
+#[allow(clippy::too_many_arguments)]
+#[inline]
+fn digest(
+    block: &[f64],
+    off: [usize; 4],
+    size: [usize; 4],
+    deg: f64,
+    d: &[f64],
+    jt: &mut [f64],
+    kt: &mut [f64],
+    n: usize,
+) {
+    let [oa, ob, oc, od] = off;
+    let [na, nb, nc, nd] = size;
+    let mut idx = 0;
+    for i in 0..na {
+        let ri = (oa + i) * n;
+        for j in 0..nb {
+            let rj = (ob + j) * n;
+            let dij = d[ri + ob + j];
+            let mut jij = 0.0;
+            for k in 0..nc {
+                let rk = (oc + k) * n;
+                let dik = d[ri + oc + k];
+                let djk = d[rj + oc + k];
+                let row = &block[idx..idx + nd];
+                idx += nd;
+                let d_cd = &d[rk + od..rk + od + nd];
+                let d_bd = &d[rj + od..rj + od + nd];
+                let d_ad = &d[ri + od..ri + od + nd];
+                let j_cd = &mut jt[rk + od..rk + od + nd];
+                let mut kik = 0.0;
+                let mut kjk = 0.0;
+                if ri == rj {
+                    // same AO for a and b: K̃_bd and K̃_ad are one row (and dik = djk)
+                    let k_d = &mut kt[ri + od..ri + od + nd];
+                    for l in 0..nd {
+                        let v = row[l] * deg;
+                        jij += d_cd[l] * v;
+                        j_cd[l] += dij * v;
+                        kik += d_bd[l] * v;
+                        k_d[l] += dik * v;
+                        kjk += d_ad[l] * v;
+                        k_d[l] += djk * v;
+                    }
+                } else {
+                    let (k_bd, k_ad) = two_rows(kt, rj + od, ri + od, nd);
+                    for l in 0..nd {
+                        let v = row[l] * deg;
+                        jij += d_cd[l] * v;
+                        j_cd[l] += dij * v;
+                        kik += d_bd[l] * v;
+                        k_bd[l] += dik * v;
+                        kjk += d_ad[l] * v;
+                        k_ad[l] += djk * v;
+                    }
+                }
+                kt[ri + oc + k] += kik;
+                kt[rj + oc + k] += kjk;
+            }
+            jt[ri + ob + j] += jij;
+        }
+    }
+}
+
+/// Two disjoint mutable pieces m[x..x+len] and m[y..y+len] (x ≠ y rows of one matrix).
+#[inline]
+fn two_rows(m: &mut [f64], x: usize, y: usize, len: usize) -> (&mut [f64], &mut [f64]) {
+    if x < y {
+        let (lo, hi) = m.split_at_mut(y);
+        (&mut lo[x..x + len], &mut hi[..len])
+    } else {
+        let (lo, hi) = m.split_at_mut(x);
+        (&mut hi[..len], &mut lo[y..y + len])
     }
 }

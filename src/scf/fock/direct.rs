@@ -5,13 +5,13 @@
 //! ΔD shrinks and density screening skips more and more quartets. A full build every
 //! `full_every` calls keeps rounding from accumulating.
 
-use rayon::prelude::*;
-
 use bandcast_linalg::Mat;
 
+use std::sync::atomic::{AtomicUsize, Ordering};
+
 use super::digest::{Accumulator, Densities};
-use super::incore::reduce;
 use super::quartets::{degeneracy, QuartetPlan};
+use super::schedule::ordered_sum;
 use super::source::EriSource;
 use super::{FockBuilder, Jk};
 use crate::error::Result;
@@ -25,6 +25,8 @@ pub struct DirectFock<'a> {
     last: Option<(Vec<Mat<f64>>, Vec<Jk>)>,
     /// Quartets computed in the last build (for logs and tests).
     pub last_computed: usize,
+    /// Whether the last build was incremental.
+    pub last_incremental: bool,
 }
 
 impl<'a> DirectFock<'a> {
@@ -36,6 +38,7 @@ impl<'a> DirectFock<'a> {
             since_full: 0,
             last: None,
             last_computed: 0,
+            last_incremental: false,
         }
     }
 
@@ -45,14 +48,14 @@ impl<'a> DirectFock<'a> {
         let (sizes, offsets) = (src.shell_sizes(), src.shell_offsets());
         let n = src.n_basis();
         let dens = Densities::new(densities, sizes, offsets);
-        let results: Vec<(Accumulator, usize)> = plan
-            .chunks
-            .par_iter()
-            .map(|range| {
-                let mut acc = Accumulator::new(n, densities.len());
+        let computed = AtomicUsize::new(0);
+        let total = ordered_sum(
+            plan.chunks.len(),
+            || Accumulator::new(n, densities.len()),
+            |k, acc| {
                 let mut buf = Vec::new();
-                let mut computed = 0;
-                for p in range.clone() {
+                let mut count = 0;
+                for p in plan.chunks[k].clone() {
                     let (a, b) = plan.pairs[p];
                     for r in 0..=p {
                         let bound = plan.q[p] * plan.q[r];
@@ -64,7 +67,7 @@ impl<'a> DirectFock<'a> {
                             continue;
                         }
                         src.quartet(a, b, c, d, &mut buf);
-                        computed += 1;
+                        count += 1;
                         acc.add_block(
                             &buf,
                             [offsets[a], offsets[b], offsets[c], offsets[d]],
@@ -74,12 +77,11 @@ impl<'a> DirectFock<'a> {
                         );
                     }
                 }
-                (acc, computed)
-            })
-            .collect();
-        self.last_computed = results.iter().map(|r| r.1).sum();
-        let partials = results.into_iter().map(|r| r.0).collect();
-        reduce(partials, n, densities.len()).finish()
+                computed.fetch_add(count, Ordering::Relaxed);
+            },
+        );
+        self.last_computed = computed.into_inner();
+        total.finish()
     }
 }
 
@@ -97,6 +99,7 @@ impl FockBuilder for DirectFock<'_> {
                 .last
                 .as_ref()
                 .is_some_and(|(d, _)| d.len() == densities.len());
+        self.last_incremental = incremental;
         if !incremental {
             let out = self.build(densities);
             self.since_full = 1;
@@ -118,6 +121,14 @@ impl FockBuilder for DirectFock<'_> {
         self.since_full += 1;
         self.last = Some((densities.iter().map(|&d| d.clone()).collect(), out.clone()));
         Ok(out)
+    }
+
+    fn last_note(&self) -> Option<String> {
+        Some(format!(
+            "{} build, {:.0}% of quartets",
+            if self.last_incremental { "ΔD" } else { "full" },
+            100.0 * self.last_computed as f64 / self.plan.n_quartets.max(1) as f64
+        ))
     }
 
     fn reset(&mut self) {

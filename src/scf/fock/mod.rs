@@ -8,13 +8,16 @@
 //! `TensorFock` (a full n⁴ tensor, for tiny model systems and tests). The in-core and direct
 //! builders share the quartet list (`quartets.rs`) and the digestion kernel (`digest.rs`).
 
+pub mod df;
 pub mod digest;
 pub mod direct;
 pub mod incore;
 pub mod quartets;
+pub mod schedule;
 pub mod source;
 pub mod tensor;
 
+pub use df::DfFock;
 pub use direct::DirectFock;
 pub use incore::InCoreFock;
 pub use source::{EriSource, TensorEri};
@@ -40,6 +43,10 @@ pub trait FockBuilder {
     fn jk(&mut self, densities: &[&Mat<f64>]) -> Result<Vec<Jk>>;
     /// Forget any state kept between calls (next build is from scratch).
     fn reset(&mut self) {}
+    /// A short note on the last build for progress lines (e.g. work skipped by screening).
+    fn last_note(&self) -> Option<String> {
+        None
+    }
 }
 
 #[cfg(test)]
