@@ -323,6 +323,108 @@ fn solve_metric(l: &Mat<f64>, b: &mut [f64], naux: usize, npair: usize) {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::basis::Shell;
+    use crate::scf::fock::TensorFock;
+
+    fn shell(l: usize, exponent: f64) -> Shell {
+        Shell {
+            l,
+            pure: true,
+            center: [0.1, -0.2, 0.3],
+            atom: 0,
+            exponents: vec![exponent],
+            coefficients: vec![1.0],
+        }
+    }
+
+    fn max_diff(a: &Mat<f64>, b: &Mat<f64>) -> f64 {
+        let mut m = 0.0f64;
+        for i in 0..a.nrows() {
+            for j in 0..a.ncols() {
+                m = m.max((a[(i, j)] - b[(i, j)]).abs());
+            }
+        }
+        m
+    }
+
+    /// One centre, orbitals s(α) and p(β): every product φ_μ φ_ν is one of the Gaussians
+    /// s(2α), p(α+β) or Cartesian d(2β) (x_i x_j e^{−2βr²}; Gaussian product rule), so
+    /// with exactly those fitting functions the Coulomb-metric fit reproduces every
+    /// integral and DF must give the exact J and K for any density (indefinite ones too).
+    #[test]
+    fn exact_when_the_fitting_set_spans_all_products() {
+        let (a, b) = (1.3, 0.7);
+        let basis = BasisSet::from_shells("orbital", vec![shell(0, a), shell(1, b)]);
+        let aux = BasisSet::from_shells(
+            "fit",
+            vec![
+                shell(0, 2.0 * a),
+                shell(1, a + b),
+                Shell {
+                    pure: false,
+                    ..shell(2, 2.0 * b)
+                },
+            ],
+        );
+        let n = basis.n_basis;
+        let mut df = DfFock::new(&basis, &aux, 1 << 30).unwrap();
+        let mut exact = TensorFock::new(n, crate::integrals::eri_tensor(&basis));
+        for shift in [0.0, 0.7] {
+            let d = Mat::<f64>::from_fn(n, n, |i, j| {
+                ((i + 2 * j) as f64 * 0.37 + shift).sin()
+                    + ((j + 2 * i) as f64 * 0.37 + shift).sin()
+            });
+            let want = exact.jk(&[&d]).unwrap();
+            let got = df.jk(&[&d]).unwrap();
+            assert!(
+                max_diff(&want[0].j, &got[0].j) < 1e-10,
+                "J {}",
+                max_diff(&want[0].j, &got[0].j)
+            );
+            assert!(
+                max_diff(&want[0].k, &got[0].k) < 1e-10,
+                "K {}",
+                max_diff(&want[0].k, &got[0].k)
+            );
+        }
+    }
+
+    #[test]
+    fn same_bits_on_one_and_two_threads() {
+        let path = concat!(env!("CARGO_MANIFEST_DIR"), "/tests/data/gw100/water.xyz");
+        let mol = crate::chem::xyz::read_xyz(
+            std::path::Path::new(path),
+            crate::chem::xyz::LengthUnit::Angstrom,
+        )
+        .unwrap();
+        let basis = crate::basis::load("cc-pVDZ", &mol, None).unwrap();
+        let aux = crate::basis::load_auxiliary("def2-universal-JKFIT", &mol).unwrap();
+        let n = basis.n_basis;
+        let d = Mat::<f64>::from_fn(n, n, |i, j| 1.0 / (1.0 + (i as f64 - j as f64).abs()));
+        let run = |threads: usize| {
+            let pool = rayon::ThreadPoolBuilder::new()
+                .num_threads(threads)
+                .build()
+                .unwrap();
+            pool.install(|| {
+                let mut df = DfFock::new(&basis, &aux, 1 << 30).unwrap();
+                df.jk(&[&d]).unwrap()
+            })
+        };
+        let (x, y) = (run(1), run(2));
+        assert_eq!(max_diff(&x[0].j, &y[0].j), 0.0);
+        assert_eq!(max_diff(&x[0].k, &y[0].k), 0.0);
+    }
+
+    #[test]
+    fn refuses_over_budget() {
+        let basis = BasisSet::from_shells("orbital", vec![shell(0, 1.0), shell(1, 0.5)]);
+        let aux = BasisSet::from_shells("fit", vec![shell(0, 2.0), shell(1, 1.5)]);
+        assert!(matches!(
+            DfFock::new(&basis, &aux, 8),
+            Err(Error::TooLarge(_))
+        ));
+    }
 
     #[test]
     fn factorisation_reproduces_an_indefinite_density() {

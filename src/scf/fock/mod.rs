@@ -150,6 +150,62 @@ mod tests {
         assert_eq!(max_diff(&a[0].k, &b[0].k), 0.0);
     }
 
+    /// A tensor source whose shells come in general-contraction families, so the plan
+    /// reorders the pairs family pair by family pair.
+    struct FamilySource(TensorEri, Vec<usize>);
+    impl EriSource for FamilySource {
+        fn shell_sizes(&self) -> &[usize] {
+            self.0.shell_sizes()
+        }
+        fn shell_offsets(&self) -> &[usize] {
+            self.0.shell_offsets()
+        }
+        fn schwarz(&self) -> &[f64] {
+            self.0.schwarz()
+        }
+        fn quartet(&self, a: usize, b: usize, c: usize, d: usize, out: &mut Vec<f64>) {
+            self.0.quartet(a, b, c, d, out)
+        }
+        fn families(&self) -> Vec<usize> {
+            self.1.clone()
+        }
+        fn primitives(&self) -> Vec<usize> {
+            vec![3; self.1.len()]
+        }
+    }
+
+    #[test]
+    fn family_ordered_pairs_cover_each_quartet_once() {
+        let sizes = vec![1, 1, 3, 1, 3, 5, 1, 1];
+        let families = vec![0, 0, 2, 3, 2, 5, 3, 3];
+        let n: usize = sizes.iter().sum();
+        let eri = model_tensor(n);
+        let src = FamilySource(TensorEri::new(eri.clone(), sizes), families);
+        let plan = QuartetPlan::with_chunks(&src, 0.0, 5);
+        let pairs = &plan.pairs;
+        assert_eq!(pairs.len(), 36);
+        // the pairs of one family pair are adjacent
+        let fam = &src.1;
+        let key = |&(a, b): &(usize, usize)| (fam[a].max(fam[b]), fam[a].min(fam[b]));
+        let mut seen = Vec::new();
+        for (i, p) in pairs.iter().enumerate() {
+            if i == 0 || key(p) != key(&pairs[i - 1]) {
+                assert!(!seen.contains(&key(p)), "family pair {:?} split", key(p));
+                seen.push(key(p));
+            }
+        }
+        let mut reference = TensorFock::new(n, eri);
+        let mut incore = InCoreFock::new(&src, &plan, 1 << 30).unwrap();
+        let d1 = model_density(n, 0.2);
+        let d2 = model_density(n, 0.9);
+        let want = reference.jk(&[&d1, &d2]).unwrap();
+        let got = incore.jk(&[&d1, &d2]).unwrap();
+        for (w, g) in want.iter().zip(&got) {
+            assert!(max_diff(&w.j, &g.j) < 1e-11, "J {}", max_diff(&w.j, &g.j));
+            assert!(max_diff(&w.k, &g.k) < 1e-11, "K {}", max_diff(&w.k, &g.k));
+        }
+    }
+
     #[test]
     fn in_core_refuses_over_budget() {
         let sizes = vec![3, 3];
