@@ -109,9 +109,12 @@ impl Accumulator {
         dens: &Densities,
     ) {
         let n = self.n;
+        // The kernels below index without checks: this is their guarantee.
         assert!(
             off.iter().zip(&size).all(|(o, s)| o + s <= n)
                 && block.len() >= size.iter().product::<usize>()
+                && dens.d.iter().all(|d| d.len() == n * n)
+                && self.j.iter().chain(&self.k).all(|m| m.len() == n * n)
         );
         for ((d, jt), kt) in dens.d.iter().zip(&mut self.j).zip(&mut self.k) {
             if size == [1, 1, 1, 1] {
@@ -166,7 +169,8 @@ fn digest_ssss(v: f64, off: [usize; 4], d: &[f64], jt: &mut [f64], kt: &mut [f64
 }
 
 /// The general block: loops i (a), j (b), k (c), l (d) with the l loop over contiguous row
-/// pieces of D and of the accumulators.
+/// pieces of D and of the accumulators. Common widths of the d shell get their own copy with
+/// the width known at compile time (unrolled, no bounds checks in the l loop).
 #[allow(clippy::too_many_arguments)]
 #[inline]
 fn digest(
@@ -179,67 +183,103 @@ fn digest(
     kt: &mut [f64],
     n: usize,
 ) {
-    let [oa, ob, oc, od] = off;
-    let [na, nb, nc, nd] = size;
-    let mut idx = 0;
-    for i in 0..na {
-        let ri = (oa + i) * n;
-        for j in 0..nb {
-            let rj = (ob + j) * n;
-            let dij = d[ri + ob + j];
-            let mut jij = 0.0;
-            for k in 0..nc {
-                let rk = (oc + k) * n;
-                let dik = d[ri + oc + k];
-                let djk = d[rj + oc + k];
-                let row = &block[idx..idx + nd];
-                idx += nd;
-                let d_cd = &d[rk + od..rk + od + nd];
-                let d_bd = &d[rj + od..rj + od + nd];
-                let d_ad = &d[ri + od..ri + od + nd];
-                let j_cd = &mut jt[rk + od..rk + od + nd];
-                let mut kik = 0.0;
-                let mut kjk = 0.0;
-                if ri == rj {
-                    // same AO for a and b: K̃_bd and K̃_ad are one row (and dik = djk)
-                    let k_d = &mut kt[ri + od..ri + od + nd];
-                    for l in 0..nd {
-                        let v = row[l] * deg;
-                        jij += d_cd[l] * v;
-                        j_cd[l] += dij * v;
-                        kik += d_bd[l] * v;
-                        k_d[l] += dik * v;
-                        kjk += d_ad[l] * v;
-                        k_d[l] += djk * v;
-                    }
-                } else {
-                    let (k_bd, k_ad) = two_rows(kt, rj + od, ri + od, nd);
-                    for l in 0..nd {
-                        let v = row[l] * deg;
-                        jij += d_cd[l] * v;
-                        j_cd[l] += dij * v;
-                        kik += d_bd[l] * v;
-                        k_bd[l] += dik * v;
-                        kjk += d_ad[l] * v;
-                        k_ad[l] += djk * v;
-                    }
-                }
-                kt[ri + oc + k] += kik;
-                kt[rj + oc + k] += kjk;
-            }
-            jt[ri + ob + j] += jij;
-        }
+    match size[3] {
+        1 => digest_w::<1>(block, off, size, deg, d, jt, kt, n),
+        3 => digest_w::<3>(block, off, size, deg, d, jt, kt, n),
+        5 => digest_w::<5>(block, off, size, deg, d, jt, kt, n),
+        6 => digest_w::<6>(block, off, size, deg, d, jt, kt, n),
+        7 => digest_w::<7>(block, off, size, deg, d, jt, kt, n),
+        9 => digest_w::<9>(block, off, size, deg, d, jt, kt, n),
+        10 => digest_w::<10>(block, off, size, deg, d, jt, kt, n),
+        _ => digest_w::<0>(block, off, size, deg, d, jt, kt, n),
     }
 }
 
-/// Two disjoint mutable pieces m[x..x+len] and m[y..y+len] (x ≠ y rows of one matrix).
-#[inline]
-fn two_rows(m: &mut [f64], x: usize, y: usize, len: usize) -> (&mut [f64], &mut [f64]) {
-    if x < y {
-        let (lo, hi) = m.split_at_mut(y);
-        (&mut lo[x..x + len], &mut hi[..len])
-    } else {
-        let (lo, hi) = m.split_at_mut(x);
-        (&mut hi[..len], &mut lo[y..y + len])
+/// `digest` for a d shell of ND functions (ND = 0: any width, read from `size`).
+///
+/// The caller (`add_block`) has checked that every shell range lies inside the n × n
+/// matrices and that `block` holds the whole quartet, so all indices below are in bounds;
+/// the loop uses unchecked pointer arithmetic because most rows are only 1–5 long and
+/// per-row bounds checks and slicing used to cost more than the arithmetic.
+#[allow(clippy::too_many_arguments)]
+#[inline(always)]
+fn digest_w<const ND: usize>(
+    block: &[f64],
+    off: [usize; 4],
+    size: [usize; 4],
+    deg: f64,
+    d: &[f64],
+    jt: &mut [f64],
+    kt: &mut [f64],
+    n: usize,
+) {
+    let [oa, ob, oc, od] = off;
+    let [na, nb, nc, _] = size;
+    let nd = if ND == 0 { size[3] } else { ND };
+    debug_assert!(off.iter().zip(&size).all(|(o, s)| o + s <= n));
+    debug_assert!(block.len() >= na * nb * nc * nd);
+    let (bp, dp, jp, kp) = (block.as_ptr(), d.as_ptr(), jt.as_mut_ptr(), kt.as_mut_ptr());
+    // SAFETY: see the doc comment: every index is < n² (matrices) or < na·nb·nc·nd (block).
+    // K̃_bd and K̃_ad may be the same row (a and b the same AO); the updates are then applied
+    // one after the other, which is what the sum means.
+    unsafe {
+        let mut v = bp;
+        for i in 0..na {
+            let ri = (oa + i) * n;
+            let d_ad = dp.add(ri + od);
+            let k_ad = kp.add(ri + od);
+            for j in 0..nb {
+                let rj = (ob + j) * n;
+                let dij = *dp.add(ri + ob + j);
+                let d_bd = dp.add(rj + od);
+                let k_bd = kp.add(rj + od);
+                let mut jij = 0.0;
+                for k in 0..nc {
+                    let rk = (oc + k) * n + od;
+                    let dik = *dp.add(ri + oc + k);
+                    let djk = *dp.add(rj + oc + k);
+                    let d_cd = dp.add(rk);
+                    let j_cd = jp.add(rk);
+                    // Two lanes (even and odd l) so the three sums are not one long
+                    // dependency chain each; the order of additions is fixed.
+                    let (mut jij2, mut kik, mut kik2, mut kjk, mut kjk2) =
+                        (0.0, 0.0, 0.0, 0.0, 0.0);
+                    let mut l = 0;
+                    while l + 1 < nd {
+                        let x = *v.add(l) * deg;
+                        let y = *v.add(l + 1) * deg;
+                        jij += *d_cd.add(l) * x;
+                        jij2 += *d_cd.add(l + 1) * y;
+                        *j_cd.add(l) += dij * x;
+                        *j_cd.add(l + 1) += dij * y;
+                        kik += *d_bd.add(l) * x;
+                        kik2 += *d_bd.add(l + 1) * y;
+                        *k_bd.add(l) += dik * x;
+                        *k_bd.add(l + 1) += dik * y;
+                        kjk += *d_ad.add(l) * x;
+                        kjk2 += *d_ad.add(l + 1) * y;
+                        *k_ad.add(l) += djk * x;
+                        *k_ad.add(l + 1) += djk * y;
+                        l += 2;
+                    }
+                    if l < nd {
+                        let x = *v.add(l) * deg;
+                        jij += *d_cd.add(l) * x;
+                        *j_cd.add(l) += dij * x;
+                        kik += *d_bd.add(l) * x;
+                        *k_bd.add(l) += dik * x;
+                        kjk += *d_ad.add(l) * x;
+                        *k_ad.add(l) += djk * x;
+                    }
+                    jij += jij2;
+                    kik += kik2;
+                    kjk += kjk2;
+                    v = v.add(nd);
+                    *kp.add(ri + oc + k) += kik;
+                    *kp.add(rj + oc + k) += kjk;
+                }
+                *jp.add(ri + ob + j) += jij;
+            }
+        }
     }
 }
