@@ -40,12 +40,13 @@ pub fn clear_vector_state() {
     }
 }
 
-/// `clear_vector_state` on the calling thread and on every thread of the current rayon
-/// pool.
+/// `clear_vector_state` on the calling thread now and on every other thread of the current
+/// rayon pool as soon as it looks for work (`rayon::spawn_broadcast`: nothing waits, so
+/// this cannot deadlock whatever the caller holds).
 pub fn clear_vector_state_all_threads() {
     clear_vector_state();
     if rayon::current_num_threads() > 1 {
-        rayon::broadcast(|_| clear_vector_state());
+        rayon::spawn_broadcast(|_| clear_vector_state());
     }
 }
 

@@ -77,9 +77,9 @@ pub struct Args {
     /// 1e-5 Eh per atom).
     #[arg(long, value_name = "HOW", default_value = "auto", value_parser = ["auto", "in-core", "direct", "df"])]
     pub fock: String,
-    /// Before exact integral-direct iterations, converge with density-fitted J and K:
-    /// auto (for automatic direct runs from a SAD or core guess), yes or no. The final
-    /// energy is the exact-integral one either way.
+    /// Before exact integral-direct iterations, converge with density-fitted J and K
+    /// (corrected once by an exact build): auto (for automatic direct runs from a SAD or
+    /// core guess), yes or no. The final energy is the exact-integral one either way.
     #[arg(long, value_name = "WHEN", default_value = "auto", value_parser = ["auto", "yes", "no"])]
     pub df_start: String,
     /// Auxiliary basis for density-fitted J and K (a bundled fitting set or a file).
@@ -347,6 +347,7 @@ fn to_json(mol: &Molecule, wf: &Wavefunction, info: &RunInfo) -> String {
         },
         "density_fitted_start": info.df_start.as_ref().map(|d| serde_json::json!({
             "iterations": d.iterations,
+            "corrected_iterations": d.corrected_iterations,
             "energy_hartree": d.energy,
         })),
         "dipole_debye": { "x": d[0], "y": d[1], "z": d[2], "total": d[3] },
@@ -406,9 +407,9 @@ fn to_text(mol: &Molecule, wf: &Wavefunction, info: &RunInfo, all: bool) -> Stri
     if let Some(d) = &info.df_start {
         let _ = writeln!(
             s,
-            "started from {} density-fitted iterations ({}); the energy below is the \
-             exact-integral one",
-            d.iterations, info.jk_fitting
+            "started from {} density-fitted iterations and {} with the fit corrected by one \
+             exact build ({}); the energy below is the exact-integral one",
+            d.iterations, d.corrected_iterations, info.jk_fitting
         );
     }
     if info.density_fitted {

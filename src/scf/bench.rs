@@ -142,7 +142,11 @@ fn time_one(dir: &Path, case: &Case, budget: usize) -> Result<Timed> {
         cpu,
         wf,
         builder: ctx.last_run.builder.clone(),
-        df_start_iterations: ctx.last_run.df_start.as_ref().map_or(0, |d| d.iterations),
+        df_start_iterations: ctx
+            .last_run
+            .df_start
+            .as_ref()
+            .map_or(0, |d| d.iterations + d.corrected_iterations),
         n_basis: b.n_basis,
         timings,
     })

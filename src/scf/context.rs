@@ -11,6 +11,7 @@ use std::time::Instant;
 
 use bandcast_linalg::Mat;
 
+pub use super::df_start::DfStartRecord;
 use super::driver::{self, IterationInfo, Problem, Start};
 use super::fock::quartets::QuartetPlan;
 use super::fock::source::EngineSource;
@@ -55,10 +56,6 @@ pub struct ScfContext {
 
 /// The auxiliary set for density-fitted J and K unless `ScfOptions::jk_fitting` names one.
 pub const DEFAULT_JK_FITTING: &str = "def2-universal-JKFIT";
-/// Convergence of a density-fitted start before the exact iterations take over: the exact
-/// iterations then only remove the fitting error.
-const DF_START_E_TOL: f64 = 1e-7;
-const DF_START_COMMUTATOR_TOL: f64 = 1e-5;
 
 /// Which Fock builder a run uses.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -87,14 +84,6 @@ pub struct RunRecord {
     pub memory_budget_bytes: usize,
     /// Wall seconds per step (guess, integral storage, iterations, …) in order.
     pub timings: Vec<(String, f64)>,
-}
-
-#[derive(Debug, Clone)]
-pub struct DfStartRecord {
-    pub iterations: usize,
-    pub builder: String,
-    /// The density-fitted energy it converged to.
-    pub energy: f64,
 }
 
 fn problem<'a>(
@@ -292,53 +281,27 @@ impl ScfContext {
             }
             BuilderChoice::Direct { df_start } => {
                 if df_start {
-                    match self.df_builder(mol, opts) {
-                        Ok(_) => {
-                            let builder = self.df.as_mut().expect("just built");
-                            let loose = ScfOptions {
-                                e_tol: opts.e_tol.max(DF_START_E_TOL),
-                                commutator_tol: opts.commutator_tol.max(DF_START_COMMUTATOR_TOL),
-                                ..opts.clone()
-                            };
-                            let problem =
-                                problem(&self.s, &self.h, e_nuc, &self.ortho, n_alpha, n_beta);
-                            let t = Instant::now();
-                            let mut tagged = |i: &IterationInfo| {
-                                let mut j = i.clone();
-                                j.note = format!("density-fitted start {}", j.note)
-                                    .trim_end()
-                                    .to_string();
-                                log(&j)
-                            };
-                            let pre =
-                                driver::iterate(&problem, builder, &loose, start, &mut tagged)?;
-                            self.last_run.df_start = Some(DfStartRecord {
-                                iterations: pre.iterations,
-                                builder: builder.describe(),
-                                energy: pre.energy,
-                            });
-                            self.last_run
-                                .timings
-                                .push(("density-fitted start".into(), t.elapsed().as_secs_f64()));
-                            start = Start::Orbitals {
-                                c_alpha: pre.c_alpha,
-                                c_beta: pre.c_beta,
-                                occ_alpha: pre.occ_alpha,
-                                occ_beta: pre.occ_beta,
-                            };
-                            // The tensor is not needed by the exact iterations.
-                            self.df = None;
-                        }
-                        Err(e) => {
-                            self.last_run.df_start_skipped = Some(e.to_string());
-                        }
+                    if let Err(e) = self.df_builder(mol, opts) {
+                        self.last_run.df_start_skipped = Some(e.to_string());
                     }
                 }
                 let src = EngineSource::new(&self.engine, &self.basis);
                 let plan = self.plan.clone().expect("built by choose_builder");
                 let mut direct = DirectFock::new(&src, plan);
-                self.last_run.builder = direct.describe();
                 let problem = problem(&self.s, &self.h, e_nuc, &self.ortho, n_alpha, n_beta);
+                if let Some(df) = self.df.as_mut().filter(|_| df_start) {
+                    let t = Instant::now();
+                    let (s, record) =
+                        super::df_start::df_start(&problem, df, &mut direct, opts, start, log)?;
+                    start = s;
+                    self.last_run.df_start = Some(record);
+                    self.last_run
+                        .timings
+                        .push(("density-fitted start".into(), t.elapsed().as_secs_f64()));
+                    // The tensor is not needed by the exact iterations.
+                    self.df = None;
+                }
+                self.last_run.builder = direct.describe();
                 let t = Instant::now();
                 let r = driver::iterate(&problem, &mut direct, opts, start, log);
                 self.last_run

@@ -8,6 +8,7 @@
 pub mod bench;
 pub mod context;
 pub mod convergence;
+pub mod df_start;
 pub mod diis;
 pub mod driver;
 pub mod fock;
