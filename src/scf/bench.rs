@@ -77,6 +77,8 @@ pub struct CaseResult {
     pub seconds_one_thread: Option<f64>,
     /// Peak resident memory during the case (VmHWM after resetting it, MiB), when readable.
     pub peak_mib: Option<f64>,
+    /// Resident memory when the case started (memory kept by earlier cases), MiB.
+    pub start_mib: Option<f64>,
     /// Memory budget for stored integrals (bytes).
     pub memory_budget_bytes: usize,
     /// Wall seconds per step of the timed run.
@@ -98,6 +100,14 @@ pub fn cpu_seconds() -> Option<f64> {
 pub fn peak_memory_mib() -> Option<f64> {
     let s = std::fs::read_to_string("/proc/self/status").ok()?;
     let line = s.lines().find(|l| l.starts_with("VmHWM:"))?;
+    let kb: f64 = line.split_whitespace().nth(1)?.parse().ok()?;
+    Some(kb / 1024.0)
+}
+
+/// Current resident set size from /proc/self/status (Linux), MiB.
+pub fn resident_memory_mib() -> Option<f64> {
+    let s = std::fs::read_to_string("/proc/self/status").ok()?;
+    let line = s.lines().find(|l| l.starts_with("VmRSS:"))?;
     let kb: f64 = line.split_whitespace().nth(1)?.parse().ok()?;
     Some(kb / 1024.0)
 }
@@ -164,6 +174,7 @@ pub fn run_scf_bench(
     let mut out = Vec::new();
     for case in cases(quick, guanine) {
         let can_reset = reset_peak_memory();
+        let start_mib = resident_memory_mib();
         let t = time_one(dir, &case, budget)?;
         let peak = if can_reset { peak_memory_mib() } else { None };
         let seconds_one_thread = if case.one_thread && rayon::current_num_threads() > 1 {
@@ -207,6 +218,7 @@ pub fn run_scf_bench(
             cpu_seconds: t.cpu,
             seconds_one_thread,
             peak_mib: peak,
+            start_mib,
             memory_budget_bytes: budget,
             timings: t.timings,
         };
@@ -237,9 +249,14 @@ pub fn format_result(r: &CaseResult) -> String {
         .filter(|(_, s)| *s >= 0.005)
         .map(|(w, s)| format!("{w} {s:.2}"))
         .collect();
+    let peak = match (r.peak_mib, r.start_mib) {
+        (Some(p), Some(s)) => format!("peak {p:>6.0} MiB ({:+.0} over the start)", p - s),
+        (Some(p), None) => format!("peak {p:>6.0} MiB"),
+        _ => "peak not readable".into(),
+    };
     format!(
         "scf  {:<10} {:<11} {:>4} fn  {:>9} it  {:>8.2} s on {} threads, {:>7.1} CPU-s  ({})  \
-         peak {:>7.0} MiB  E = {:.8}  HOMO {:.4} eV\n     builder: {}\n     steps (s): {}",
+         {}  E = {:.8}  HOMO {:.4} eV\n     builder: {}\n     steps (s): {}",
         r.molecule,
         r.basis,
         r.n_basis,
@@ -248,7 +265,7 @@ pub fn format_result(r: &CaseResult) -> String {
         r.threads,
         r.cpu_seconds.unwrap_or(f64::NAN),
         speed,
-        r.peak_mib.unwrap_or(f64::NAN),
+        peak,
         r.energy,
         r.homo_ev,
         r.builder,
