@@ -8,7 +8,7 @@ use std::time::Instant;
 use crate::basis;
 use crate::chem::xyz::{read_xyz, LengthUnit};
 use crate::error::{Error, Result};
-use crate::scf::{self, FockMethod, ScfContext, ScfOptions};
+use crate::scf::{self, DfStart, FockMethod, ScfContext, ScfOptions};
 use crate::units::HARTREE_TO_EV;
 
 /// One benchmark case: a GW100 structure file stem, a basis and a Fock builder.
@@ -17,17 +17,21 @@ pub struct Case {
     pub molecule: &'static str,
     pub basis: &'static str,
     pub fock: FockMethod,
+    pub df_start: DfStart,
     /// Also time it on one thread (for the speed-up).
     pub one_thread: bool,
 }
 
-/// The cases: `quick` keeps only the two small ones; `guanine` adds guanine/def2-TZVPP
-/// (exact, integral-direct after a density-fitted start, and density-fitted; long).
+/// The cases: `quick` keeps only the two small ones; the full set adds benzene/def2-TZVPP
+/// three ways (the default builder, integral-direct after a density-fitted start, and
+/// density-fitted); `guanine` adds guanine/def2-TZVPP (default builder, which is direct
+/// unless ~20 GiB are available, and density-fitted; long).
 pub fn cases(quick: bool, guanine: bool) -> Vec<Case> {
     let case = |molecule, basis, fock, one_thread| Case {
         molecule,
         basis,
         fock,
+        df_start: DfStart::Auto,
         one_thread,
     };
     let mut v = vec![
@@ -36,6 +40,10 @@ pub fn cases(quick: bool, guanine: bool) -> Vec<Case> {
     ];
     if !quick {
         v.push(case("benzene", "def2-TZVPP", FockMethod::Auto, true));
+        v.push(Case {
+            df_start: DfStart::Always,
+            ..case("benzene", "def2-TZVPP", FockMethod::Direct, false)
+        });
         v.push(case(
             "benzene",
             "def2-TZVPP",
@@ -136,6 +144,7 @@ fn time_one(dir: &Path, case: &Case, budget: usize) -> Result<Timed> {
     let c0 = cpu_seconds();
     let opts = ScfOptions {
         fock: case.fock,
+        df_start: case.df_start,
         memory_budget_bytes: budget,
         ..ScfOptions::default()
     };
