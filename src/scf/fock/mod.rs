@@ -129,6 +129,27 @@ mod tests {
     }
 
     #[test]
+    fn every_kernel_width_matches_plain_summation() {
+        // d-shell widths 7, 9, 10 (compile-time kernels), 2 and 4 (general kernel), 1 and
+        // (ss|ss) blocks; two densities as for UHF.
+        let sizes = vec![7, 1, 9, 2, 10, 4, 1];
+        let n: usize = sizes.iter().sum();
+        let eri = model_tensor(n);
+        let src = TensorEri::new(eri.clone(), sizes);
+        let mut reference = TensorFock::new(n, eri);
+        let plan = QuartetPlan::new(&src, 0.0);
+        let mut incore = InCoreFock::new(&src, &plan, 1 << 30).unwrap();
+        let d1 = model_density(n, 0.4);
+        let d2 = model_density(n, 1.3);
+        let want = reference.jk(&[&d1, &d2]).unwrap();
+        let got = incore.jk(&[&d1, &d2]).unwrap();
+        for (w, g) in want.iter().zip(&got) {
+            assert!(max_diff(&w.j, &g.j) < 1e-10, "J {}", max_diff(&w.j, &g.j));
+            assert!(max_diff(&w.k, &g.k) < 1e-10, "K {}", max_diff(&w.k, &g.k));
+        }
+    }
+
+    #[test]
     fn same_bits_on_one_and_two_threads() {
         let sizes = vec![3, 1, 5, 3, 1, 6, 3, 1];
         let n: usize = sizes.iter().sum();
