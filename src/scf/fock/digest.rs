@@ -199,8 +199,8 @@ fn digest(
 ///
 /// The caller (`add_block`) has checked that every shell range lies inside the n × n
 /// matrices and that `block` holds the whole quartet, so all indices below are in bounds;
-/// the loop uses unchecked pointer arithmetic because most rows are only 1–5 long and
-/// per-row bounds checks and slicing used to cost more than the arithmetic.
+/// the loop builds its row slices without checks because most rows are only 1–5 long and
+/// per-row bounds checks used to cost more than the arithmetic.
 #[allow(clippy::too_many_arguments)]
 #[inline(always)]
 fn digest_w<const ND: usize>(
@@ -219,61 +219,39 @@ fn digest_w<const ND: usize>(
     debug_assert!(off.iter().zip(&size).all(|(o, s)| o + s <= n));
     debug_assert!(block.len() >= na * nb * nc * nd);
     let (bp, dp, jp, kp) = (block.as_ptr(), d.as_ptr(), jt.as_mut_ptr(), kt.as_mut_ptr());
-    // SAFETY: see the doc comment: every index is < n² (matrices) or < na·nb·nc·nd (block).
-    // K̃_bd and K̃_ad may be the same row (a and b the same AO); the updates are then applied
-    // one after the other, which is what the sum means.
+    // SAFETY: see the doc comment: every row piece lies inside its n × n matrix (or inside
+    // the block). Mutable pieces never overlap: J̃ and K̃ are different arrays, and K̃_bd and
+    // K̃_ad are rows rj ≠ ri (when a and b are the same AO, ri = rj, one piece is made and
+    // `row_update_same` applies both updates to it). The K̃_ac, K̃_bc and J̃_ab elements are
+    // written through the pointers only after the row pieces of that step are gone.
     unsafe {
         let mut v = bp;
         for i in 0..na {
             let ri = (oa + i) * n;
-            let d_ad = dp.add(ri + od);
-            let k_ad = kp.add(ri + od);
+            let d_ad = std::slice::from_raw_parts(dp.add(ri + od), nd);
             for j in 0..nb {
                 let rj = (ob + j) * n;
                 let dij = *dp.add(ri + ob + j);
-                let d_bd = dp.add(rj + od);
-                let k_bd = kp.add(rj + od);
+                let d_bd = std::slice::from_raw_parts(dp.add(rj + od), nd);
                 let mut jij = 0.0;
                 for k in 0..nc {
                     let rk = (oc + k) * n + od;
                     let dik = *dp.add(ri + oc + k);
                     let djk = *dp.add(rj + oc + k);
-                    let d_cd = dp.add(rk);
-                    let j_cd = jp.add(rk);
-                    // Two lanes (even and odd l) so the three sums are not one long
-                    // dependency chain each; the order of additions is fixed.
-                    let (mut jij2, mut kik, mut kik2, mut kjk, mut kjk2) =
-                        (0.0, 0.0, 0.0, 0.0, 0.0);
-                    let mut l = 0;
-                    while l + 1 < nd {
-                        let x = *v.add(l) * deg;
-                        let y = *v.add(l + 1) * deg;
-                        jij += *d_cd.add(l) * x;
-                        jij2 += *d_cd.add(l + 1) * y;
-                        *j_cd.add(l) += dij * x;
-                        *j_cd.add(l + 1) += dij * y;
-                        kik += *d_bd.add(l) * x;
-                        kik2 += *d_bd.add(l + 1) * y;
-                        *k_bd.add(l) += dik * x;
-                        *k_bd.add(l + 1) += dik * y;
-                        kjk += *d_ad.add(l) * x;
-                        kjk2 += *d_ad.add(l + 1) * y;
-                        *k_ad.add(l) += djk * x;
-                        *k_ad.add(l + 1) += djk * y;
-                        l += 2;
-                    }
-                    if l < nd {
-                        let x = *v.add(l) * deg;
-                        jij += *d_cd.add(l) * x;
-                        *j_cd.add(l) += dij * x;
-                        kik += *d_bd.add(l) * x;
-                        *k_bd.add(l) += dik * x;
-                        kjk += *d_ad.add(l) * x;
-                        *k_ad.add(l) += djk * x;
-                    }
-                    jij += jij2;
-                    kik += kik2;
-                    kjk += kjk2;
+                    let row = std::slice::from_raw_parts(v, nd);
+                    let d_cd = std::slice::from_raw_parts(dp.add(rk), nd);
+                    let j_cd = std::slice::from_raw_parts_mut(jp.add(rk), nd);
+                    let (sj, kik, kjk) = if ri != rj {
+                        // distinct rows: the compiler may treat them as not overlapping
+                        let k_bd = std::slice::from_raw_parts_mut(kp.add(rj + od), nd);
+                        let k_ad = std::slice::from_raw_parts_mut(kp.add(ri + od), nd);
+                        row_update(row, deg, d_cd, d_bd, d_ad, j_cd, k_bd, k_ad, dij, dik, djk)
+                    } else {
+                        // a and b the same AO: K̃_bd and K̃_ad are one row (dik = djk)
+                        let k_d = std::slice::from_raw_parts_mut(kp.add(ri + od), nd);
+                        row_update_same(row, deg, d_cd, d_bd, d_ad, j_cd, k_d, dij, dik, djk)
+                    };
+                    jij += sj;
                     v = v.add(nd);
                     *kp.add(ri + oc + k) += kik;
                     *kp.add(rj + oc + k) += kjk;
@@ -282,4 +260,83 @@ fn digest_w<const ND: usize>(
             }
         }
     }
+}
+
+/// One row l = 0 … nd−1 of the kernel for distinct K̃_bd and K̃_ad rows; returns the three
+/// sums (J̃_ab, K̃_ac, K̃_bc parts). Two lanes (even and odd l), so the sums are not single
+/// long dependency chains and pairs of l can share vector instructions; the order of the
+/// additions is fixed.
+#[allow(clippy::too_many_arguments)]
+#[inline(always)]
+fn row_update(
+    row: &[f64],
+    deg: f64,
+    d_cd: &[f64],
+    d_bd: &[f64],
+    d_ad: &[f64],
+    j_cd: &mut [f64],
+    k_bd: &mut [f64],
+    k_ad: &mut [f64],
+    dij: f64,
+    dik: f64,
+    djk: f64,
+) -> (f64, f64, f64) {
+    let nd = row.len();
+    let (d_cd, d_bd, d_ad) = (&d_cd[..nd], &d_bd[..nd], &d_ad[..nd]);
+    let (j_cd, k_bd, k_ad) = (&mut j_cd[..nd], &mut k_bd[..nd], &mut k_ad[..nd]);
+    let mut sj = [0.0; 2];
+    let mut sk1 = [0.0; 2];
+    let mut sk2 = [0.0; 2];
+    let pairs = nd / 2;
+    for p in 0..pairs {
+        for t in 0..2 {
+            let l = 2 * p + t;
+            let x = row[l] * deg;
+            sj[t] += d_cd[l] * x;
+            j_cd[l] += dij * x;
+            sk1[t] += d_bd[l] * x;
+            k_bd[l] += dik * x;
+            sk2[t] += d_ad[l] * x;
+            k_ad[l] += djk * x;
+        }
+    }
+    if nd % 2 == 1 {
+        let l = nd - 1;
+        let x = row[l] * deg;
+        sj[0] += d_cd[l] * x;
+        j_cd[l] += dij * x;
+        sk1[0] += d_bd[l] * x;
+        k_bd[l] += dik * x;
+        sk2[0] += d_ad[l] * x;
+        k_ad[l] += djk * x;
+    }
+    (sj[0] + sj[1], sk1[0] + sk1[1], sk2[0] + sk2[1])
+}
+
+/// `row_update` when K̃_bd and K̃_ad are the same row.
+#[allow(clippy::too_many_arguments)]
+#[inline(always)]
+fn row_update_same(
+    row: &[f64],
+    deg: f64,
+    d_cd: &[f64],
+    d_bd: &[f64],
+    d_ad: &[f64],
+    j_cd: &mut [f64],
+    k_d: &mut [f64],
+    dij: f64,
+    dik: f64,
+    djk: f64,
+) -> (f64, f64, f64) {
+    let (mut sj, mut sk1, mut sk2) = (0.0, 0.0, 0.0);
+    for l in 0..row.len() {
+        let x = row[l] * deg;
+        sj += d_cd[l] * x;
+        j_cd[l] += dij * x;
+        sk1 += d_bd[l] * x;
+        k_d[l] += dik * x;
+        sk2 += d_ad[l] * x;
+        k_d[l] += djk * x;
+    }
+    (sj, sk1, sk2)
 }
