@@ -72,14 +72,15 @@ pub struct Args {
     #[arg(long, value_name = "D", default_value_t = 0.0)]
     pub damping: f64,
     /// How J and K are built: auto (in-core when the integrals fit --memory, else
-    /// integral-direct after a density-fitted start), in-core, direct, or df
+    /// integral-direct; large jobs after a density-fitted start), in-core, direct, or df
     /// (density-fitted J and K: fast, but the energy carries the fitting error, measured
     /// 2e-6 to 4e-5 Eh per atom).
     #[arg(long, value_name = "HOW", default_value = "auto", value_parser = ["auto", "in-core", "direct", "df"])]
     pub fock: String,
-    /// Before exact integral-direct iterations, converge with density-fitted J and K
-    /// (corrected once by an exact build): auto (for automatic direct runs from a SAD or
-    /// core guess), yes or no. The final energy is the exact-integral one either way.
+    /// Before the exact iterations, converge with density-fitted J and K (corrected once by
+    /// an exact build): auto (from a SAD or core guess, for integral-direct runs and for
+    /// in-core runs storing at least 1 GiB), yes or no. The final energy is the
+    /// exact-integral one either way.
     #[arg(long, value_name = "WHEN", default_value = "auto", value_parser = ["auto", "yes", "no"])]
     pub df_start: String,
     /// Auxiliary basis for density-fitted J and K (a bundled fitting set or a file).
@@ -169,7 +170,9 @@ pub fn run(args: Args) -> Result<()> {
             gib(need),
             gib(opts.memory_budget_bytes),
             match ctx.choose_builder(&opts) {
-                BuilderChoice::InCore => "in-core".to_string(),
+                BuilderChoice::InCore { df_start: false } => "in-core".to_string(),
+                BuilderChoice::InCore { df_start: true } =>
+                    format!("in-core after a density-fitted start ({})", args.jk_fitting),
                 BuilderChoice::DensityFitted => format!("density-fitted ({})", args.jk_fitting),
                 BuilderChoice::Direct { df_start: true } => format!(
                     "integral-direct after a density-fitted start ({})",

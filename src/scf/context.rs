@@ -54,13 +54,21 @@ pub struct ScfContext {
     pub setup_timings: Vec<(String, f64)>,
 }
 
+/// In-core stores at least this large get a density-fitted start under `DfStart::Auto`:
+/// each in-core build then reads gigabytes (≈ 1.3 CPU-s for benzene/def2-TZVPP's 4.85 GiB),
+/// and the start replaces ~10 of them by 3.
+const DF_START_MIN_IN_CORE_BYTES: usize = 1 << 30;
+
 /// The auxiliary set for density-fitted J and K unless `ScfOptions::jk_fitting` names one.
 pub const DEFAULT_JK_FITTING: &str = "def2-universal-JKFIT";
 
 /// Which Fock builder a run uses.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum BuilderChoice {
-    InCore,
+    /// Unique ERIs stored, optionally after converging with density fitting (large stores).
+    InCore {
+        df_start: bool,
+    },
     /// Integral-direct, optionally after converging with density fitting.
     Direct {
         df_start: bool,
@@ -102,6 +110,59 @@ fn problem<'a>(
         n_alpha,
         n_beta,
     }
+}
+
+/// Build the density-fitting tensor into `slot` unless it holds one for the same fitting set.
+fn ensure_df(
+    slot: &mut Option<DfFock>,
+    record: &mut RunRecord,
+    basis: &BasisSet,
+    mol: &Molecule,
+    opts: &ScfOptions,
+) -> Result<()> {
+    let name = opts.jk_fitting.as_deref().unwrap_or(DEFAULT_JK_FITTING);
+    let aux = crate::basis::load_auxiliary(name, mol)?;
+    if slot.as_ref().is_none_or(|d| d.aux_name() != aux.name) {
+        *slot = None;
+        let t = Instant::now();
+        *slot = Some(DfFock::new(basis, &aux, opts.memory_budget_bytes)?);
+        record.timings.push((
+            "density-fitting integrals".into(),
+            t.elapsed().as_secs_f64(),
+        ));
+    }
+    Ok(())
+}
+
+/// The density-fitted start (`df_start.rs`) before exact iterations with `exact`; returns
+/// the start of the exact iterations. When the fitting set does not cover the molecule or
+/// its tensor does not fit the budget, nothing is done and `record` says why.
+#[allow(clippy::too_many_arguments)]
+fn df_start_with(
+    slot: &mut Option<DfFock>,
+    record: &mut RunRecord,
+    basis: &BasisSet,
+    problem: &Problem,
+    exact: &mut dyn FockBuilder,
+    mol: &Molecule,
+    opts: &ScfOptions,
+    start: Start,
+    log: &mut dyn FnMut(&IterationInfo),
+) -> Result<Start> {
+    if let Err(e) = ensure_df(slot, record, basis, mol, opts) {
+        record.df_start_skipped = Some(e.to_string());
+        return Ok(start);
+    }
+    let df = slot.as_mut().expect("just built");
+    let t = Instant::now();
+    let (s, rec) = super::df_start::df_start(problem, df, exact, opts, start, log)?;
+    record.df_start = Some(rec);
+    record
+        .timings
+        .push(("density-fitted start".into(), t.elapsed().as_secs_f64()));
+    // The tensor is not needed by the exact iterations.
+    *slot = None;
+    Ok(s)
 }
 
 /// Run `f`, recording its wall time as "iterations".
@@ -183,37 +244,32 @@ impl ScfContext {
     /// The Fock builder `run` would use for these options (without building anything but
     /// the quartet list).
     pub fn choose_builder(&mut self, opts: &ScfOptions) -> BuilderChoice {
-        let fits = self.in_core_bytes(opts.screening) <= opts.memory_budget_bytes;
+        let need = self.in_core_bytes(opts.screening);
+        let fits = need <= opts.memory_budget_bytes;
+        let from_scratch = !matches!(opts.guess, Guess::Orbitals { .. });
+        let df_start = |auto: bool| match opts.df_start {
+            DfStart::Always => true,
+            DfStart::Never => false,
+            DfStart::Auto => auto && from_scratch,
+        };
+        let auto = opts.fock == FockMethod::Auto;
         match opts.fock {
-            FockMethod::InCore => BuilderChoice::InCore,
             FockMethod::DensityFitted => BuilderChoice::DensityFitted,
             FockMethod::Direct => BuilderChoice::Direct {
-                df_start: opts.df_start == DfStart::Always,
+                df_start: df_start(false),
             },
-            FockMethod::Auto if fits => BuilderChoice::InCore,
-            FockMethod::Auto => BuilderChoice::Direct {
-                df_start: match opts.df_start {
-                    DfStart::Always => true,
-                    DfStart::Never => false,
-                    DfStart::Auto => !matches!(opts.guess, Guess::Orbitals { .. }),
-                },
+            FockMethod::InCore | FockMethod::Auto if fits || !auto => BuilderChoice::InCore {
+                df_start: df_start(auto && need >= DF_START_MIN_IN_CORE_BYTES),
+            },
+            _ => BuilderChoice::Direct {
+                df_start: df_start(true),
             },
         }
     }
 
     /// The density-fitting builder for `opts` (built once and kept).
     fn df_builder(&mut self, mol: &Molecule, opts: &ScfOptions) -> Result<&mut DfFock> {
-        let name = opts.jk_fitting.as_deref().unwrap_or(DEFAULT_JK_FITTING);
-        let aux = crate::basis::load_auxiliary(name, mol)?;
-        if self.df.as_ref().is_none_or(|d| d.aux_name() != aux.name) {
-            self.df = None;
-            let t = Instant::now();
-            self.df = Some(DfFock::new(&self.basis, &aux, opts.memory_budget_bytes)?);
-            self.last_run.timings.push((
-                "density-fitting integrals".into(),
-                t.elapsed().as_secs_f64(),
-            ));
-        }
+        ensure_df(&mut self.df, &mut self.last_run, &self.basis, mol, opts)?;
         Ok(self.df.as_mut().expect("just built"))
     }
 
@@ -252,7 +308,7 @@ impl ScfContext {
         let choice = self.choose_builder(opts);
         let e_nuc = mol.nuclear_repulsion();
         let sol = match choice {
-            BuilderChoice::InCore => {
+            BuilderChoice::InCore { df_start } => {
                 if self.incore.is_none() {
                     let t = Instant::now();
                     let src = EngineSource::new(&self.engine, &self.basis);
@@ -261,6 +317,20 @@ impl ScfContext {
                     self.last_run
                         .timings
                         .push(("in-core integrals".into(), t.elapsed().as_secs_f64()));
+                }
+                if df_start {
+                    let problem = problem(&self.s, &self.h, e_nuc, &self.ortho, n_alpha, n_beta);
+                    start = df_start_with(
+                        &mut self.df,
+                        &mut self.last_run,
+                        &self.basis,
+                        &problem,
+                        self.incore.as_mut().expect("just built"),
+                        mol,
+                        opts,
+                        start,
+                        log,
+                    )?;
                 }
                 let builder = self.incore.as_mut().expect("just built");
                 self.last_run.builder = builder.describe();
@@ -280,28 +350,25 @@ impl ScfContext {
                 })?
             }
             BuilderChoice::Direct { df_start } => {
-                if df_start {
-                    if let Err(e) = self.df_builder(mol, opts) {
-                        self.last_run.df_start_skipped = Some(e.to_string());
-                    }
-                }
                 let src = EngineSource::new(&self.engine, &self.basis);
                 let plan = self.plan.clone().expect("built by choose_builder");
                 let mut direct = DirectFock::new(&src, plan);
-                let problem = problem(&self.s, &self.h, e_nuc, &self.ortho, n_alpha, n_beta);
-                if let Some(df) = self.df.as_mut().filter(|_| df_start) {
-                    let t = Instant::now();
-                    let (s, record) =
-                        super::df_start::df_start(&problem, df, &mut direct, opts, start, log)?;
-                    start = s;
-                    self.last_run.df_start = Some(record);
-                    self.last_run
-                        .timings
-                        .push(("density-fitted start".into(), t.elapsed().as_secs_f64()));
-                    // The tensor is not needed by the exact iterations.
-                    self.df = None;
+                if df_start {
+                    let problem = problem(&self.s, &self.h, e_nuc, &self.ortho, n_alpha, n_beta);
+                    start = df_start_with(
+                        &mut self.df,
+                        &mut self.last_run,
+                        &self.basis,
+                        &problem,
+                        &mut direct,
+                        mol,
+                        opts,
+                        start,
+                        log,
+                    )?;
                 }
                 self.last_run.builder = direct.describe();
+                let problem = problem(&self.s, &self.h, e_nuc, &self.ortho, n_alpha, n_beta);
                 let t = Instant::now();
                 let r = driver::iterate(&problem, &mut direct, opts, start, log);
                 self.last_run
