@@ -14,6 +14,50 @@ use faer::linalg::triangular_solve::{
 };
 use faer::{Accum, Side};
 
+/// Clear the upper halves of the vector registers of the calling thread (`vzeroupper`).
+///
+/// faer's vectorised kernels can leave the upper halves of the AVX registers "dirty" on the
+/// threads that ran them. Code compiled for baseline x86-64 (SSE encodings: all of
+/// bandcast's own loops, e.g. the integral engine) then runs up to about twice as slow on
+/// those threads, because every SSE instruction must merge with the stale upper bits
+/// (measured: all ERIs of benzene/cc-pVDZ after one faer eigen-decomposition took 4.0–5.7
+/// instead of 3.2 CPU-s). Every wrapper below calls this (on all pool threads when faer ran
+/// in parallel); call it yourself at the start of hot loops that may run after faer code
+/// called outside this crate.
+#[inline]
+pub fn clear_vector_state() {
+    #[cfg(target_arch = "x86_64")]
+    {
+        #[target_feature(enable = "avx")]
+        unsafe fn zero_upper() {
+            std::arch::x86_64::_mm256_zeroupper();
+        }
+        if std::arch::is_x86_feature_detected!("avx") {
+            // SAFETY: the CPU supports AVX (checked above); vzeroupper only clears the
+            // upper register halves, which hold no live values between function calls.
+            unsafe { zero_upper() };
+        }
+    }
+}
+
+/// `clear_vector_state` on the calling thread now and on every other thread of the current
+/// rayon pool as soon as it looks for work (`rayon::spawn_broadcast`: nothing waits, so
+/// this cannot deadlock whatever the caller holds).
+pub fn clear_vector_state_all_threads() {
+    clear_vector_state();
+    if rayon::current_num_threads() > 1 {
+        rayon::spawn_broadcast(|_| clear_vector_state());
+    }
+}
+
+/// After a faer call with parallelism `par`: clear the vector state where faer ran.
+fn after(par: Par) {
+    match par {
+        Par::Seq => clear_vector_state(),
+        _ => clear_vector_state_all_threads(),
+    }
+}
+
 /// Parallelism for the calls below: all rayon threads, or sequential for small matrices
 /// (faer's sequential path is faster below about n = 100).
 pub fn par_for(n: usize) -> Par {
@@ -40,6 +84,7 @@ pub fn eigh(a: MatRef<'_, f64>) -> (Vec<f64>, Mat<f64>) {
     let eig = a
         .self_adjoint_eigen(Side::Lower)
         .expect("symmetric eigen-decomposition failed");
+    after(faer::get_global_parallelism());
     let w: Vec<f64> = eig.S().column_vector().iter().copied().collect();
     (w, eig.U().to_owned())
 }
@@ -65,6 +110,7 @@ pub fn gemm(
         Accum::Replace
     };
     matmul(c, acc, a, b, alpha, par);
+    after(par);
 }
 
 /// op(a) * op(b) as a new matrix.
@@ -92,20 +138,91 @@ pub fn congruence(a: MatRef<'_, f64>, m: MatRef<'_, f64>) -> Mat<f64> {
     mul(a, true, ma.as_ref(), false)
 }
 
+/// `eigh` with explicit parallelism: `Par::Seq` gives the same bits on any thread count.
+pub fn eigh_with(a: MatRef<'_, f64>, par: Par) -> (Vec<f64>, Mat<f64>) {
+    use faer::dyn_stack::{MemBuffer, MemStack};
+    use faer::linalg::evd;
+    let n = a.nrows();
+    assert_eq!(n, a.ncols(), "eigh needs a square matrix");
+    if n == 0 {
+        return (Vec::new(), Mat::zeros(0, 0));
+    }
+    let mut u = Mat::<f64>::zeros(n, n);
+    let mut s = faer::diag::Diag::<f64>::zeros(n);
+    let mut mem = MemBuffer::new(evd::self_adjoint_evd_scratch::<f64>(
+        n,
+        evd::ComputeEigenvectors::Yes,
+        par,
+        Default::default(),
+    ));
+    evd::self_adjoint_evd(
+        a,
+        s.as_mut(),
+        Some(u.as_mut()),
+        par,
+        MemStack::new(&mut mem),
+        Default::default(),
+    )
+    .expect("symmetric eigen-decomposition failed");
+    after(par);
+    let w: Vec<f64> = s.column_vector().iter().copied().collect();
+    (w, u)
+}
+
+/// `cholesky_lower` with explicit parallelism (`Par::Seq`: the same bits on any thread
+/// count).
+pub fn cholesky_lower_with(a: MatRef<'_, f64>, par: Par) -> Option<Mat<f64>> {
+    use faer::dyn_stack::{MemBuffer, MemStack};
+    use faer::linalg::cholesky::llt::factor;
+    let n = a.nrows();
+    let mut l = a.to_owned();
+    let mut mem = MemBuffer::new(factor::cholesky_in_place_scratch::<f64>(
+        n,
+        par,
+        Default::default(),
+    ));
+    factor::cholesky_in_place(
+        l.as_mut(),
+        Default::default(),
+        par,
+        MemStack::new(&mut mem),
+        Default::default(),
+    )
+    .ok()?;
+    after(par);
+    for j in 0..n {
+        for i in 0..j {
+            l[(i, j)] = 0.0;
+        }
+    }
+    Some(l)
+}
+
+/// Solve L X = B in place with explicit parallelism.
+pub fn solve_lower_in_place_with(l: MatRef<'_, f64>, b: MatMut<'_, f64>, par: Par) {
+    solve_lower_triangular_in_place(l, b, par);
+    after(par);
+}
+
 /// Lower Cholesky factor L of a symmetric positive-definite matrix, or None.
 pub fn cholesky_lower(a: MatRef<'_, f64>) -> Option<Mat<f64>> {
-    let llt = a.llt(Side::Lower).ok()?;
-    Some(llt.L().to_owned())
+    let llt = a.llt(Side::Lower);
+    after(faer::get_global_parallelism());
+    Some(llt.ok()?.L().to_owned())
 }
 
 /// Solve L X = B in place (L lower triangular).
 pub fn solve_lower_in_place(l: MatRef<'_, f64>, b: MatMut<'_, f64>) {
-    solve_lower_triangular_in_place(l, b, par_for(l.nrows()));
+    let par = par_for(l.nrows());
+    solve_lower_triangular_in_place(l, b, par);
+    after(par);
 }
 
 /// Solve U X = B in place (U upper triangular).
 pub fn solve_upper_in_place(u: MatRef<'_, f64>, b: MatMut<'_, f64>) {
-    solve_upper_triangular_in_place(u, b, par_for(u.nrows()));
+    let par = par_for(u.nrows());
+    solve_upper_triangular_in_place(u, b, par);
+    after(par);
 }
 
 /// Solve the general square system A x = b by Gaussian elimination with partial pivoting.
@@ -148,7 +265,9 @@ pub fn solve_small(a: &[Vec<f64>], b: &[f64]) -> Option<Vec<f64>> {
 
 /// Thin singular value decomposition a = U diag(s) Vᵀ; singular values descending.
 pub fn svd(a: MatRef<'_, f64>) -> (Mat<f64>, Vec<f64>, Mat<f64>) {
-    let s = a.thin_svd().expect("singular value decomposition failed");
+    let s = a.thin_svd();
+    after(faer::get_global_parallelism());
+    let s = s.expect("singular value decomposition failed");
     let sv: Vec<f64> = s.S().column_vector().iter().copied().collect();
     (s.U().to_owned(), sv, s.V().to_owned())
 }
@@ -164,7 +283,9 @@ pub fn eig_general(a: MatRef<'_, f64>) -> Option<(Vec<f64>, Vec<f64>, Mat<f64>, 
     if n == 0 {
         return Some((Vec::new(), Vec::new(), Mat::zeros(0, 0), Mat::zeros(0, 0)));
     }
-    let e = a.eigen().ok()?;
+    let e = a.eigen();
+    after(faer::get_global_parallelism());
+    let e = e.ok()?;
     let s = e.S();
     let w = s.column_vector();
     let re: Vec<f64> = (0..n).map(|k| w[k].re).collect();

@@ -7,16 +7,18 @@
 //! `Occupation::Mom`) without recomputing integrals.
 
 use std::collections::HashMap;
+use std::time::Instant;
 
 use bandcast_linalg::Mat;
 
+pub use super::df_start::DfStartRecord;
 use super::driver::{self, IterationInfo, Problem, Start};
 use super::fock::quartets::QuartetPlan;
 use super::fock::source::EngineSource;
-use super::fock::{DirectFock, FockBuilder, InCoreFock};
+use super::fock::{DfFock, DirectFock, FockBuilder, InCoreFock};
 use super::guess;
 use super::occupation;
-use super::options::{FockMethod, Guess, Occupation, Reference, ScfOptions};
+use super::options::{DfStart, FockMethod, Guess, Occupation, Reference, ScfOptions};
 use super::orthogonalize::Orthogonalizer;
 use super::spin::s_squared;
 use super::wavefunction::Wavefunction;
@@ -42,9 +44,134 @@ pub struct ScfContext {
     pub engine: EriEngine,
     plan: Option<QuartetPlan>,
     incore: Option<InCoreFock>,
+    df: Option<DfFock>,
     sad: Option<Mat<f64>>,
     /// Description of the Fock builder used by the last run.
     pub last_builder: String,
+    /// What the last run did (builder, density-fitted start, timings).
+    pub last_run: RunRecord,
+    /// Wall seconds of the set-up steps of `ScfContext::new`.
+    pub setup_timings: Vec<(String, f64)>,
+}
+
+/// In-core stores at least this large get a density-fitted start under `DfStart::Auto`:
+/// each in-core build then reads gigabytes (≈ 1.3 CPU-s for benzene/def2-TZVPP's 4.85 GiB),
+/// and the start replaces ~10 of them by 3.
+const DF_START_MIN_IN_CORE_BYTES: usize = 1 << 30;
+
+/// The auxiliary set for density-fitted J and K unless `ScfOptions::jk_fitting` names one.
+pub const DEFAULT_JK_FITTING: &str = "def2-universal-JKFIT";
+
+/// Which Fock builder a run uses.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum BuilderChoice {
+    /// Unique ERIs stored, optionally after converging with density fitting (large stores).
+    InCore {
+        df_start: bool,
+    },
+    /// Integral-direct, optionally after converging with density fitting.
+    Direct {
+        df_start: bool,
+    },
+    DensityFitted,
+}
+
+/// What one `ScfContext::run` did.
+#[derive(Debug, Clone, Default)]
+pub struct RunRecord {
+    /// Description of the Fock builder of the final iterations.
+    pub builder: String,
+    /// J and K of the final iterations were density-fitted (the energy is not the
+    /// exact-integral one).
+    pub density_fitted: bool,
+    /// The density-fitted start before exact iterations, if there was one.
+    pub df_start: Option<DfStartRecord>,
+    /// Why an automatic density-fitted start was not made (e.g. no fitting functions for
+    /// an element).
+    pub df_start_skipped: Option<String>,
+    pub memory_budget_bytes: usize,
+    /// Wall seconds per step (guess, integral storage, iterations, …) in order.
+    pub timings: Vec<(String, f64)>,
+}
+
+fn problem<'a>(
+    s: &'a Mat<f64>,
+    h: &'a Mat<f64>,
+    e_nuc: f64,
+    ortho: &'a Orthogonalizer,
+    n_alpha: usize,
+    n_beta: usize,
+) -> Problem<'a> {
+    Problem {
+        s,
+        h,
+        e_nuc,
+        ortho,
+        n_alpha,
+        n_beta,
+    }
+}
+
+/// Build the density-fitting tensor into `slot` unless it holds one for the same fitting set.
+fn ensure_df(
+    slot: &mut Option<DfFock>,
+    record: &mut RunRecord,
+    basis: &BasisSet,
+    mol: &Molecule,
+    opts: &ScfOptions,
+) -> Result<()> {
+    let name = opts.jk_fitting.as_deref().unwrap_or(DEFAULT_JK_FITTING);
+    let aux = crate::basis::load_auxiliary(name, mol)?;
+    if slot.as_ref().is_none_or(|d| d.aux_name() != aux.name) {
+        *slot = None;
+        let t = Instant::now();
+        *slot = Some(DfFock::new(basis, &aux, opts.memory_budget_bytes)?);
+        record.timings.push((
+            "density-fitting integrals".into(),
+            t.elapsed().as_secs_f64(),
+        ));
+    }
+    Ok(())
+}
+
+/// The density-fitted start (`df_start.rs`) before exact iterations with `exact`; returns
+/// the start of the exact iterations. When the fitting set does not cover the molecule or
+/// its tensor does not fit the budget, nothing is done and `record` says why.
+#[allow(clippy::too_many_arguments)]
+fn df_start_with(
+    slot: &mut Option<DfFock>,
+    record: &mut RunRecord,
+    basis: &BasisSet,
+    problem: &Problem,
+    exact: &mut dyn FockBuilder,
+    mol: &Molecule,
+    opts: &ScfOptions,
+    start: Start,
+    log: &mut dyn FnMut(&IterationInfo),
+) -> Result<Start> {
+    if let Err(e) = ensure_df(slot, record, basis, mol, opts) {
+        record.df_start_skipped = Some(e.to_string());
+        return Ok(start);
+    }
+    let df = slot.as_mut().expect("just built");
+    let t = Instant::now();
+    let (s, rec) = super::df_start::df_start(problem, df, exact, opts, start, log)?;
+    record.df_start = Some(rec);
+    record
+        .timings
+        .push(("density-fitted start".into(), t.elapsed().as_secs_f64()));
+    // The tensor is not needed by the exact iterations.
+    *slot = None;
+    Ok(s)
+}
+
+/// Run `f`, recording its wall time as "iterations".
+fn timed<T>(rec: &mut RunRecord, f: impl FnOnce() -> T) -> T {
+    let t = Instant::now();
+    let r = f();
+    rec.timings
+        .push(("iterations".into(), t.elapsed().as_secs_f64()));
+    r
 }
 
 /// SCF on `mol` in `basis` (see `ScfOptions` for what can be asked).
@@ -70,20 +197,33 @@ impl ScfContext {
         if basis.n_basis == 0 {
             return Err(Error::input("the basis set has no functions"));
         }
+        let mut setup_timings = Vec::new();
+        let mut t = Instant::now();
+        let mut lap = |name: &str, t: &mut Instant| {
+            setup_timings.push((name.to_string(), t.elapsed().as_secs_f64()));
+            *t = Instant::now();
+        };
         let s = integrals::overlap(basis);
         let h = core_hamiltonian(basis, mol);
+        lap("one-electron integrals", &mut t);
         let ortho = Orthogonalizer::canonical(&s, lindep_threshold)?;
+        lap("orthogonalisation", &mut t);
+        let engine = EriEngine::new(basis);
+        lap("ERI engine and Schwarz bounds", &mut t);
         Ok(ScfContext {
             atoms: mol.atoms.clone(),
             basis: basis.clone(),
             s,
             h,
             ortho,
-            engine: EriEngine::new(basis),
+            engine,
             plan: None,
             incore: None,
+            df: None,
             sad: None,
             last_builder: String::new(),
+            last_run: RunRecord::default(),
+            setup_timings,
         })
     }
 
@@ -99,6 +239,38 @@ impl ScfContext {
     /// Bytes the in-core store needs at this screening threshold.
     pub fn in_core_bytes(&mut self, threshold: f64) -> usize {
         InCoreFock::estimate_bytes(self.plan(threshold))
+    }
+
+    /// The Fock builder `run` would use for these options (without building anything but
+    /// the quartet list).
+    pub fn choose_builder(&mut self, opts: &ScfOptions) -> BuilderChoice {
+        let need = self.in_core_bytes(opts.screening);
+        let fits = need <= opts.memory_budget_bytes;
+        let from_scratch = !matches!(opts.guess, Guess::Orbitals { .. });
+        let df_start = |auto: bool| match opts.df_start {
+            DfStart::Always => true,
+            DfStart::Never => false,
+            DfStart::Auto => auto && from_scratch,
+        };
+        let auto = opts.fock == FockMethod::Auto;
+        match opts.fock {
+            FockMethod::DensityFitted => BuilderChoice::DensityFitted,
+            FockMethod::Direct => BuilderChoice::Direct {
+                df_start: df_start(false),
+            },
+            FockMethod::InCore | FockMethod::Auto if fits || !auto => BuilderChoice::InCore {
+                df_start: df_start(auto && need >= DF_START_MIN_IN_CORE_BYTES),
+            },
+            _ => BuilderChoice::Direct {
+                df_start: df_start(true),
+            },
+        }
+    }
+
+    /// The density-fitting builder for `opts` (built once and kept).
+    fn df_builder(&mut self, mol: &Molecule, opts: &ScfOptions) -> Result<&mut DfFock> {
+        ensure_df(&mut self.df, &mut self.last_run, &self.basis, mol, opts)?;
+        Ok(self.df.as_mut().expect("just built"))
     }
 
     /// One SCF for the electron count and spin of `mol` (same nuclei as the context).
@@ -123,39 +295,89 @@ impl ScfContext {
                 self.basis.name
             )));
         }
-        let start = self.start(mol, opts, n_alpha, n_beta)?;
+        self.last_run = RunRecord {
+            memory_budget_bytes: opts.memory_budget_bytes,
+            ..RunRecord::default()
+        };
+        let t = Instant::now();
+        let mut start = self.start(mol, opts, n_alpha, n_beta)?;
+        self.last_run
+            .timings
+            .push(("guess".into(), t.elapsed().as_secs_f64()));
 
-        // Fock builder.
-        let threshold = opts.screening;
-        let need = self.in_core_bytes(threshold);
-        let use_incore = match opts.fock {
-            FockMethod::InCore => true,
-            FockMethod::Direct => false,
-            FockMethod::Auto => need <= opts.memory_budget_bytes,
+        let choice = self.choose_builder(opts);
+        let e_nuc = mol.nuclear_repulsion();
+        let sol = match choice {
+            BuilderChoice::InCore { df_start } => {
+                if self.incore.is_none() {
+                    let t = Instant::now();
+                    let src = EngineSource::new(&self.engine, &self.basis);
+                    let plan = self.plan.as_ref().expect("built by choose_builder");
+                    self.incore = Some(InCoreFock::new(&src, plan, opts.memory_budget_bytes)?);
+                    self.last_run
+                        .timings
+                        .push(("in-core integrals".into(), t.elapsed().as_secs_f64()));
+                }
+                if df_start {
+                    let problem = problem(&self.s, &self.h, e_nuc, &self.ortho, n_alpha, n_beta);
+                    start = df_start_with(
+                        &mut self.df,
+                        &mut self.last_run,
+                        &self.basis,
+                        &problem,
+                        self.incore.as_mut().expect("just built"),
+                        mol,
+                        opts,
+                        start,
+                        log,
+                    )?;
+                }
+                let builder = self.incore.as_mut().expect("just built");
+                self.last_run.builder = builder.describe();
+                let problem = problem(&self.s, &self.h, e_nuc, &self.ortho, n_alpha, n_beta);
+                timed(&mut self.last_run, || {
+                    driver::iterate(&problem, builder, opts, start, log)
+                })?
+            }
+            BuilderChoice::DensityFitted => {
+                self.df_builder(mol, opts)?;
+                let builder = self.df.as_mut().expect("just built");
+                self.last_run.builder = builder.describe();
+                self.last_run.density_fitted = true;
+                let problem = problem(&self.s, &self.h, e_nuc, &self.ortho, n_alpha, n_beta);
+                timed(&mut self.last_run, || {
+                    driver::iterate(&problem, builder, opts, start, log)
+                })?
+            }
+            BuilderChoice::Direct { df_start } => {
+                let src = EngineSource::new(&self.engine, &self.basis);
+                let plan = self.plan.clone().expect("built by choose_builder");
+                let mut direct = DirectFock::new(&src, plan);
+                if df_start {
+                    let problem = problem(&self.s, &self.h, e_nuc, &self.ortho, n_alpha, n_beta);
+                    start = df_start_with(
+                        &mut self.df,
+                        &mut self.last_run,
+                        &self.basis,
+                        &problem,
+                        &mut direct,
+                        mol,
+                        opts,
+                        start,
+                        log,
+                    )?;
+                }
+                self.last_run.builder = direct.describe();
+                let problem = problem(&self.s, &self.h, e_nuc, &self.ortho, n_alpha, n_beta);
+                let t = Instant::now();
+                let r = driver::iterate(&problem, &mut direct, opts, start, log);
+                self.last_run
+                    .timings
+                    .push(("iterations".into(), t.elapsed().as_secs_f64()));
+                r?
+            }
         };
-        if use_incore && self.incore.is_none() {
-            let src = EngineSource::new(&self.engine, &self.basis);
-            let plan = self.plan.as_ref().expect("built above");
-            self.incore = Some(InCoreFock::new(&src, plan, opts.memory_budget_bytes)?);
-        }
-        let problem = Problem {
-            s: &self.s,
-            h: &self.h,
-            e_nuc: mol.nuclear_repulsion(),
-            ortho: &self.ortho,
-            n_alpha,
-            n_beta,
-        };
-        let src = EngineSource::new(&self.engine, &self.basis);
-        let mut direct;
-        let builder: &mut dyn FockBuilder = if use_incore {
-            self.incore.as_mut().expect("built above")
-        } else {
-            direct = DirectFock::new(&src, self.plan.clone().expect("built above"));
-            &mut direct
-        };
-        self.last_builder = builder.describe();
-        let sol = driver::iterate(&problem, builder, opts, start, log)?;
+        self.last_builder = self.last_run.builder.clone();
 
         let s2 = match opts.reference {
             Reference::Rhf => 0.0,

@@ -57,6 +57,9 @@ pub struct IterationInfo {
     pub rms_commutator: f64,
     pub diis_size: usize,
     pub step: Step,
+    /// What the Fock builder reports about this iteration's build (e.g. the share of
+    /// quartets an integral-direct build computed); may be empty.
+    pub note: String,
 }
 
 /// Converged result.
@@ -186,6 +189,7 @@ pub fn iterate(
             rms_commutator: rms,
             diis_size: diis.len(),
             step,
+            note: builder.last_note().unwrap_or_default(),
         });
 
         if iter > 1 && de.abs() < opts.e_tol && rms < opts.commutator_tol {

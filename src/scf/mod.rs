@@ -8,6 +8,7 @@
 pub mod bench;
 pub mod context;
 pub mod convergence;
+pub mod df_start;
 pub mod diis;
 pub mod driver;
 pub mod fock;
@@ -22,7 +23,7 @@ pub mod wavefunction;
 pub use context::{core_hamiltonian, dipole_moment, run, run_logged, sad_density, ScfContext};
 pub use driver::{IterationInfo, Problem, Solution, Start};
 pub use fock::{FockBuilder, Jk};
-pub use options::{FockMethod, Guess, Occupation, ScfOptions};
+pub use options::{default_memory_budget, DfStart, FockMethod, Guess, Occupation, ScfOptions};
 pub use orthogonalize::Orthogonalizer;
 pub use wavefunction::{Reference, Wavefunction};
 

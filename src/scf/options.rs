@@ -54,6 +54,45 @@ pub enum FockMethod {
     InCore,
     /// Recompute screened ERIs each iteration, incremental in ΔP.
     Direct,
+    /// Density-fitted J and K with the auxiliary set `ScfOptions::jk_fitting` (an
+    /// approximation: the energy differs from the exact-integral one by the fitting error).
+    DensityFitted,
+}
+
+/// Whether an exact integral-direct SCF first converges with density-fitted J and K.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum DfStart {
+    /// When the exact builder is integral-direct (large jobs) and the fitting set covers
+    /// the molecule.
+    Auto,
+    Always,
+    Never,
+}
+
+/// The default memory budget for stored two-electron integrals (in-core ERIs, the
+/// density-fitting tensor): half of the physical memory, but no more than three quarters of
+/// the memory available when the program starts (Linux /proc/meminfo: MemTotal,
+/// MemAvailable); 4 GiB where that file cannot be read. Read once per process.
+pub fn default_memory_budget() -> usize {
+    static BUDGET: std::sync::OnceLock<usize> = std::sync::OnceLock::new();
+    *BUDGET.get_or_init(|| {
+        std::fs::read_to_string("/proc/meminfo")
+            .ok()
+            .and_then(|s| memory_budget_from_meminfo(&s))
+            .unwrap_or(4 << 30)
+    })
+}
+
+/// The rule of `default_memory_budget` applied to the text of /proc/meminfo.
+pub fn memory_budget_from_meminfo(text: &str) -> Option<usize> {
+    let field = |name: &str| -> Option<usize> {
+        let line = text.lines().find(|l| l.starts_with(name))?;
+        let kb: usize = line.split_whitespace().nth(1)?.parse().ok()?;
+        Some(kb * 1024)
+    };
+    let total = field("MemTotal:")?;
+    let avail = field("MemAvailable:").unwrap_or(total);
+    Some((total / 2).min(avail / 4 * 3))
 }
 
 /// Options of one SCF run. `ScfOptions::default()` is RHF, SAD guess, aufbau, DIIS.
@@ -68,7 +107,8 @@ pub struct ScfOptions {
     pub commutator_tol: f64,
     /// Maximum number of Fock builds.
     pub max_iter: usize,
-    /// Memory the in-core ERI store may use (bytes).
+    /// Memory the in-core ERI store or the density-fitting tensor may use (bytes); default
+    /// `default_memory_budget()`.
     pub memory_budget_bytes: usize,
     pub guess: Guess,
     pub occupation: Occupation,
@@ -82,6 +122,11 @@ pub struct ScfOptions {
     /// Overlap eigenvalues below this are dropped in the canonical orthogonalisation.
     pub lindep_threshold: f64,
     pub fock: FockMethod,
+    /// Auxiliary set for density-fitted J and K (`FockMethod::DensityFitted`, `DfStart`);
+    /// None: def2-universal-JKFIT.
+    pub jk_fitting: Option<String>,
+    /// Converge with density-fitted J and K first, then finish with exact integrals.
+    pub df_start: DfStart,
     /// Schwarz / density screening threshold for two-electron integrals.
     pub screening: f64,
 }
@@ -93,7 +138,7 @@ impl Default for ScfOptions {
             e_tol: 1e-10,
             commutator_tol: 1e-8,
             max_iter: 128,
-            memory_budget_bytes: 4 << 30,
+            memory_budget_bytes: default_memory_budget(),
             guess: Guess::Sad,
             occupation: Occupation::Aufbau,
             level_shift: 0.0,
@@ -101,7 +146,23 @@ impl Default for ScfOptions {
             diis_space: 8,
             lindep_threshold: 1e-7,
             fock: FockMethod::Auto,
+            jk_fitting: None,
+            df_start: DfStart::Auto,
             screening: 1e-12,
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn budget_is_half_the_memory_or_three_quarters_of_what_is_free() {
+        let text = "MemTotal:       16000000 kB\nMemFree:  1000 kB\nMemAvailable:   12000000 kB\n";
+        assert_eq!(memory_budget_from_meminfo(text), Some(8_000_000 * 1024));
+        let busy = "MemTotal:       16000000 kB\nMemAvailable:    4000000 kB\n";
+        assert_eq!(memory_budget_from_meminfo(busy), Some(3_000_000 * 1024));
+        assert_eq!(memory_budget_from_meminfo("nothing"), None);
     }
 }

@@ -1,6 +1,6 @@
 //! In-core Fock builds: every unique, Schwarz-significant shell quartet (8-fold symmetry at
-//! shell level) is computed once and kept in memory; each build only contracts the stored
-//! blocks with the densities.
+//! shell level) is computed once and kept in memory, already multiplied by its degeneracy;
+//! each build only contracts the stored blocks with the densities.
 
 use rayon::prelude::*;
 
@@ -8,11 +8,13 @@ use bandcast_linalg::Mat;
 
 use super::digest::{Accumulator, Densities};
 use super::quartets::{degeneracy, QuartetPlan};
+use super::schedule::ordered_sum;
 use super::source::EriSource;
 use super::{FockBuilder, Jk};
 use crate::error::{Error, Result};
 
-/// Stored blocks of one chunk: quartet shell indices and their values, concatenated.
+/// Stored blocks of one chunk: quartet shell indices and their values (times the
+/// degeneracy), concatenated.
 struct ChunkStore {
     quartets: Vec<[u32; 4]>,
     values: Vec<f64>,
@@ -43,14 +45,31 @@ impl InCoreFock {
             )));
         }
         let sizes = src.shell_sizes().to_vec();
-        let offsets = src.shell_offsets().to_vec();
+        // Exact sizes per chunk, so each store is allocated once.
+        let chunk_len = |range: &std::ops::Range<usize>| {
+            let (mut nq, mut nv) = (0, 0);
+            for p in range.clone() {
+                let (a, b) = plan.pairs[p];
+                for r in 0..=p {
+                    if plan.q[p] * plan.q[r] >= plan.threshold {
+                        let (c, d) = plan.pairs[r];
+                        nq += 1;
+                        nv += sizes[a] * sizes[b] * sizes[c] * sizes[d];
+                    }
+                }
+            }
+            (nq, nv)
+        };
         let chunks: Vec<ChunkStore> = plan
             .chunks
             .par_iter()
+            .with_max_len(1)
             .map(|range| {
+                bandcast_linalg::clear_vector_state();
+                let (nq, nv) = chunk_len(range);
                 let mut st = ChunkStore {
-                    quartets: Vec::new(),
-                    values: Vec::new(),
+                    quartets: Vec::with_capacity(nq),
+                    values: Vec::with_capacity(nv),
                 };
                 let mut buf = Vec::new();
                 for p in range.clone() {
@@ -61,12 +80,11 @@ impl InCoreFock {
                         }
                         let (c, d) = plan.pairs[r];
                         src.quartet(a, b, c, d, &mut buf);
+                        let g = degeneracy(a, b, c, d);
                         st.quartets.push([a as u32, b as u32, c as u32, d as u32]);
-                        st.values.extend_from_slice(&buf);
+                        st.values.extend(buf.iter().map(|v| v * g));
                     }
                 }
-                st.quartets.shrink_to_fit();
-                st.values.shrink_to_fit();
                 st
             })
             .collect();
@@ -77,7 +95,7 @@ impl InCoreFock {
         Ok(InCoreFock {
             n: src.n_basis(),
             sizes,
-            offsets,
+            offsets: src.shell_offsets().to_vec(),
             chunks,
             bytes,
         })
@@ -98,39 +116,28 @@ impl FockBuilder for InCoreFock {
 
     fn jk(&mut self, densities: &[&Mat<f64>]) -> Result<Vec<Jk>> {
         let dens = Densities::new(densities, &self.sizes, &self.offsets);
-        let (n, sizes, offsets) = (self.n, &self.sizes, &self.offsets);
-        let partials: Vec<Accumulator> = self
-            .chunks
-            .par_iter()
-            .map(|st| {
-                let mut acc = Accumulator::new(n, densities.len());
+        let (n, sizes, offsets, chunks) = (self.n, &self.sizes, &self.offsets, &self.chunks);
+        let total = ordered_sum(
+            chunks.len(),
+            || Accumulator::new(n, densities.len()),
+            |k, acc| {
+                let st = &chunks[k];
                 let mut pos = 0;
                 for q in &st.quartets {
                     let [a, b, c, d] = q.map(|x| x as usize);
                     let size = [sizes[a], sizes[b], sizes[c], sizes[d]];
-                    let len = size.iter().product::<usize>();
+                    let len = size[0] * size[1] * size[2] * size[3];
                     acc.add_block(
                         &st.values[pos..pos + len],
                         [offsets[a], offsets[b], offsets[c], offsets[d]],
                         size,
-                        degeneracy(a, b, c, d),
+                        1.0,
                         &dens,
                     );
                     pos += len;
                 }
-                acc
-            })
-            .collect();
-        Ok(reduce(partials, n, densities.len()).finish())
+            },
+        );
+        Ok(total.finish())
     }
-}
-
-/// Sum chunk accumulators in chunk order (deterministic).
-pub(crate) fn reduce(partials: Vec<Accumulator>, n: usize, n_dens: usize) -> Accumulator {
-    let mut it = partials.into_iter();
-    let mut total = it.next().unwrap_or_else(|| Accumulator::new(n, n_dens));
-    for p in it {
-        total.add(&p);
-    }
-    total
 }

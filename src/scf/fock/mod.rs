@@ -8,13 +8,16 @@
 //! `TensorFock` (a full n⁴ tensor, for tiny model systems and tests). The in-core and direct
 //! builders share the quartet list (`quartets.rs`) and the digestion kernel (`digest.rs`).
 
+pub mod df;
 pub mod digest;
 pub mod direct;
 pub mod incore;
 pub mod quartets;
+pub mod schedule;
 pub mod source;
 pub mod tensor;
 
+pub use df::DfFock;
 pub use direct::DirectFock;
 pub use incore::InCoreFock;
 pub use source::{EriSource, TensorEri};
@@ -40,6 +43,10 @@ pub trait FockBuilder {
     fn jk(&mut self, densities: &[&Mat<f64>]) -> Result<Vec<Jk>>;
     /// Forget any state kept between calls (next build is from scratch).
     fn reset(&mut self) {}
+    /// A short note on the last build for progress lines (e.g. work skipped by screening).
+    fn last_note(&self) -> Option<String> {
+        None
+    }
 }
 
 #[cfg(test)]
@@ -122,6 +129,27 @@ mod tests {
     }
 
     #[test]
+    fn every_kernel_width_matches_plain_summation() {
+        // d-shell widths 7, 9, 10 (compile-time kernels), 2 and 4 (general kernel), 1 and
+        // (ss|ss) blocks; two densities as for UHF.
+        let sizes = vec![7, 1, 9, 2, 10, 4, 1];
+        let n: usize = sizes.iter().sum();
+        let eri = model_tensor(n);
+        let src = TensorEri::new(eri.clone(), sizes);
+        let mut reference = TensorFock::new(n, eri);
+        let plan = QuartetPlan::new(&src, 0.0);
+        let mut incore = InCoreFock::new(&src, &plan, 1 << 30).unwrap();
+        let d1 = model_density(n, 0.4);
+        let d2 = model_density(n, 1.3);
+        let want = reference.jk(&[&d1, &d2]).unwrap();
+        let got = incore.jk(&[&d1, &d2]).unwrap();
+        for (w, g) in want.iter().zip(&got) {
+            assert!(max_diff(&w.j, &g.j) < 1e-10, "J {}", max_diff(&w.j, &g.j));
+            assert!(max_diff(&w.k, &g.k) < 1e-10, "K {}", max_diff(&w.k, &g.k));
+        }
+    }
+
+    #[test]
     fn same_bits_on_one_and_two_threads() {
         let sizes = vec![3, 1, 5, 3, 1, 6, 3, 1];
         let n: usize = sizes.iter().sum();
@@ -141,6 +169,62 @@ mod tests {
         let (a, b) = (run(1), run(2));
         assert_eq!(max_diff(&a[0].j, &b[0].j), 0.0);
         assert_eq!(max_diff(&a[0].k, &b[0].k), 0.0);
+    }
+
+    /// A tensor source whose shells come in general-contraction families, so the plan
+    /// reorders the pairs family pair by family pair.
+    struct FamilySource(TensorEri, Vec<usize>);
+    impl EriSource for FamilySource {
+        fn shell_sizes(&self) -> &[usize] {
+            self.0.shell_sizes()
+        }
+        fn shell_offsets(&self) -> &[usize] {
+            self.0.shell_offsets()
+        }
+        fn schwarz(&self) -> &[f64] {
+            self.0.schwarz()
+        }
+        fn quartet(&self, a: usize, b: usize, c: usize, d: usize, out: &mut Vec<f64>) {
+            self.0.quartet(a, b, c, d, out)
+        }
+        fn families(&self) -> Vec<usize> {
+            self.1.clone()
+        }
+        fn primitives(&self) -> Vec<usize> {
+            vec![3; self.1.len()]
+        }
+    }
+
+    #[test]
+    fn family_ordered_pairs_cover_each_quartet_once() {
+        let sizes = vec![1, 1, 3, 1, 3, 5, 1, 1];
+        let families = vec![0, 0, 2, 3, 2, 5, 3, 3];
+        let n: usize = sizes.iter().sum();
+        let eri = model_tensor(n);
+        let src = FamilySource(TensorEri::new(eri.clone(), sizes), families);
+        let plan = QuartetPlan::with_chunks(&src, 0.0, 5);
+        let pairs = &plan.pairs;
+        assert_eq!(pairs.len(), 36);
+        // the pairs of one family pair are adjacent
+        let fam = &src.1;
+        let key = |&(a, b): &(usize, usize)| (fam[a].max(fam[b]), fam[a].min(fam[b]));
+        let mut seen = Vec::new();
+        for (i, p) in pairs.iter().enumerate() {
+            if i == 0 || key(p) != key(&pairs[i - 1]) {
+                assert!(!seen.contains(&key(p)), "family pair {:?} split", key(p));
+                seen.push(key(p));
+            }
+        }
+        let mut reference = TensorFock::new(n, eri);
+        let mut incore = InCoreFock::new(&src, &plan, 1 << 30).unwrap();
+        let d1 = model_density(n, 0.2);
+        let d2 = model_density(n, 0.9);
+        let want = reference.jk(&[&d1, &d2]).unwrap();
+        let got = incore.jk(&[&d1, &d2]).unwrap();
+        for (w, g) in want.iter().zip(&got) {
+            assert!(max_diff(&w.j, &g.j) < 1e-11, "J {}", max_diff(&w.j, &g.j));
+            assert!(max_diff(&w.k, &g.k) < 1e-11, "K {}", max_diff(&w.k, &g.k));
+        }
     }
 
     #[test]

@@ -14,6 +14,19 @@ pub trait EriSource: Sync {
     fn n_basis(&self) -> usize {
         self.shell_sizes().iter().sum()
     }
+    /// Lowest-index member of each shell's general-contraction family (shells the source
+    /// computes together); default: every shell on its own.
+    fn families(&self) -> Vec<usize> {
+        (0..self.shell_sizes().len()).collect()
+    }
+    /// Primitives per shell (for cost estimates); default 1.
+    fn primitives(&self) -> Vec<usize> {
+        vec![1; self.shell_sizes().len()]
+    }
+    /// Angular momentum per shell (for cost estimates); default 0.
+    fn angular_momenta(&self) -> Vec<usize> {
+        vec![0; self.shell_sizes().len()]
+    }
 }
 
 /// A full n⁴ ERI tensor (chemists' order, index ((i*n + j)*n + k)*n + l) cut into shells of
@@ -102,6 +115,9 @@ pub struct EngineSource<'a> {
     pub engine: &'a crate::integrals::EriEngine,
     sizes: Vec<usize>,
     offsets: Vec<usize>,
+    families: Vec<usize>,
+    primitives: Vec<usize>,
+    ls: Vec<usize>,
 }
 
 impl<'a> EngineSource<'a> {
@@ -110,8 +126,35 @@ impl<'a> EngineSource<'a> {
             engine,
             sizes: basis.shells.iter().map(|s| s.n_functions()).collect(),
             offsets: basis.offsets.clone(),
+            families: families(&basis.shells),
+            primitives: basis.shells.iter().map(|s| s.exponents.len()).collect(),
+            ls: basis.shells.iter().map(|s| s.l).collect(),
         }
     }
+}
+
+/// General-contraction families as the ERI engine forms them: shells with at least two
+/// primitives on the same centre with the same l, harmonics and exponent list share the
+/// representative of lowest index.
+pub fn families(shells: &[crate::basis::Shell]) -> Vec<usize> {
+    let mut fam: Vec<usize> = (0..shells.len()).collect();
+    for a in 0..shells.len() {
+        let sa = &shells[a];
+        if sa.exponents.len() < 2 {
+            continue;
+        }
+        if let Some(r) = (0..a).find(|&r| {
+            let sr = &shells[r];
+            fam[r] == r
+                && sr.l == sa.l
+                && sr.pure == sa.pure
+                && sr.center == sa.center
+                && sr.exponents == sa.exponents
+        }) {
+            fam[a] = r;
+        }
+    }
+    fam
 }
 
 impl EriSource for EngineSource<'_> {
@@ -126,5 +169,14 @@ impl EriSource for EngineSource<'_> {
     }
     fn quartet(&self, a: usize, b: usize, c: usize, d: usize, out: &mut Vec<f64>) {
         self.engine.shell_quartet(a, b, c, d, out);
+    }
+    fn families(&self) -> Vec<usize> {
+        self.families.clone()
+    }
+    fn primitives(&self) -> Vec<usize> {
+        self.primitives.clone()
+    }
+    fn angular_momenta(&self) -> Vec<usize> {
+        self.ls.clone()
     }
 }
