@@ -147,6 +147,7 @@ pub fn solve(
     let d2 = mp2::denominators(ints);
     let d1 = Tensor::from_fn(&[o, v], |x| eo[x[0]] - ev[x[1]]);
     let (e_mp2, t2_0) = mp2::mp2(ints);
+    log(&format!("MP2 correlation energy {e_mp2:.10} Eh"));
     let mut t1 = Tensor::zeros(&[o, v]);
     let mut t2 = t2_0;
     let mut e_old = energy(ints, &t1, &t2);
