@@ -170,7 +170,7 @@ pub fn frozen_core_orbitals(z: u32) -> usize {
 /// Energies for chosen orbitals (one targeted EOM root per orbital, in the given order) as
 /// (IE hartree, one-hole weight), plus notes on how the job was run. Used by
 /// `ionization::valence` for `--method eom-ccsd|eom-mp2`.
-#[allow(clippy::type_complexity)]
+#[allow(clippy::type_complexity, clippy::too_many_arguments)]
 pub fn band_energies(
     mol: &Molecule,
     basis: &BasisSet,
@@ -179,12 +179,14 @@ pub fn band_energies(
     method: EomMethod,
     frozen_core: bool,
     memory_bytes: Option<f64>,
+    two_electron: &TwoElectron,
 ) -> Result<(Vec<(f64, f64)>, Vec<String>)> {
     let opts = EomOptions {
         method,
         roots: RootSpec::Orbitals(orbitals.to_vec()),
         frozen_core,
         memory_budget: memory_bytes,
+        two_electron: two_electron.clone(),
         ..Default::default()
     };
     let rep = ionize_report(mol, basis, wfn, &opts, &mut |_| {})?;

@@ -18,7 +18,7 @@
 
 use super::ccsd_intermediates as imd;
 use super::integrals::MoIntegrals;
-use super::tensor::{einsum, gemm_rm, Tensor};
+use super::tensor::{einsum, sum_of_products, Tensor};
 
 /// H̄ blocks, the large ones stored in the index order the sigma contractions read
 /// (so no per-iteration transposition of o²v² arrays is needed).
@@ -128,31 +128,30 @@ impl IpHbar {
         // contracted one (m, e) at a time so the slice is never reordered.
         let tau_efij = tau.permute(&[2, 3, 0, 1]);
         let vv = v * v;
-        for (k0, k1) in ints.ovvv_batches(0) {
-            let s = ints.ovvv_slice(k0, k1);
+        ints.for_each_ovvv_slice(&mut |k0, k1, s| {
             if has_t1 {
+                let s = Tensor {
+                    shape: vec![k1 - k0, v, v, v],
+                    data: s.to_vec(),
+                };
                 let p = einsum("mebf,jf->mbej", &s, t1);
                 imd::add_slice_along(&mut wovvo, &p, 0, k0);
                 let p = einsum("mfbe,jf->mbje", &s, t1);
                 imd::add_slice_along(&mut wovov, &p, 0, k0);
             }
             for m in 0..k1 - k0 {
-                let dst = &mut wovoo.data[(k0 + m) * v * o * o..(k0 + m + 1) * v * o * o];
-                for e in 0..v {
-                    // wovoo[m][b][ij] += Σ_f (me|bf) τ_ij^ef
-                    gemm_rm(
-                        dst,
-                        true,
-                        &s.data[(m * v + e) * vv..(m * v + e + 1) * vv],
-                        &tau_efij.data[e * v * o * o..(e + 1) * v * o * o],
-                        v,
-                        v,
-                        o * o,
-                        1.0,
-                    );
-                }
+                // wovoo[m][b][ij] += Σ_ef (me|bf) τ_ij^ef
+                sum_of_products(
+                    &mut wovoo.data[(k0 + m) * v * o * o..(k0 + m + 1) * v * o * o],
+                    &s[m * v * vv..(m + 1) * v * vv],
+                    &tau_efij.data,
+                    v,
+                    v,
+                    o * o,
+                    v,
+                );
             }
-        }
+        });
         drop(tau_efij);
         drop(tau_t1);
         // three-body term: Σ_kld [2 (ld|kc) − (kd|lc)] R2[k,l,d], as [c,k,l,d]

@@ -12,10 +12,10 @@
 //!
 //! Index letters: i,j,k,l active occupied; a,b,c,d virtual. All integrals chemists' notation.
 
-use bandcast_linalg::{gemm, par_for, MatMut, MatRef};
+use bandcast_linalg::{MatMut, MatRef};
 
 use super::ladder::{ladder_direct, LadderIntegrals};
-use super::tensor::Tensor;
+use super::tensor::{par_gemm, Tensor};
 
 /// Three-index factors in the active MO basis, each stored `[Q][p][q]`.
 #[derive(Debug, Clone)]
@@ -63,7 +63,7 @@ fn assemble(naux: usize, left: &[f64], npq: usize, right: &[f64], nrs: usize) ->
     let l = MatRef::from_row_major_slice(left, naux, npq);
     let r = MatRef::from_row_major_slice(right, naux, nrs);
     let c = MatMut::from_row_major_slice_mut(&mut out, npq, nrs);
-    gemm(c, false, l, true, r, false, 1.0, par_for(npq.max(nrs)));
+    par_gemm(c, false, l.transpose(), r, 1.0);
     out
 }
 
@@ -186,17 +186,15 @@ impl MoIntegrals {
             .collect()
     }
 
-    pub fn ovvv_slice(&self, k0: usize, k1: usize) -> std::borrow::Cow<'_, Tensor> {
-        match &self.ovvv {
-            Some(t) if k0 == 0 && k1 == self.nocc => std::borrow::Cow::Borrowed(t),
-            Some(t) => {
-                let inner = self.nvir.pow(3);
-                std::borrow::Cow::Owned(Tensor {
-                    shape: vec![k1 - k0, self.nvir, self.nvir, self.nvir],
-                    data: t.data[k0 * inner..k1 * inner].to_vec(),
-                })
+    /// Call `f(k0, k1, s)` for every occupied batch with s = (kc|ab) as [k,c,a,b] for k in
+    /// k0..k1: borrowed from the stored block, or rebuilt from the factors.
+    pub fn for_each_ovvv_slice(&self, f: &mut dyn FnMut(usize, usize, &[f64])) {
+        let inner = self.nvir.pow(3);
+        for (k0, k1) in self.ovvv_batches(0) {
+            match &self.ovvv {
+                Some(t) => f(k0, k1, &t.data[k0 * inner..k1 * inner]),
+                None => f(k0, k1, &self.factors.ovvv_slice(k0, k1).data),
             }
-            None => std::borrow::Cow::Owned(self.factors.ovvv_slice(k0, k1)),
         }
     }
 
@@ -303,9 +301,20 @@ pub(crate) mod toy {
         let (f, fock) = toy_system(3, 5, 7, 11, 1.0);
         let ints_s = MoIntegrals::new(f.clone(), &fock, true, true);
         let ints_d = MoIntegrals::new(f, &fock, false, false);
-        let s1 = ints_d.ovvv_slice(1, 3);
-        let s0 = ints_s.ovvv.as_ref().unwrap();
-        assert!((s1.get(&[1, 2, 3, 4]) - s0.get(&[2, 2, 3, 4])).abs() < 1e-14);
+        let mut stored = Vec::new();
+        ints_s.for_each_ovvv_slice(&mut |_, _, s| stored.extend_from_slice(s));
+        let mut rebuilt = Vec::new();
+        ints_d.for_each_ovvv_slice(&mut |_, _, s| rebuilt.extend_from_slice(s));
+        assert_eq!(stored.len(), 3 * 125);
+        for (a, b) in stored.iter().zip(&rebuilt) {
+            assert!((a - b).abs() < 1e-14);
+        }
+        // (kc|ab) = Σ_Q B^Q_kc B^Q_ab
+        let f = &ints_s.factors;
+        let want: f64 = (0..7)
+            .map(|q| f.get(q, 2, 3 + 1) * f.get(q, 3 + 3, 3 + 4))
+            .sum();
+        assert!((stored[((2 * 5 + 1) * 5 + 3) * 5 + 4] - want).abs() < 1e-14);
         let x = Tensor::from_fn(&[3, 3, 5, 5], |i| {
             let (a, b) = (i[0] * 5 + i[2], i[1] * 5 + i[3]);
             ((a * 7 + b * 3) % 11) as f64 * 0.1 + ((b * 7 + a * 3) % 11) as f64 * 0.1

@@ -17,10 +17,11 @@
 //! stored (`LadderIntegrals`, built once) or generated from the three-index factors each
 //! time it is needed (`ladder_direct`), both at a cost of n_aux v⁴/3 multiply-adds.
 
-use bandcast_linalg::{gemm, par_for, MatMut, MatRef, Par};
+use bandcast_linalg::{MatMut, MatRef};
+use rayon::prelude::*;
 
 use super::integrals::MoFactors;
-use super::tensor::Tensor;
+use super::tensor::{par_gemm, Tensor};
 
 #[inline]
 fn pk(a: usize, b: usize) -> usize {
@@ -70,7 +71,7 @@ impl<'f> BlockMaker<'f> {
     }
 
     /// Fill `plus` ((a+1) × pk(a+1,0)) and `minus` (a × pk(a,0)) for block `a`.
-    fn make(&mut self, a: usize, plus: &mut [f64], minus: &mut [f64], par: Par) {
+    fn make(&mut self, a: usize, plus: &mut [f64], minus: &mut [f64]) {
         let (v, naux) = (self.f.nvir, self.f.naux);
         let n = a + 1;
         let m = &mut self.m[..n * n * v];
@@ -81,35 +82,39 @@ impl<'f> BlockMaker<'f> {
             let left =
                 MatRef::from_column_major_slice_with_stride(&self.f.b_vv[a * v..], n, naux, v * v);
             let right = MatRef::from_row_major_slice_with_stride(&self.f.b_vv, naux, n * v, v * v);
-            gemm(
+            par_gemm(
                 MatMut::from_row_major_slice_mut(m, n, n * v),
                 false,
                 left,
-                false,
                 right,
-                false,
                 1.0,
-                par,
             );
         }
+        let m: &[f64] = m;
         let at = |c: usize, b: usize, d: usize| m[(c * n + b) * v + d];
         let wp = pk(n, 0);
-        for b in 0..n {
-            let row = &mut plus[b * wp..(b + 1) * wp];
-            for c in 0..n {
-                for d in 0..=c {
-                    row[pk(c, d)] = at(c, b, d) + at(d, b, c);
+        plus[..n * wp]
+            .par_chunks_mut(wp)
+            .enumerate()
+            .for_each(|(b, row)| {
+                for c in 0..n {
+                    for d in 0..=c {
+                        row[pk(c, d)] = at(c, b, d) + at(d, b, c);
+                    }
                 }
-            }
-        }
+            });
         let wm = pk(a, 0);
-        for b in 0..a {
-            let row = &mut minus[b * wm..(b + 1) * wm];
-            for c in 1..n {
-                for d in 0..c {
-                    row[pm(c, d)] = at(c, b, d) - at(d, b, c);
-                }
-            }
+        if wm > 0 {
+            minus[..a * wm]
+                .par_chunks_mut(wm)
+                .enumerate()
+                .for_each(|(b, row)| {
+                    for c in 1..n {
+                        for d in 0..c {
+                            row[pm(c, d)] = at(c, b, d) - at(d, b, c);
+                        }
+                    }
+                });
         }
     }
 }
@@ -145,12 +150,7 @@ impl LadderIntegrals {
         for a in 0..v {
             let (p0, p1) = (off_plus[a], off_plus[a + 1]);
             let (m0, m1) = (off_minus[a], off_minus[a + 1]);
-            maker.make(
-                a,
-                &mut plus[p0..p1],
-                &mut minus[m0..m1],
-                par_for((a + 1) * v),
-            );
+            maker.make(a, &mut plus[p0..p1], &mut minus[m0..m1]);
         }
         LadderIntegrals {
             nvir: v,
@@ -182,7 +182,7 @@ pub fn ladder_direct(f: &MoFactors, x: &Tensor) -> Tensor {
     let mut minus = vec![0.0; wm];
     contract(x, v, &mut |a, g: &mut dyn FnMut(&[f64], &[f64])| {
         let (p, m) = block_words(a);
-        maker.make(a, &mut plus[..p], &mut minus[..m], par_for((a + 1) * v));
+        maker.make(a, &mut plus[..p], &mut minus[..m]);
         g(&plus[..p], &minus[..m])
     })
 }
@@ -269,31 +269,24 @@ fn tile(x: &[f64], out: &mut [f64], m: usize, n: usize, blk: &[f64], r0: usize, 
     let nc = r0 + nr;
     let xm = MatRef::from_row_major_slice(x, m, n);
     let w = MatRef::from_row_major_slice(&blk[..nr * nc], nr, nc);
-    let par = par_for(m.max(nc));
     {
         let om = MatMut::from_row_major_slice_mut(out, m, n);
-        gemm(
+        par_gemm(
             om.subcols_mut(r0, nr),
             true,
             xm.subcols(0, nc),
-            false,
-            w,
-            true,
+            w.transpose(),
             1.0,
-            par,
         );
     }
     if r0 > 0 {
         let om = MatMut::from_row_major_slice_mut(out, m, n);
-        gemm(
+        par_gemm(
             om.subcols_mut(0, r0),
             true,
             xm.subcols(r0, nr),
-            false,
             w.subcols(0, r0),
-            false,
             1.0,
-            par,
         );
     }
 }
