@@ -139,7 +139,7 @@ pub struct EomReport {
     /// Human-readable notes on how the job was run (integral treatment, storage).
     pub notes: Vec<String>,
     /// Wall time, CPU time and peak memory per stage, in order: "factors", "MO blocks",
-    /// "ground state", "H̄", "EOM".
+    /// "ground state", "EOM setup" (H̄ elements), "EOM solve" (Davidson).
     pub stages: Vec<StageRecord>,
 }
 
@@ -410,7 +410,7 @@ pub fn ionize_report(
     log(&clock.finish("ground state").describe());
     // EOM.
     let hbar = IpHbar::new(ints, &t1, t2);
-    log(&clock.finish("H̄").describe());
+    log(&clock.finish("EOM setup").describe());
     let space = IpSpace { nocc: o, nvir: v };
     let diag = eom_ip_sigma::diagonal(&hbar, &space);
     let dim = space.dim();
@@ -483,7 +483,7 @@ pub fn ionize_report(
         // lowest roots come back ascending; targeted roots keep the order of the targets
         states.sort_by(|a, b| a.ie_hartree.total_cmp(&b.ie_hartree));
     }
-    log(&clock.finish("EOM").describe());
+    log(&clock.finish("EOM solve").describe());
     for s in &states {
         log(&format!(
             "{} state: IE {:.4} eV, orbital {}, one-hole weight {:.3}",
