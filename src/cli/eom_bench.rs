@@ -1,25 +1,40 @@
 //! `bandcast bench eom`: the EOM-IP workload (library: `bandcast::correlation::bench`).
 
-use bandcast::Result;
+use bandcast::{Error, Result};
 
 #[derive(clap::Args, Debug)]
 pub struct BenchArgs {
-    /// Small stand-ins only (water/def2-TZVPP, EOM-IP-CCSD and EOM-IP-MBPT2).
+    /// Small stand-ins only (water/def2-TZVPP and benzene/def2-SVP).
     #[arg(long)]
     pub quick: bool,
+    /// Run only the cases of these molecules (e.g. --only benzene).
+    #[arg(long, value_name = "NAME")]
+    pub only: Vec<String>,
+    /// Memory budget in GiB for the correlated stages.
+    #[arg(long, value_name = "GIB", default_value_t = 14.0)]
+    pub memory: f64,
     /// Directory holding benzene.xyz and guanine.xyz (GW100 structures, Å).
     #[arg(long, value_name = "DIR", default_value = "tests/data/gw100")]
     pub dir: std::path::PathBuf,
 }
 
 pub fn bench(a: BenchArgs) -> Result<()> {
+    if !(a.memory > 0.0) {
+        return Err(Error::input("--memory must be a positive number of GiB"));
+    }
     println!(
         "EOM-IP benchmark ({} threads): EOM-IP-CCSD benzene/def2-TZVPP (5 states), \
-         EOM-IP-MBPT2 guanine/def2-TZVPP (5 states)",
+         EOM-IP-MBPT2 guanine/def2-TZVPP (5 states); per stage: wall time, CPU time of \
+         all threads, peak resident memory (VmHWM) within the stage",
         rayon::current_num_threads()
     );
-    bandcast::correlation::bench::run_eom_bench(&a.dir, a.quick, &mut |r| {
-        println!("{}", bandcast::correlation::bench::format_result(r));
-    })?;
+    bandcast::correlation::bench::run_eom_bench(
+        &a.dir,
+        a.quick,
+        &a.only,
+        a.memory * 1024.0 * 1024.0 * 1024.0,
+        &mut |l| eprintln!("{l}"),
+        &mut |r| print!("{}", bandcast::correlation::bench::format_result(r)),
+    )?;
     Ok(())
 }

@@ -37,6 +37,11 @@ pub struct Args {
     /// Memory for MO integrals in GB.
     #[arg(long, value_name = "GB", default_value_t = 4.0)]
     pub memory: f64,
+    /// Two-electron integrals of eom-ccsd / eom-mp2: ri (density fitting with the fitting
+    /// set made for the basis; the default when one is bundled, Cholesky otherwise) or
+    /// cholesky (pivoted Cholesky decomposition, threshold 1e-5 Eh).
+    #[arg(long, value_name = "ri|cholesky")]
+    pub integrals: Option<String>,
     /// One JSON object on stdout instead of the table.
     #[arg(long)]
     pub json: bool,
@@ -64,12 +69,35 @@ pub fn run(args: Args) -> Result<()> {
         }
         None => default_method(&mol),
     };
+    use bandcast::correlation::two_electron::TwoElectron;
+    let eom_integrals = match args.integrals.as_deref() {
+        None => TwoElectron::Auto,
+        Some(x) if x.eq_ignore_ascii_case("ri") => {
+            match bandcast::basis::default_auxiliary_for(&basis.name) {
+                Some(aux) => TwoElectron::Fitted(aux.to_string()),
+                None => {
+                    return Err(Error::input(format!(
+                        "--integrals ri: no fitting set is bundled for the basis {}; use \
+                     --integrals cholesky",
+                        basis.name
+                    )))
+                }
+            }
+        }
+        Some(x) if x.eq_ignore_ascii_case("cholesky") => TwoElectron::Cholesky,
+        Some(x) => {
+            return Err(Error::input(format!(
+                "--integrals: '{x}' is not one of ri, cholesky"
+            )))
+        }
+    };
     let opts = ValenceOptions {
         method,
         count: args.count,
         window_ev: args.window,
         frozen_core: !args.correlate_core,
         memory_bytes: (args.memory * 1e9) as usize,
+        eom_integrals,
         ..Default::default()
     };
     let mut result = predict(&mol, &basis, &opts)?;

@@ -260,10 +260,11 @@ impl FockSpace {
         (e, r1, r2)
     }
 
-    /// Eigenvalues (real, imaginary; ascending real part) of H̄ − E_CC in the 1h + 2h1p space of the
-    /// N−1 electron sector with one β electron removed (doublets and quartets), built from
-    /// the connected matrix elements ⟨μ|[H̄, R_ν]|Φ⟩ so that it holds for any amplitudes.
-    pub fn ip_spectrum(&self, t1: &Tensor, t2: &Tensor) -> Vec<(f64, f64)> {
+    /// H̄ − E_CC in the 1h + 2h1p space of the N−1 electron sector with one β electron
+    /// removed (doublets and quartets), built from the connected matrix elements
+    /// ⟨μ|[H̄, R_ν]|Φ⟩ so that it holds for any amplitudes; with, for each basis
+    /// determinant, its number of holes (1 for the one-hole determinants).
+    fn ip_matrix(&self, t1: &Tensor, t2: &Tensor) -> (bandcast_linalg::Mat<f64>, Vec<u32>) {
         let o = self.nocc;
         let r0 = self.reference();
         let occ_mask = r0;
@@ -315,9 +316,43 @@ impl FockSpace {
                 h[(mu, nu)] = y[dm as usize] - z[dm as usize];
             }
         }
+        let holes = basis
+            .iter()
+            .map(|&d| (occ_mask & !d).count_ones())
+            .collect();
+        (h, holes)
+    }
+
+    /// Eigenvalues (real, imaginary; ascending real part) of the IP matrix of `ip_matrix`.
+    pub fn ip_spectrum(&self, t1: &Tensor, t2: &Tensor) -> Vec<(f64, f64)> {
+        let (h, _) = self.ip_matrix(t1, t2);
         let (re, im, _, _) = bandcast_linalg::eig_general(h.as_ref()).unwrap();
         let mut ev: Vec<(f64, f64)> = re.into_iter().zip(im).collect();
         ev.sort_by(|a, b| a.0.total_cmp(&b.0));
         ev
+    }
+
+    /// Real eigenvalues of the IP matrix with the one-hole weight of each right eigenvector,
+    /// Σ_{1h determinants} c² / Σ_all c², straight from the determinant coefficients.
+    pub fn ip_one_hole_weights(&self, t1: &Tensor, t2: &Tensor) -> Vec<(f64, f64)> {
+        let (h, holes) = self.ip_matrix(t1, t2);
+        let (re, im, ur, _) = bandcast_linalg::eig_general(h.as_ref()).unwrap();
+        let mut out = Vec::new();
+        for k in 0..re.len() {
+            if im[k] != 0.0 {
+                continue;
+            }
+            let (mut n1, mut nt) = (0.0, 0.0);
+            for (r, &nh) in holes.iter().enumerate() {
+                let c2 = ur[(r, k)] * ur[(r, k)];
+                nt += c2;
+                if nh == 1 {
+                    n1 += c2;
+                }
+            }
+            out.push((re[k], n1 / nt));
+        }
+        out.sort_by(|a, b| a.0.total_cmp(&b.0));
+        out
     }
 }

@@ -99,8 +99,9 @@ pub fn residual(ints: &MoIntegrals, t1: &Tensor, t2: &Tensor) -> (Tensor, Tensor
     let mut r2 = ints.ovov.permute(&[0, 2, 1, 3]);
     // P(ia,jb) Σ_c [(ia|bc) − Σ_k (ki|bc) t_k^a] t_j^c
     let mut tmp = ov3.t2_tmp.clone();
-    let z = einsum("kibc,ka->abic", &ints.oovv, t1);
-    tmp.axpy(-1.0, &einsum("abic,jc->ijab", &z, t1));
+    // Σ_k t_k^a [Σ_c (ki|bc) t_j^c]: the bracket is o³v, never an o v³ intermediate
+    let z = einsum("kibc,jc->kibj", &ints.oovv, t1);
+    tmp.axpy(-1.0, &einsum("kibj,ka->ijab", &z, t1));
     add_sym(&mut r2, 1.0, &tmp);
     // −P(ia,jb) Σ_k [(ia|kj) + Σ_c (kc|ai) t_j^c] t_k^b
     let mut z = ints.ovoo.permute(&[1, 3, 0, 2]);
@@ -124,9 +125,12 @@ pub fn residual(ints: &MoIntegrals, t1: &Tensor, t2: &Tensor) -> (Tensor, Tensor
     add_sym(&mut r2, 1.0, &tmp);
     let tmp = einsum("ki,kjab->ijab", &loo, t2);
     add_sym(&mut r2, -1.0, &tmp);
-    let mut tmp = einsum("akic,kjcb->ijab", &wvoov, t2);
-    tmp.scale(2.0);
-    tmp.axpy(-1.0, &einsum("akci,kjcb->ijab", &wvovo, t2));
+    // 2 W_akic − W_akci contracted in one product
+    let mut w = wvovo.permute(&[0, 1, 3, 2]);
+    w.scale(-1.0);
+    w.axpy(2.0, &wvoov);
+    let tmp = einsum("akic,kjcb->ijab", &w, t2);
+    drop(w);
     add_sym(&mut r2, 1.0, &tmp);
     let tmp = einsum("akic,kjbc->ijab", &wvoov, t2);
     add_sym(&mut r2, -1.0, &tmp);
@@ -147,6 +151,7 @@ pub fn solve(
     let d2 = mp2::denominators(ints);
     let d1 = Tensor::from_fn(&[o, v], |x| eo[x[0]] - ev[x[1]]);
     let (e_mp2, t2_0) = mp2::mp2(ints);
+    log(&format!("MP2 correlation energy {e_mp2:.10} Eh"));
     let mut t1 = Tensor::zeros(&[o, v]);
     let mut t2 = t2_0;
     let mut e_old = energy(ints, &t1, &t2);

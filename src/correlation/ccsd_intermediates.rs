@@ -11,7 +11,7 @@
 //! chemists' (pq|rs) blocks from integrals.rs.
 
 use super::integrals::MoIntegrals;
-use super::tensor::{einsum, Tensor};
+use super::tensor::{einsum, par_gemm, sum_of_products, Tensor};
 
 /// τ_ij^ab = t_ij^ab + t_i^a t_j^b.
 pub fn tau(t1: &Tensor, t2: &Tensor) -> Tensor {
@@ -79,8 +79,14 @@ pub struct OvvvTerms {
 }
 
 /// One pass over (ov|vv); with `t2 = None` only `lvv_x` is formed.
+///
+/// Every term is read from the slice in its stored order s_k[c][a][b] = (kc|ab), one
+/// occupied k at a time, as matrix products over (v × v) or (v² × v) views of s_k; the
+/// amplitudes are reordered instead (o²v² once per pass), never the o v³ slice.
 pub fn ovvv_pass(ints: &MoIntegrals, t1: &Tensor, t2: Option<(&Tensor, &Tensor)>) -> OvvvTerms {
+    use bandcast_linalg::{MatMut, MatRef};
     let (o, v) = (ints.nocc, ints.nvir);
+    let (vv, vvv) = (v * v, v * v * v);
     let mut out = OvvvTerms {
         lvv_x: Tensor::zeros(&[v, v]),
         r1: Tensor::zeros(&[o, v]),
@@ -89,44 +95,103 @@ pub fn ovvv_pass(ints: &MoIntegrals, t1: &Tensor, t2: Option<(&Tensor, &Tensor)>
         wvoov: Tensor::zeros(&[v, o, o, v]),
         wvovo: Tensor::zeros(&[v, o, v, o]),
     };
-    let t2ki = t2.map(|(t2, _)| t2.permute(&[1, 0, 2, 3])); // [k,i,c,d]
-    for (k0, k1) in ints.ovvv_batches(0) {
-        let s = ints.ovvv_slice(k0, k1);
-        let q = s.permute(&[0, 2, 3, 1]); // (kd|ac) as [k,a,c,d]
-        let mut l = q.permute(&[0, 1, 3, 2]);
-        l.scale(-1.0);
-        l.axpy(2.0, &q);
-        let t1s = rows(t1, k0, k1);
-        // Σ_kd L[k,a,c,d] t_k^d, k by k (contiguous slices, no transposition)
-        let vvv = v * v * v;
-        for k in 0..k1 - k0 {
-            let lk = Tensor {
-                shape: vec![v, v, v],
-                data: l.data[k * vvv..(k + 1) * vvv].to_vec(),
-            };
-            let tk = Tensor {
-                shape: vec![v],
-                data: t1s.data[k * v..(k + 1) * v].to_vec(),
-            };
-            out.lvv_x.axpy(1.0, &einsum("acd,d->ac", &lk, &tk));
-            if let Some(t2ki) = &t2ki {
-                let tk2 = Tensor {
-                    shape: vec![o, v, v],
-                    data: t2ki.data[(k0 + k) * o * v * v..(k0 + k + 1) * o * v * v].to_vec(),
-                };
-                out.r1.axpy(1.0, &einsum("acd,icd->ia", &lk, &tk2));
+    // U[k,e,f,i] = 2 t_ik^fe − t_ik^ef; τ as [d,c,i,j]
+    let amps = t2.map(|(t2, tau)| {
+        let mut u = t2.permute(&[1, 3, 2, 0]);
+        u.scale(2.0);
+        u.axpy(-1.0, &t2.permute(&[1, 2, 3, 0]));
+        (u, tau.permute(&[3, 2, 0, 1]))
+    });
+    let t1m = MatRef::from_row_major_slice(&t1.data, o, v);
+    let mut r1t = vec![0.0; v * o]; // r1 as [a][i]
+    let mut m_vvo = vec![0.0; vv * o];
+    let mut m_vv = vec![0.0; vv];
+    let mut y_k = vec![0.0; v * o * o];
+    ints.for_each_ovvv_slice(&mut |k0, k1, s| {
+        for kk in 0..k1 - k0 {
+            let k = k0 + kk;
+            let sk = &s[kk * vvv..(kk + 1) * vvv];
+            let s_rows = MatRef::from_row_major_slice(sk, vv, v); // [(c,a)][b]
+            let s_cols = MatRef::from_row_major_slice(sk, v, vv); // [c][(a,b)]
+            let tk = t1m.subrows(k, 1);
+            // lvv_x[a][c] += 2 Σ_d t_k^d (kd|ac) − Σ_d (kc|ad) t_k^d
+            par_gemm(
+                MatMut::from_row_major_slice_mut(&mut out.lvv_x.data, 1, vv),
+                true,
+                tk,
+                s_cols,
+                2.0,
+            );
+            par_gemm(
+                MatMut::from_row_major_slice_mut(&mut m_vv, vv, 1),
+                false,
+                s_rows,
+                tk.transpose(),
+                1.0,
+            );
+            for c in 0..v {
+                for a in 0..v {
+                    out.lvv_x.data[a * v + c] -= m_vv[c * v + a];
+                }
+            }
+            let Some((u, tau_dcij)) = &amps else { continue };
+            // r1[i][a] += Σ_ef (ke|af) U[k,e,f,i]
+            sum_of_products(
+                &mut r1t,
+                sk,
+                &u.data[k * v * v * o..(k + 1) * v * v * o],
+                v,
+                v,
+                o,
+                v,
+            );
+            // y[k][a][ij] = Σ_dc (kd|ac) τ_ij^cd
+            y_k.iter_mut().for_each(|x| *x = 0.0);
+            sum_of_products(&mut y_k, sk, &tau_dcij.data, v, v, o * o, v);
+            out.y.data[k * v * o * o..(k + 1) * v * o * o].copy_from_slice(&y_k);
+            // t2_tmp[k][j][a][b] += Σ_c (ka|bc) t_j^c:  M[(a,b)][j] = s_k[(a,b)][c] t1ᵀ
+            par_gemm(
+                MatMut::from_row_major_slice_mut(&mut m_vvo, vv, o),
+                false,
+                s_rows,
+                t1m.transpose(),
+                1.0,
+            );
+            for j in 0..o {
+                let dst = &mut out.t2_tmp.data[(k * o + j) * vv..(k * o + j + 1) * vv];
+                for (ab, x) in dst.iter_mut().enumerate() {
+                    *x += m_vvo[ab * o + j];
+                }
+            }
+            // wvoov[a][k][i][c] = Σ_d (kc|ad) t_i^d: the same M read as [(c,a)][i]
+            for c in 0..v {
+                for a in 0..v {
+                    let src = &m_vvo[(c * v + a) * o..(c * v + a + 1) * o];
+                    for (i, &x) in src.iter().enumerate() {
+                        out.wvoov.data[((a * o + k) * o + i) * v + c] += x;
+                    }
+                }
+            }
+            // wvovo[a][k][c][i] = Σ_d t_i^d (kd|ac): M[i][(a,c)] = t1 s_k
+            par_gemm(
+                MatMut::from_row_major_slice_mut(&mut m_vvo, o, vv),
+                false,
+                t1m,
+                s_cols,
+                1.0,
+            );
+            for i in 0..o {
+                for a in 0..v {
+                    for c in 0..v {
+                        out.wvovo.data[((a * o + k) * v + c) * o + i] += m_vvo[i * vv + a * v + c];
+                    }
+                }
             }
         }
-        drop(l);
-        if let Some((_, tau)) = t2 {
-            let part = einsum("iabc,jc->ijab", &s, t1);
-            add_slice_along(&mut out.t2_tmp, &part, 0, k0);
-            let y = einsum("kacd,ijcd->kaij", &q, tau);
-            add_slice_along(&mut out.y, &y, 0, k0);
-            let p = einsum("kcad,id->akic", &s, t1);
-            add_slice_along(&mut out.wvoov, &p, 1, k0);
-            let p = einsum("kacd,id->akci", &q, t1);
-            add_slice_along(&mut out.wvovo, &p, 1, k0);
+    });
+    for i in 0..o {
+        for a in 0..v {
+            out.r1.data[i * v + a] = r1t[a * o + i];
         }
     }
     out
@@ -154,17 +219,6 @@ pub fn woooo(ints: &MoIntegrals, t1: &Tensor, tau: &Tensor) -> Tensor {
     w
 }
 
-/// Rows k0..k1 of a matrix-shaped tensor (first axis sliced).
-pub fn rows(t: &Tensor, k0: usize, k1: usize) -> Tensor {
-    let inner: usize = t.shape[1..].iter().product();
-    let mut shape = t.shape.clone();
-    shape[0] = k1 - k0;
-    Tensor {
-        shape,
-        data: t.data[k0 * inner..k1 * inner].to_vec(),
-    }
-}
-
 /// Write `src` (first axis k0..k1 of the full tensor, along axis `axis`) into `dst`.
 pub fn add_slice_along(dst: &mut Tensor, src: &Tensor, axis: usize, k0: usize) {
     let outer: usize = dst.shape[..axis].iter().product();
@@ -190,11 +244,14 @@ pub fn wvoov(ints: &MoIntegrals, t1: &Tensor, t2: &Tensor, ovvv_part: &Tensor) -
     let mut w = ovov.permute(&[3, 0, 2, 1]);
     w.axpy(1.0, ovvv_part);
     w.axpy(-1.0, &einsum("kcli,la->akic", &ints.ovoo, t1));
-    w.axpy(-0.5, &einsum("ldkc,ilda->akic", ovov, t2));
+    // −½ Σ_ld (ld|kc) t_il^da + Σ_ld (ld|kc) t_il^ad in one product
+    let mut x = t2.permute(&[0, 1, 3, 2]);
+    x.axpy(-0.5, t2);
+    w.axpy(1.0, &einsum("ldkc,ilda->akic", ovov, &x));
+    drop(x);
     w.axpy(-0.5, &einsum("lckd,ilad->akic", ovov, t2));
     let z = einsum("ldkc,id->lkci", ovov, t1);
     w.axpy(-1.0, &einsum("lkci,la->akic", &z, t1));
-    w.axpy(1.0, &einsum("ldkc,ilad->akic", ovov, t2));
     w
 }
 

@@ -19,6 +19,7 @@ use crate::basis::BasisSet;
 use crate::integrals::EriEngine;
 
 use super::integrals::MoFactors;
+use super::tensor::par_gemm;
 
 /// Cholesky vectors over packed AO pairs, `l[Q * npair + pq]`.
 #[derive(Debug, Clone)]
@@ -172,7 +173,7 @@ pub fn decompose(
             let lm = MatRef::from_row_major_slice(&l[..nvec * npair], nvec, npair);
             let lcm = MatRef::from_row_major_slice(&lc, nvec, nc);
             let mm = MatMut::from_row_major_slice_mut(&mut m, npair, nc);
-            gemm(mm, true, lm, true, lcm, false, -1.0, Par::rayon(0));
+            par_gemm(mm, true, lm.transpose(), lcm, -1.0);
         }
         // pivots within the batch
         let mut done = vec![false; nc];

@@ -1,35 +1,37 @@
 //! Ionization energies from EOM-IP-CCSD and EOM-IP-MBPT2: the library entry point.
 //!
-//! Pipeline: closed-shell RHF orbitals → Cholesky-decomposed two-electron integrals
-//! (cholesky.rs; no auxiliary-basis density fitting) → active-space MO blocks
-//! (integrals.rs, frozen core by default) → ground-state amplitudes (CCSD, ccsd.rs; or
+//! Pipeline: closed-shell RHF orbitals → three-index factors of the two-electron integrals
+//! (two_electron.rs: density fitting with the orbital set's fitting set by default, else
+//! Cholesky) → active-space MO blocks (integrals.rs, frozen core by default; the ladder
+//! integrals of ladder.rs when CCSD is run and they fit) → ground-state amplitudes (CCSD, ccsd.rs; or
 //! first-order MP2 doubles with T1 = 0 for EOM-IP-MBPT2, Stanton & Gauss, J. Chem. Phys. 103
 //! (1995) 1064; Lange & Berkelbach, J. Chem. Theory Comput. 14 (2018) 4224) → H̄ elements
 //! (eom_ip_intermediates.rs) → Davidson (davidson.rs) on the spin-adapted 1h + 2h1p sigma
 //! vectors (eom_ip_sigma.rs; Stanton & Gauss, J. Chem. Phys. 101 (1994) 8938).
 //!
 //! Each state reports its IE, the dominant occupied orbital of R1, and the one-hole weight
-//! |R1|² / (|R1|² + |R2|²) in the spin-orbital metric (eom_ip_sigma.rs): near 1 for a
+//! |R1|² / (|R1|² + |R2|²) in the spin-orbital metric (eom_ip_sigma.rs; checked against
+//! determinant-space eigenvectors in brute_force.rs): near 1 for a
 //! Koopmans-like band, clearly smaller for bands whose intensity is shared with satellites
 //! (inner valence). Predicted energies guide the reading of a measured spectrum; they do not
 //! replace it.
 
 use crate::basis::BasisSet;
 use crate::chem::Molecule;
-use crate::integrals::EriEngine;
 use crate::scf::{Reference, Wavefunction};
 use crate::units::HARTREE_TO_EV;
 use crate::{Error, Result};
 
 use super::ccsd::{self, CcsdOptions};
-use super::cholesky;
 use super::davidson::{self, DavidsonOptions, Selection};
 use super::eom_ip_intermediates::IpHbar;
 use super::eom_ip_sigma::{self, IpSpace};
 use super::integrals::MoIntegrals;
-use super::memory::{self, Stage};
+use super::memory::{self, FactorRoute, Stage};
 use super::mp2;
+use super::stages::{StageClock, StageRecord};
 use super::tensor::Tensor;
+use super::two_electron::{self, Resolved, TwoElectron};
 
 /// Ground-state amplitudes the EOM eigenproblem is built on.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -65,8 +67,14 @@ pub struct EomOptions {
     pub roots: RootSpec,
     /// Keep the chemical core uncorrelated (He-like 1s for Li–Ne, Ne-like for Na–Ar, …).
     pub frozen_core: bool,
-    /// Threshold of the Cholesky decomposition of the AO integrals (hartree).
+    /// Treatment of the two-electron integrals (density fitting by default).
+    pub two_electron: TwoElectron,
+    /// Threshold of the Cholesky decomposition of the AO integrals (hartree), when that
+    /// route is used.
     pub cholesky_threshold: f64,
+    /// Reset the peak-memory mark at every stage so each stage reports its own peak
+    /// (benchmarks; otherwise each stage reports the process peak so far).
+    pub stage_peaks: bool,
     pub ccsd: CcsdOptions,
     pub davidson: DavidsonOptions,
     /// Memory budget in bytes; None: what the operating system reports as available.
@@ -79,7 +87,9 @@ impl Default for EomOptions {
             method: EomMethod::Ccsd,
             roots: RootSpec::Lowest(5),
             frozen_core: true,
+            two_electron: TwoElectron::Auto,
             cholesky_threshold: 1e-5,
+            stage_peaks: false,
             ccsd: CcsdOptions::default(),
             davidson: DavidsonOptions::default(),
             memory_budget: None,
@@ -120,16 +130,28 @@ pub struct EomReport {
     pub n_frozen: usize,
     pub n_active_occupied: usize,
     pub n_virtual: usize,
-    pub n_cholesky_vectors: usize,
-    pub cholesky_threshold: f64,
+    /// Number of three-index factors (auxiliary functions or Cholesky vectors).
+    pub n_factors: usize,
+    /// Whether the factors come from density fitting (else Cholesky).
+    pub density_fitted: bool,
     /// Peak memory estimate (bytes) of the plan.
     pub memory_estimate: f64,
     /// Human-readable notes on how the job was run (integral treatment, storage).
     pub notes: Vec<String>,
-    /// Wall times (s): integrals (decomposition + MO blocks), ground state, EOM.
-    pub seconds_integrals: f64,
-    pub seconds_ground: f64,
-    pub seconds_eom: f64,
+    /// Wall time, CPU time and peak memory per stage, in order: "factors", "MO blocks",
+    /// "ground state", "EOM setup" (H̄ elements), "EOM solve" (Davidson).
+    pub stages: Vec<StageRecord>,
+}
+
+impl EomReport {
+    /// Wall seconds of the stages named `name`.
+    pub fn seconds(&self, name: &str) -> f64 {
+        self.stages
+            .iter()
+            .filter(|r| r.name == name)
+            .map(|r| r.wall_seconds)
+            .sum()
+    }
 }
 
 /// Number of core orbitals kept frozen for an element (chemical core, common practice).
@@ -148,7 +170,7 @@ pub fn frozen_core_orbitals(z: u32) -> usize {
 /// Energies for chosen orbitals (one targeted EOM root per orbital, in the given order) as
 /// (IE hartree, one-hole weight), plus notes on how the job was run. Used by
 /// `ionization::valence` for `--method eom-ccsd|eom-mp2`.
-#[allow(clippy::type_complexity)]
+#[allow(clippy::type_complexity, clippy::too_many_arguments)]
 pub fn band_energies(
     mol: &Molecule,
     basis: &BasisSet,
@@ -157,12 +179,14 @@ pub fn band_energies(
     method: EomMethod,
     frozen_core: bool,
     memory_bytes: Option<f64>,
+    two_electron: &TwoElectron,
 ) -> Result<(Vec<(f64, f64)>, Vec<String>)> {
     let opts = EomOptions {
         method,
         roots: RootSpec::Orbitals(orbitals.to_vec()),
         frozen_core,
         memory_budget: memory_bytes,
+        two_electron: two_electron.clone(),
         ..Default::default()
     };
     let rep = ionize_report(mol, basis, wfn, &opts, &mut |_| {})?;
@@ -263,12 +287,19 @@ pub fn ionize_report(
     let budget = opts
         .memory_budget
         .unwrap_or_else(|| 0.8 * memory::available_bytes());
+    let how = two_electron::resolve(&opts.two_electron, mol, basis, opts.cholesky_threshold)?;
+    let route = match &how {
+        Resolved::Fitted(aux) => FactorRoute::Fitted(aux.n_basis),
+        Resolved::Cholesky(tau) => {
+            FactorRoute::Cholesky(memory::expected_cholesky_vectors(n, *tau))
+        }
+    };
     let plan = memory::plan(
         stage,
         n,
         o,
         v,
-        opts.cholesky_threshold,
+        route,
         opts.ccsd.diis_size,
         opts.davidson.max_subspace,
         budget,
@@ -308,15 +339,7 @@ pub fn ionize_report(
     };
 
     // Integrals.
-    let clock = std::time::Instant::now();
-    let eng = EriEngine::new(basis);
-    let cd = cholesky::decompose(
-        basis,
-        &eng,
-        opts.cholesky_threshold,
-        plan.max_cholesky_vectors,
-        log,
-    )?;
+    let mut clock = StageClock::new(opts.stage_peaks);
     let c_occ: Vec<f64> = (0..n)
         .flat_map(|mu| (n_frozen..nocc).map(move |i| (mu, i)))
         .map(|(mu, i)| c[(mu, i)])
@@ -325,9 +348,18 @@ pub fn ionize_report(
         .flat_map(|mu| (nocc..nmo).map(move |a| (mu, a)))
         .map(|(mu, a)| c[(mu, a)])
         .collect();
-    let factors = cd.to_mo(&c_occ, o, &c_vir, v);
-    let n_chol = cd.nvec;
-    drop(cd);
+    let (factors, factor_note) = two_electron::mo_factors(
+        &how,
+        basis,
+        &c_occ,
+        o,
+        &c_vir,
+        v,
+        plan.max_cholesky_vectors,
+        log,
+    )?;
+    let n_factors = factors.naux;
+    log(&clock.finish("factors").describe());
     let na = o + v;
     let eps = &wfn.eps_alpha;
     let fock = Tensor::from_fn(&[na, na], |x| {
@@ -337,28 +369,24 @@ pub fn ionize_report(
             0.0
         }
     });
-    let mut ints = MoIntegrals::new(factors, &fock, plan.store_ovvv, plan.store_vvvv);
-    if plan.store_vvvv_packed {
-        ints.vvvv_packed = Some(super::integrals::PackedVvvv::build(&ints.factors));
-    }
-    let mut notes = vec![format!(
-        "two-electron integrals: Cholesky decomposition, threshold {:.0e} Eh, {n_chol} vectors \
-         (no auxiliary-basis density fitting)",
-        opts.cholesky_threshold
-    )];
+    let store_ladder = plan.store_vvvv && opts.method == EomMethod::Ccsd;
+    let ints = MoIntegrals::new(factors, &fock, plan.store_ovvv, store_ladder);
+    log(&clock.finish("MO blocks").describe());
+    let mut notes = vec![factor_note];
     notes.push(format!(
-        "(ov|vv) block {}; particle-particle ladder {}",
+        "(ov|vv) block {}{}",
         if plan.store_ovvv {
             "stored"
         } else {
             "rebuilt in slices"
         },
-        if plan.store_vvvv {
-            "from the stored (vv|vv) block"
-        } else if plan.store_vvvv_packed {
-            "from (vv|vv) stored packed with its 8-fold symmetry"
-        } else {
-            "contracted directly from the Cholesky factors"
+        match opts.method {
+            EomMethod::Ccsd if store_ladder => "; particle-particle ladder from stored (vv|vv)",
+            EomMethod::Ccsd => {
+                "; particle-particle ladder generated from the factors every iteration \
+                 ((vv|vv) does not fit the memory budget)"
+            }
+            EomMethod::Mbpt2 => "",
         }
     ));
     if n_frozen > 0 {
@@ -367,24 +395,22 @@ pub fn ionize_report(
         notes.push("all electrons correlated".into());
     }
 
-    let seconds_integrals = clock.elapsed().as_secs_f64();
     // Ground state.
-    let clock = std::time::Instant::now();
-    let (e_mp2, t2_mp2) = mp2::mp2(&ints);
-    log(&format!("MP2 correlation energy {e_mp2:.10} Eh"));
-    let (t1, t2, e_cc, iters) = match opts.method {
+    let (t1, t2, e_cc, iters, e_mp2) = match opts.method {
         EomMethod::Ccsd => {
             let r = ccsd::solve(&ints, &opts.ccsd, log)?;
-            (r.t1, r.t2, Some(r.e_corr), r.iterations)
+            (r.t1, r.t2, Some(r.e_corr), r.iterations, r.e_mp2)
         }
-        EomMethod::Mbpt2 => (Tensor::zeros(&[o, v]), t2_mp2, None, 0),
+        EomMethod::Mbpt2 => {
+            let (e_mp2, t2) = mp2::mp2(&ints);
+            log(&format!("MP2 correlation energy {e_mp2:.10} Eh"));
+            (Tensor::zeros(&[o, v]), t2, None, 0, e_mp2)
+        }
     };
-
-    let seconds_ground = clock.elapsed().as_secs_f64();
+    log(&clock.finish("ground state").describe());
     // EOM.
-    let clock = std::time::Instant::now();
-    let hbar = IpHbar::new(&ints, &t1, &t2);
-    drop(ints);
+    let hbar = IpHbar::new(ints, &t1, t2);
+    log(&clock.finish("EOM setup").describe());
     let space = IpSpace { nocc: o, nvir: v };
     let diag = eom_ip_sigma::diagonal(&hbar, &space);
     let dim = space.dim();
@@ -457,7 +483,7 @@ pub fn ionize_report(
         // lowest roots come back ascending; targeted roots keep the order of the targets
         states.sort_by(|a, b| a.ie_hartree.total_cmp(&b.ie_hartree));
     }
-    let seconds_eom = clock.elapsed().as_secs_f64();
+    log(&clock.finish("EOM solve").describe());
     for s in &states {
         log(&format!(
             "{} state: IE {:.4} eV, orbital {}, one-hole weight {:.3}",
@@ -477,13 +503,11 @@ pub fn ionize_report(
         n_frozen,
         n_active_occupied: o,
         n_virtual: v,
-        n_cholesky_vectors: n_chol,
-        cholesky_threshold: opts.cholesky_threshold,
+        n_factors,
+        density_fitted: how.is_fitted(),
         memory_estimate: plan.peak_bytes,
         notes,
-        seconds_integrals,
-        seconds_ground,
-        seconds_eom,
+        stages: clock.records,
     })
 }
 
@@ -498,13 +522,11 @@ fn empty_report(opts: &EomOptions, wfn: &Wavefunction, nf: usize, o: usize, v: u
         n_frozen: nf,
         n_active_occupied: o,
         n_virtual: v,
-        n_cholesky_vectors: 0,
-        cholesky_threshold: opts.cholesky_threshold,
+        n_factors: 0,
+        density_fitted: false,
         memory_estimate: 0.0,
         notes: Vec::new(),
-        seconds_integrals: 0.0,
-        seconds_ground: 0.0,
-        seconds_eom: 0.0,
+        stages: Vec::new(),
     }
 }
 
@@ -548,6 +570,7 @@ mod tests {
         );
         let opts = EomOptions {
             frozen_core: false,
+            two_electron: TwoElectron::Cholesky,
             cholesky_threshold: 1e-10,
             roots: RootSpec::Lowest(2),
             ..Default::default()
@@ -582,6 +605,7 @@ mod tests {
         let basis = crate::basis::load("def2-svp", &mol, None).unwrap();
         let wfn = rhf(&mol, &basis);
         let opts = EomOptions {
+            two_electron: TwoElectron::Cholesky,
             cholesky_threshold: 1e-11,
             roots: RootSpec::Lowest(1),
             ccsd: CcsdOptions {

@@ -157,7 +157,7 @@ mod tests {
             let mut t2r = t2r0.permute(&[1, 0, 3, 2]);
             t2r.axpy(1.0, &t2r0);
             for (t1, t2) in [(&cc.t1, &cc.t2), (&t1z, &t2m), (&t1r, &t2r)] {
-                let h = IpHbar::new(&ints, t1, t2);
+                let h = IpHbar::new(ints.clone(), t1, t2.clone());
                 let space = IpSpace { nocc: o, nvir: v };
                 let m = full_matrix(&h, &space);
                 let (re, im, _, _) = eig_general(m.as_ref()).unwrap();
@@ -176,5 +176,90 @@ mod tests {
                 }
             }
         }
+    }
+
+    /// The one-hole weight Σ R1² / (Σ R1² + Σ R2 (2 R2 − R2ᵀ)) of the spin-adapted
+    /// eigenvectors (`metric_norms`, what `ionize` reports) equals Σ c² over the one-hole
+    /// determinants / Σ c² over all determinants of the matching eigenvector of the literal
+    /// spin-orbital EOM matrix — for converged CCSD, MBPT2 and random amplitudes. The plain
+    /// Euclidean norm of (R1, R2) is not the determinant norm: the test also checks that it
+    /// would give a different (wrong) weight, so the check can tell the two apart.
+    #[test]
+    fn one_hole_weights_match_determinant_space() {
+        let mut checked = 0;
+        let mut naive_differs = false;
+        let (mut w_min, mut w_max) = (1.0f64, 0.0f64);
+        for &(o, v, seed) in &[(2usize, 3usize, 5u64), (3, 2, 8), (2, 3, 21)] {
+            let (f, fock) = toy_system(o, v, 6, seed, 0.0);
+            let ints = MoIntegrals::new(f.clone(), &fock, true, false);
+            let cc = ccsd::solve(
+                &ints,
+                &CcsdOptions {
+                    r_tol: 1e-11,
+                    e_tol: 1e-12,
+                    ..Default::default()
+                },
+                &mut |_| {},
+            )
+            .unwrap();
+            let fs = FockSpace::new(&f, &fock);
+            let t1z = Tensor::zeros(&[o, v]);
+            let t2m = mp2::amplitudes(&ints);
+            let mut rng = Lcg(seed + 1);
+            let t1r = Tensor::from_fn(&[o, v], |_| 0.4 * rng.next());
+            let t2r0 = Tensor::from_fn(&[o, o, v, v], |_| 0.4 * rng.next());
+            let mut t2r = t2r0.permute(&[1, 0, 3, 2]);
+            t2r.axpy(1.0, &t2r0);
+            for (t1, t2) in [(&cc.t1, &cc.t2), (&t1z, &t2m), (&t1r, &t2r)] {
+                let h = IpHbar::new(ints.clone(), t1, t2.clone());
+                let space = IpSpace { nocc: o, nvir: v };
+                let m = full_matrix(&h, &space);
+                let (re, im, ur, _) = eig_general(m.as_ref()).unwrap();
+                let bf = fs.ip_one_hole_weights(t1, t2);
+                let all_bf = fs.ip_spectrum(t1, t2);
+                for k in 0..re.len() {
+                    // real, isolated eigenvalues only (an eigenvector is then unique)
+                    let isolated = |e: f64, list: &mut dyn Iterator<Item = f64>| {
+                        list.filter(|x| (x - e).abs() < 1e-6).count() == 1
+                    };
+                    if im[k] != 0.0
+                        || !isolated(re[k], &mut re.iter().copied())
+                        || !isolated(re[k], &mut all_bf.iter().map(|x| x.0))
+                    {
+                        continue;
+                    }
+                    let x: Vec<f64> = (0..space.dim()).map(|r| ur[(r, k)]).collect();
+                    let (n1, n2) = space.metric_norms(&x);
+                    let w = n1 / (n1 + n2);
+                    let (e_bf, w_bf) = bf
+                        .iter()
+                        .copied()
+                        .min_by(|a, b| (a.0 - re[k]).abs().total_cmp(&(b.0 - re[k]).abs()))
+                        .unwrap();
+                    assert!(
+                        (e_bf - re[k]).abs() < 1e-9,
+                        "eigenvalue {} vs {e_bf}",
+                        re[k]
+                    );
+                    assert!(
+                        (w - w_bf).abs() < 1e-9,
+                        "one-hole weight {w} vs determinant space {w_bf} (E = {})",
+                        re[k]
+                    );
+                    let naive = n1 / x.iter().map(|a| a * a).sum::<f64>();
+                    naive_differs |= (naive - w_bf).abs() > 1e-3;
+                    w_min = w_min.min(w);
+                    w_max = w_max.max(w);
+                    checked += 1;
+                }
+            }
+        }
+        // (nearly) every spin-adapted root of nine systems, Koopmans-like and satellite-like
+        assert!(checked >= 120, "only {checked} of 147 roots compared");
+        assert!(
+            w_max > 0.8 && w_min < 0.2,
+            "weights span [{w_min}, {w_max}]"
+        );
+        assert!(naive_differs);
     }
 }

@@ -7,14 +7,15 @@
 //! threshold bounds the error of every integral, so a tight threshold reproduces the exact
 //! integrals. Blocks with at most two virtual indices are stored; the (ov|vv) block is
 //! stored when the memory plan allows and otherwise rebuilt in slices over its occupied
-//! index; the (vv|vv) block is never stored for large virtual spaces — the
-//! particle–particle ladder is contracted batch-wise directly from the factors.
+//! index; the particle–particle ladder uses (vv|vv) in the symmetric/antisymmetric form of
+//! ladder.rs, stored when the memory plan allows and otherwise generated from the factors.
 //!
 //! Index letters: i,j,k,l active occupied; a,b,c,d virtual. All integrals chemists' notation.
 
-use bandcast_linalg::{gemm, par_for, MatMut, MatRef};
+use bandcast_linalg::{MatMut, MatRef};
 
-use super::tensor::{gemm_rm, Tensor};
+use super::ladder::{ladder_direct, LadderIntegrals};
+use super::tensor::{par_gemm, Tensor};
 
 /// Three-index factors in the active MO basis, each stored `[Q][p][q]`.
 #[derive(Debug, Clone)]
@@ -48,10 +49,8 @@ pub struct MoIntegrals {
     pub lovov: Tensor,
     /// (ia|bc) as [i,a,b,c] when stored.
     pub ovvv: Option<Tensor>,
-    /// (ac|bd) as [a,b,c,d] (ladder order) when stored (small virtual spaces only).
-    pub vvvv: Option<Tensor>,
-    /// (vv|vv) packed with all its symmetry when stored (`PackedVvvv`).
-    pub vvvv_packed: Option<PackedVvvv>,
+    /// (vv|vv) as the ladder's V⁺/V⁻ blocks when stored (ladder.rs).
+    pub vvvv: Option<LadderIntegrals>,
     pub factors: MoFactors,
 }
 
@@ -64,7 +63,7 @@ fn assemble(naux: usize, left: &[f64], npq: usize, right: &[f64], nrs: usize) ->
     let l = MatRef::from_row_major_slice(left, naux, npq);
     let r = MatRef::from_row_major_slice(right, naux, nrs);
     let c = MatMut::from_row_major_slice_mut(&mut out, npq, nrs);
-    gemm(c, false, l, true, r, false, 1.0, par_for(npq.max(nrs)));
+    par_gemm(c, false, l.transpose(), r, 1.0);
     out
 }
 
@@ -84,7 +83,8 @@ impl MoFactors {
         }
     }
 
-    /// (ab|cd) as [a,b,c,d] (only for small virtual spaces).
+    /// (ab|cd) as [a,b,c,d] (tests on tiny cases).
+    #[cfg(test)]
     pub fn vvvv(&self) -> Tensor {
         let v = self.nvir;
         Tensor {
@@ -121,175 +121,6 @@ impl MoFactors {
             (false, false) => self.b_vv[q * v * v + (p - o) * v + (r - o)],
         }
     }
-
-    /// Particle–particle ladder Σ_cd (ac|bd) X_ij^cd, for X with X_ij^cd = X_ji^dc, from
-    /// the factors in batches of `a` (never storing (vv|vv)). The result has the same
-    /// symmetry, so only b ≤ a is computed and mirrored.
-    pub fn ladder_direct(&self, x: &Tensor) -> Tensor {
-        let (v, naux) = (self.nvir, self.naux);
-        let mut xcbd = vec![0.0; v * v * v];
-        ladder_rows(self.nocc, v, x, &mut |a, xt| {
-            let nb = a + 1;
-            // X[c][b d] = Σ_Q B^Q_ac B^Q_bd
-            {
-                let ba = MatRef::from_column_major_slice_with_stride(
-                    &self.b_vv[a * v..],
-                    v,
-                    naux,
-                    v * v,
-                );
-                let bvv = MatRef::from_row_major_slice_with_stride(&self.b_vv, naux, nb * v, v * v);
-                let c = MatMut::from_row_major_slice_mut(&mut xcbd[..v * nb * v], v, nb * v);
-                gemm(c, false, ba, false, bvv, false, 1.0, par_for(v * nb));
-            }
-            // to [b][c d]
-            for c in 0..v {
-                for b in 0..nb {
-                    let src = &xcbd[c * nb * v + b * v..c * nb * v + (b + 1) * v];
-                    xt[b * v * v + c * v..b * v * v + (c + 1) * v].copy_from_slice(src);
-                }
-            }
-        })
-    }
-}
-
-/// The ladder loop shared by the direct and packed variants: `row(a, xt)` fills
-/// xt[b][c][d] = (ac|bd) for b ≤ a; the result R_ij^ab = Σ_cd (ac|bd) X_ij^cd is formed
-/// for b ≤ a and mirrored (R_ji^ba = R_ij^ab).
-fn ladder_rows(o: usize, v: usize, x: &Tensor, row: &mut dyn FnMut(usize, &mut [f64])) -> Tensor {
-    {
-        let mut out = Tensor::zeros(&[o, o, v, v]);
-        let oo = o * o;
-        let mut xt = vec![0.0; v * v * v];
-        let mut ra = vec![0.0; oo * v];
-        for a in 0..v {
-            let nb = a + 1;
-            row(a, &mut xt[..nb * v * v]);
-            // R[ij][b] = Σ_cd X_ij^cd Y[b][cd]
-            {
-                let xm = MatRef::from_row_major_slice(&x.data, oo, v * v);
-                let ym = MatRef::from_row_major_slice(&xt[..nb * v * v], nb, v * v);
-                let c = MatMut::from_row_major_slice_mut(&mut ra[..oo * nb], oo, nb);
-                gemm(c, false, xm, false, ym, true, 1.0, par_for(oo.max(nb)));
-            }
-            for i in 0..o {
-                for j in 0..o {
-                    let ij = i * o + j;
-                    for b in 0..nb {
-                        let val = ra[ij * nb + b];
-                        out.data[((i * o + j) * v + a) * v + b] += val;
-                        if b != a {
-                            out.data[((j * o + i) * v + b) * v + a] += val;
-                        }
-                    }
-                }
-            }
-        }
-        out
-    }
-}
-
-/// (ac|bd) stored once with its 8-fold symmetry: rows and columns are packed pairs
-/// p = pk(a,c) (a ≥ c), and only the triangle G[p][q], p ≥ q, is kept — v⁴/8 words
-/// instead of v⁴ (benzene/def2-TZVPP, 249 virtuals: 3.9 GB instead of 31 GB).
-#[derive(Debug, Clone)]
-pub struct PackedVvvv {
-    pub nvir: usize,
-    pub data: Vec<f64>,
-}
-
-#[inline]
-fn pk(a: usize, c: usize) -> usize {
-    if a >= c {
-        a * (a + 1) / 2 + c
-    } else {
-        c * (c + 1) / 2 + a
-    }
-}
-
-impl PackedVvvv {
-    /// Words needed for `v` virtuals.
-    pub fn words(v: usize) -> f64 {
-        let p = (v * (v + 1) / 2) as f64;
-        p * (p + 1.0) / 2.0
-    }
-
-    pub fn build(f: &MoFactors) -> Self {
-        use rayon::prelude::*;
-        let (v, naux) = (f.nvir, f.naux);
-        let np = v * (v + 1) / 2;
-        // B_p[Q][pk(a,c)]
-        let mut bp = vec![0.0; naux * np];
-        for q in 0..naux {
-            for a in 0..v {
-                for c in 0..=a {
-                    bp[q * np + pk(a, c)] = f.b_vv[q * v * v + a * v + c];
-                }
-            }
-        }
-        let mut data = vec![0.0; np * (np + 1) / 2];
-        let block = 256usize;
-        let mut r0 = 0;
-        while r0 < np {
-            let r1 = (r0 + block).min(np);
-            let nr = r1 - r0;
-            // G[r0..r1][0..r1] = B_pᵀ[rows] B_p[cols]
-            let mut g = vec![0.0; nr * r1];
-            let left = MatRef::from_row_major_slice_with_stride(&bp[r0..], naux, nr, np);
-            let right = MatRef::from_row_major_slice_with_stride(&bp, naux, r1, np);
-            gemm(
-                MatMut::from_row_major_slice_mut(&mut g, nr, r1),
-                false,
-                left,
-                true,
-                right,
-                false,
-                1.0,
-                par_for(r1),
-            );
-            let start = r0 * (r0 + 1) / 2;
-            let end = r1 * (r1 + 1) / 2;
-            let dst = &mut data[start..end];
-            // rows r0..r1 of the triangle are contiguous: row p holds q = 0..=p
-            let mut chunks: Vec<&mut [f64]> = Vec::with_capacity(nr);
-            let mut rest = dst;
-            for p in r0..r1 {
-                let (h, t) = rest.split_at_mut(p + 1);
-                chunks.push(h);
-                rest = t;
-            }
-            chunks.into_par_iter().enumerate().for_each(|(k, row)| {
-                row.copy_from_slice(&g[k * r1..k * r1 + r0 + k + 1]);
-            });
-            r0 = r1;
-        }
-        PackedVvvv { nvir: v, data }
-    }
-
-    #[inline]
-    pub fn get(&self, a: usize, c: usize, b: usize, d: usize) -> f64 {
-        let (p, q) = (pk(a, c), pk(b, d));
-        let (hi, lo) = if p >= q { (p, q) } else { (q, p) };
-        self.data[hi * (hi + 1) / 2 + lo]
-    }
-
-    /// Σ_cd (ac|bd) X_ij^cd from the packed block.
-    pub fn ladder(&self, o: usize, x: &Tensor) -> Tensor {
-        use rayon::prelude::*;
-        let v = self.nvir;
-        ladder_rows(o, v, x, &mut |a, xt| {
-            xt.par_chunks_mut(v * v).enumerate().for_each(|(b, blk)| {
-                for c in 0..v {
-                    let p = pk(a, c);
-                    for d in 0..v {
-                        let q = pk(b, d);
-                        let (hi, lo) = if p >= q { (p, q) } else { (q, p) };
-                        blk[c * v + d] = self.data[hi * (hi + 1) / 2 + lo];
-                    }
-                }
-            });
-        })
-    }
 }
 
 impl MoIntegrals {
@@ -322,8 +153,7 @@ impl MoIntegrals {
         lovov.scale(-1.0);
         lovov.axpy(2.0, &ovov);
         let ovvv = store_ovvv.then(|| factors.ovvv_slice(0, o));
-        let vvvv = store_vvvv.then(|| factors.vvvv().permute(&[0, 2, 1, 3]));
-        let vvvv_packed = None;
+        let vvvv = store_vvvv.then(|| LadderIntegrals::build(&factors));
         MoIntegrals {
             nocc: o,
             nvir: v,
@@ -337,18 +167,17 @@ impl MoIntegrals {
             lovov,
             ovvv,
             vvvv,
-            vvvv_packed,
             factors,
         }
     }
 
     /// Occupied-index batches of (kc|ab): (k0, slice [k,c,a,b]).
-    /// `batch` = 0 picks a batch size keeping each slice near 64 M words.
+    /// `batch` = 0 picks a batch size keeping each slice within `memory::OVVV_SLICE_WORDS`.
     pub fn ovvv_batches(&self, batch: usize) -> Vec<(usize, usize)> {
         let o = self.nocc;
         let v = self.nvir.max(1);
         let b = if batch == 0 {
-            ((1usize << 26) / (v * v * v)).clamp(1, o.max(1))
+            (super::memory::OVVV_SLICE_WORDS / (v * v * v)).clamp(1, o.max(1))
         } else {
             batch
         };
@@ -357,45 +186,23 @@ impl MoIntegrals {
             .collect()
     }
 
-    pub fn ovvv_slice(&self, k0: usize, k1: usize) -> std::borrow::Cow<'_, Tensor> {
-        match &self.ovvv {
-            Some(t) if k0 == 0 && k1 == self.nocc => std::borrow::Cow::Borrowed(t),
-            Some(t) => {
-                let inner = self.nvir.pow(3);
-                std::borrow::Cow::Owned(Tensor {
-                    shape: vec![k1 - k0, self.nvir, self.nvir, self.nvir],
-                    data: t.data[k0 * inner..k1 * inner].to_vec(),
-                })
+    /// Call `f(k0, k1, s)` for every occupied batch with s = (kc|ab) as [k,c,a,b] for k in
+    /// k0..k1: borrowed from the stored block, or rebuilt from the factors.
+    pub fn for_each_ovvv_slice(&self, f: &mut dyn FnMut(usize, usize, &[f64])) {
+        let inner = self.nvir.pow(3);
+        for (k0, k1) in self.ovvv_batches(0) {
+            match &self.ovvv {
+                Some(t) => f(k0, k1, &t.data[k0 * inner..k1 * inner]),
+                None => f(k0, k1, &self.factors.ovvv_slice(k0, k1).data),
             }
-            None => std::borrow::Cow::Owned(self.factors.ovvv_slice(k0, k1)),
         }
     }
 
     /// Σ_cd (ac|bd) X_ij^cd for X with the pair symmetry X_ij^cd = X_ji^dc.
     pub fn ladder(&self, x: &Tensor) -> Tensor {
         match &self.vvvv {
-            Some(vv) => {
-                let (o, v) = (self.nocc, self.nvir);
-                let w = vv;
-                let mut out = Tensor::zeros(&[o, o, v, v]);
-                gemm_rm(
-                    &mut out.data,
-                    false,
-                    &x.data,
-                    &w.data,
-                    o * o,
-                    v * v,
-                    v * v,
-                    1.0,
-                );
-                // out[ij][ab] = Σ_cd X[ij][cd] W[cd][ab] needs W transposed: (ab|cd)-pair
-                // symmetry makes W symmetric, so W = Wᵀ.
-                out
-            }
-            None => match &self.vvvv_packed {
-                Some(p) => p.ladder(self.nocc, x),
-                None => self.factors.ladder_direct(x),
-            },
+            Some(l) => l.ladder(x),
+            None => ladder_direct(&self.factors, x),
         }
     }
 
@@ -488,52 +295,33 @@ pub(crate) mod toy {
         )
     }
 
+    /// Stored and rebuilt (ov|vv) slices agree, and the stored/direct ladders agree.
     #[test]
-    fn direct_ladder_matches_stored() {
+    fn stored_and_rebuilt_blocks_agree() {
         let (f, fock) = toy_system(3, 5, 7, 11, 1.0);
         let ints_s = MoIntegrals::new(f.clone(), &fock, true, true);
         let ints_d = MoIntegrals::new(f, &fock, false, false);
-        let (o, v) = (3, 5);
-        let mut rng = Lcg(5);
-        let mut x = Tensor::zeros(&[o, o, v, v]);
-        for i in 0..o {
-            for j in 0..o {
-                for a in 0..v {
-                    for b in 0..v {
-                        let val = rng.next();
-                        x.data[((i * o + j) * v + a) * v + b] += val;
-                        x.data[((j * o + i) * v + b) * v + a] += val;
-                    }
-                }
-            }
+        let mut stored = Vec::new();
+        ints_s.for_each_ovvv_slice(&mut |_, _, s| stored.extend_from_slice(s));
+        let mut rebuilt = Vec::new();
+        ints_d.for_each_ovvv_slice(&mut |_, _, s| rebuilt.extend_from_slice(s));
+        assert_eq!(stored.len(), 3 * 125);
+        for (a, b) in stored.iter().zip(&rebuilt) {
+            assert!((a - b).abs() < 1e-14);
         }
-        let a = ints_s.ladder(&x);
-        let b = ints_d.ladder(&x);
-        let mut ints_p = ints_d.clone();
-        ints_p.vvvv_packed = Some(PackedVvvv::build(&ints_p.factors));
-        let c = ints_p.ladder(&x);
-        for k in 0..c.len() {
-            assert!((c.data[k] - a.data[k]).abs() < 1e-12);
+        // (kc|ab) = Σ_Q B^Q_kc B^Q_ab
+        let f = &ints_s.factors;
+        let want: f64 = (0..7)
+            .map(|q| f.get(q, 2, 3 + 1) * f.get(q, 3 + 3, 3 + 4))
+            .sum();
+        assert!((stored[((2 * 5 + 1) * 5 + 3) * 5 + 4] - want).abs() < 1e-14);
+        let x = Tensor::from_fn(&[3, 3, 5, 5], |i| {
+            let (a, b) = (i[0] * 5 + i[2], i[1] * 5 + i[3]);
+            ((a * 7 + b * 3) % 11) as f64 * 0.1 + ((b * 7 + a * 3) % 11) as f64 * 0.1
+        });
+        let (l1, l2) = (ints_s.ladder(&x), ints_d.ladder(&x));
+        for k in 0..l1.len() {
+            assert!((l1.data[k] - l2.data[k]).abs() < 1e-12);
         }
-        let vv = &ints_s.factors.vvvv();
-        for i in 0..o {
-            for j in 0..o {
-                for aa in 0..v {
-                    for bb in 0..v {
-                        let mut s = 0.0;
-                        for c in 0..v {
-                            for d in 0..v {
-                                s += vv.get(&[aa, c, bb, d]) * x.get(&[i, j, c, d]);
-                            }
-                        }
-                        assert!((a.get(&[i, j, aa, bb]) - s).abs() < 1e-12);
-                        assert!((b.get(&[i, j, aa, bb]) - s).abs() < 1e-12);
-                    }
-                }
-            }
-        }
-        let s1 = ints_d.ovvv_slice(1, 3);
-        let s0 = ints_s.ovvv.as_ref().unwrap();
-        assert!((s1.get(&[1, 2, 3, 4]) - s0.get(&[2, 2, 3, 4])).abs() < 1e-14);
     }
 }

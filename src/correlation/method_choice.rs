@@ -5,11 +5,11 @@
 //! propagator beyond — each only when its memory plan (memory.rs) fits the budget; a method
 //! that does not fit falls through to the next.
 
-use super::memory::{self, Stage};
+use super::memory::{self, FactorRoute, Stage};
 
-/// Largest basis for the EOM-IP-CCSD default (benzene/def2-TZVPP has 222 functions).
-pub const CCSD_MAX_BASIS: usize = 250;
-/// Largest basis for the EOM-IP-MBPT2 default (guanine/def2-TZVPP has 371 functions).
+/// Largest basis for the EOM-IP-CCSD default (benzene/def2-TZVPP has 270 functions).
+pub const CCSD_MAX_BASIS: usize = 300;
+/// Largest basis for the EOM-IP-MBPT2 default (guanine/def2-TZVPP has 411 functions).
 pub const MBPT2_MAX_BASIS: usize = 450;
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -29,15 +29,18 @@ pub fn rule_text() -> String {
 }
 
 /// Choose for a closed-shell job with `n_corr_occ` correlated occupied and `n_vir` virtual
-/// orbitals; `budget_bytes` as in `EomOptions::memory_budget` (None: available memory).
+/// orbitals, integrals factorised as `route`; `budget_bytes` as in
+/// `EomOptions::memory_budget` (None: available memory).
 pub fn choose(
     n_basis: usize,
     n_corr_occ: usize,
     n_vir: usize,
+    route: FactorRoute,
     budget_bytes: Option<f64>,
 ) -> DefaultMethod {
     let budget = budget_bytes.unwrap_or_else(|| 0.8 * memory::available_bytes());
-    let fits = |stage| memory::plan(stage, n_basis, n_corr_occ, n_vir, 1e-5, 8, 60, budget).is_ok();
+    let fits =
+        |stage| memory::plan(stage, n_basis, n_corr_occ, n_vir, route, 8, 60, budget).is_ok();
     if n_basis <= CCSD_MAX_BASIS && fits(Stage::EomCcsd) {
         DefaultMethod::EomCcsd
     } else if n_basis <= MBPT2_MAX_BASIS && fits(Stage::EomMbpt2) {
@@ -53,11 +56,22 @@ mod tests {
 
     #[test]
     fn rule_follows_size_and_memory() {
-        assert_eq!(choose(60, 4, 55, Some(8e9)), DefaultMethod::EomCcsd);
-        assert_eq!(choose(371, 28, 332, Some(16e9)), DefaultMethod::EomMbpt2);
-        assert_eq!(choose(800, 60, 700, Some(16e9)), DefaultMethod::Ep2);
+        let ri = |n: usize| FactorRoute::Fitted(5 * n / 2);
+        assert_eq!(choose(60, 4, 55, ri(60), Some(8e9)), DefaultMethod::EomCcsd);
+        assert_eq!(
+            choose(270, 15, 249, ri(270), Some(8e9)),
+            DefaultMethod::EomCcsd
+        );
+        assert_eq!(
+            choose(411, 28, 372, ri(411), Some(14e9)),
+            DefaultMethod::EomMbpt2
+        );
+        assert_eq!(
+            choose(800, 60, 700, ri(800), Some(16e9)),
+            DefaultMethod::Ep2
+        );
         // memory too small for anything correlated → ep2
-        assert_eq!(choose(222, 15, 201, Some(1e8)), DefaultMethod::Ep2);
+        assert_eq!(choose(270, 15, 249, ri(270), Some(1e8)), DefaultMethod::Ep2);
         assert!(rule_text().contains("eom-ccsd"));
     }
 }
@@ -82,7 +96,16 @@ pub fn default_ionization_method(
         .sum();
     let core = if core >= nocc { 0 } else { core };
     let nvir = basis.n_basis.saturating_sub(nocc);
-    match choose(basis.n_basis, nocc - core, nvir, budget_bytes) {
+    let route = match super::two_electron::resolve(
+        &super::two_electron::TwoElectron::Auto,
+        mol,
+        basis,
+        1e-5,
+    ) {
+        Ok(super::two_electron::Resolved::Fitted(aux)) => FactorRoute::Fitted(aux.n_basis),
+        _ => FactorRoute::Cholesky(memory::expected_cholesky_vectors(basis.n_basis, 1e-5)),
+    };
+    match choose(basis.n_basis, nocc - core, nvir, route, budget_bytes) {
         DefaultMethod::EomCcsd => Method::EomCcsd,
         DefaultMethod::EomMbpt2 => Method::EomMp2,
         DefaultMethod::Ep2 => Method::Ep2,

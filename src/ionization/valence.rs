@@ -53,6 +53,8 @@ pub struct ValenceOptions {
     pub degeneracy_tol: f64,
     /// Memory for MO integrals (bytes).
     pub memory_bytes: usize,
+    /// Two-electron integrals of eom-ccsd / eom-mp2 (density fitting by default).
+    pub eom_integrals: crate::correlation::two_electron::TwoElectron,
     /// SCF settings for the neutral (and, for ΔSCF, the base settings for the cations).
     pub scf: ScfOptions,
 }
@@ -67,6 +69,7 @@ impl Default for ValenceOptions {
             compare_with_koopmans: true,
             degeneracy_tol: DEGENERACY_TOL,
             memory_bytes: 4_000_000_000,
+            eom_integrals: crate::correlation::two_electron::TwoElectron::Auto,
             scf: ScfOptions::default(),
         }
     }
@@ -337,6 +340,7 @@ fn method_energies(
                 m,
                 opts.frozen_core,
                 Some(opts.memory_bytes as f64),
+                &opts.eom_integrals,
             )?;
             warnings.extend(notes);
             Ok(res
