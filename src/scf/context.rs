@@ -19,6 +19,7 @@ use super::occupation;
 use super::options::{FockMethod, Guess, Occupation, Reference, ScfOptions};
 use super::orthogonalize::Orthogonalizer;
 use super::spin::s_squared;
+use super::symmetrise::SymmetrisedFock;
 use super::wavefunction::Wavefunction;
 use crate::basis::BasisSet;
 use crate::chem::{Atom, Molecule};
@@ -153,6 +154,14 @@ impl ScfContext {
         } else {
             direct = DirectFock::new(&src, self.plan.clone().expect("built above"));
             &mut direct
+        };
+        let mut symmetrised;
+        let builder: &mut dyn FockBuilder = match &opts.density_symmetry {
+            Some(sym) => {
+                symmetrised = SymmetrisedFock::new(builder, sym.as_ref());
+                &mut symmetrised
+            }
+            None => builder,
         };
         self.last_builder = builder.describe();
         let sol = driver::iterate(&problem, builder, opts, start, log)?;

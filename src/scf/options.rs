@@ -2,6 +2,7 @@
 
 use bandcast_linalg::Mat;
 
+pub use super::symmetrise::DensitySymmetry;
 pub use super::wavefunction::Reference;
 
 /// Starting point of the iterations.
@@ -84,6 +85,8 @@ pub struct ScfOptions {
     pub fock: FockMethod,
     /// Schwarz / density screening threshold for two-electron integrals.
     pub screening: f64,
+    /// Build J and K from symmetrised densities (`symmetrise.rs`); None = unconstrained.
+    pub density_symmetry: Option<std::sync::Arc<dyn DensitySymmetry>>,
 }
 
 impl Default for ScfOptions {
@@ -102,6 +105,7 @@ impl Default for ScfOptions {
             lindep_threshold: 1e-7,
             fock: FockMethod::Auto,
             screening: 1e-12,
+            density_symmetry: None,
         }
     }
 }
