@@ -301,6 +301,14 @@ pub fn bench(a: BenchArgs) -> Result<()> {
         secs(t.total_cpu_s),
         t.fock_builder
     );
+    if t.shared_bytes > 0 {
+        println!(
+            "  shared quartets (no shell on a hole atom): {:.2} s wall, {} CPU-s, {:.1} MiB",
+            t.shared_s,
+            secs(t.shared_cpu_s),
+            t.shared_bytes as f64 / (1u64 << 20) as f64
+        );
+    }
     for (kind, list) in [("neutral", &t.neutrals), ("hole", &t.holes)] {
         for h in list {
             println!(

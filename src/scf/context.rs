@@ -12,7 +12,7 @@ use bandcast_linalg::Mat;
 
 use super::driver::{self, IterationInfo, Problem, Start};
 use super::fock::quartets::QuartetPlan;
-use super::fock::source::EngineSource;
+use super::fock::source::{EngineSource, EriSource};
 use super::fock::{DirectFock, FockBuilder, InCoreFock};
 use super::guess;
 use super::occupation;
@@ -100,6 +100,21 @@ impl ScfContext {
     /// Bytes the in-core store needs at this screening threshold.
     pub fn in_core_bytes(&mut self, threshold: f64) -> usize {
         InCoreFock::estimate_bytes(self.plan(threshold))
+    }
+
+    /// Build the in-core store now from `src`, which must describe this context's shells
+    /// (e.g. a source that copies blocks shared with another basis). Runs at the same
+    /// screening threshold then use it.
+    pub fn build_in_core_from(
+        &mut self,
+        src: &dyn EriSource,
+        threshold: f64,
+        budget: usize,
+    ) -> Result<()> {
+        self.plan(threshold);
+        let plan = self.plan.as_ref().expect("just built");
+        self.incore = Some(InCoreFock::new(src, plan, budget)?);
+        Ok(())
     }
 
     /// One SCF for the electron count and spin of `mol` (same nuclei as the context).

@@ -27,7 +27,7 @@ pub enum Occupation {
     /// Lowest orbital energies first.
     Aufbau,
     /// Maximum overlap method (Gilbert, Besley & Gill, J. Phys. Chem. A 112 (2008) 13164):
-    /// occupy the new orbitals j with the largest projections p_j = Σ_i |(C_refᵀ S C_new)_ij|
+    /// occupy the new orbitals j with the largest projections p_j = Σ_i (C_refᵀ S C_new)_ij²
     /// onto the occupied space of the previous iteration (i over occupied reference
     /// orbitals). With `initial == true` the projection is always onto these initial
     /// reference orbitals (IMOM: Barca, Gilbert & Gill, J. Chem. Theory Comput. 14 (2018)

@@ -22,6 +22,7 @@
 //! | result.rs | result records and conversion to bands |
 //! | cation.rs | the SCF starts for one hole (MOM, IMOM, ROHF) |
 //! | predict.rs | the driver (`predict`) |
+//! | shared_eri.rs | integrals shared by the bases of different holes |
 //! | ovov.rs | (ia\|jb) integrals for MP2 |
 //! | mp2.rs | RMP2 / UMP2 energies for ΔMP2 |
 //! | relativistic.rs | the optional relativistic correction of 1s levels |
@@ -41,6 +42,7 @@ pub mod population;
 pub mod predict;
 pub mod relativistic;
 pub mod result;
+pub mod shared_eri;
 pub mod targets;
 
 pub use hole_check::HoleStatus;

@@ -20,7 +20,9 @@ use crate::basis::{self, BasisSet};
 use crate::chem::elements::symbol;
 use crate::chem::Molecule;
 use crate::error::{Error, Result};
+use crate::integrals::EriEngine;
 use crate::scf::bench::cpu_seconds;
+use crate::scf::fock::source::EngineSource;
 use crate::scf::{Reference, ScfContext, ScfOptions, Wavefunction};
 use crate::units::ev;
 
@@ -40,6 +42,7 @@ use super::relativistic;
 use super::result::{
     CoreLevel, CoreResult, CoreTimings, HoleAttempt, ShiftReferenceLevel, StageTiming,
 };
+use super::shared_eri::{shell_map, MixedSource, PlainQuartets};
 use super::targets::{atom_label, check_core_atom, resolve_targets};
 
 /// Memory the stored two-electron integrals of a run may take (bytes); above it the Fock
@@ -95,9 +98,9 @@ pub fn predict_with_progress(
     };
     let computed = equivalence.computed(&hole_atoms);
 
-    // Units of work: a basis, its neutral SCF and the holes computed in it.
-    // (atoms with flexible functions, holes computed in that basis). A canonical or
-    // delocalised hole needs the symmetric basis: flexibility on the equivalent atoms too.
+    // Units of work, each a basis with its neutral SCF: (atoms with the flexible functions,
+    // holes computed in that basis). A canonical or delocalised hole needs a symmetric
+    // basis: flexibility on the equivalent atoms too.
     let units: Vec<(Vec<usize>, Vec<usize>)> = if opts.core_basis == CoreBasis::Plain {
         vec![(Vec::new(), computed.clone())]
     } else {
@@ -123,6 +126,22 @@ pub fn predict_with_progress(
     let mut neutral_energies = Vec::new();
     let mut neutral_mp2s = Vec::new();
     let mut n_basis_max = 0usize;
+    // Quartets that do not touch a hole atom are the same in every hole's basis: computed
+    // once (`shared_eri.rs`) when that store fits half the budget.
+    let threshold = ScfOptions::default().screening;
+    let shared = if units.len() > 1 && opts.core_basis != CoreBasis::Plain {
+        let t = std::time::Instant::now();
+        let c0 = cpu_seconds();
+        let cache = (PlainQuartets::estimate_bytes(&plain, threshold) <= MEMORY_BUDGET_BYTES / 2)
+            .then(|| PlainQuartets::new(&plain, threshold));
+        timings.shared_s = t.elapsed().as_secs_f64();
+        timings.shared_cpu_s = cpu_diff(c0);
+        timings.shared_bytes = cache.as_ref().map_or(0, |c| c.bytes());
+        cache
+    } else {
+        None
+    };
+    let budget = MEMORY_BUDGET_BYTES - shared.as_ref().map_or(0, |c| c.bytes());
     for (flex, unit) in &units {
         let work = flexible_basis(&plain, mol, flex, &opts.core_basis)?;
         n_basis_max = n_basis_max.max(work.n_basis);
@@ -130,6 +149,17 @@ pub fn predict_with_progress(
         let c0 = cpu_seconds();
         let lindep = ScfOptions::default().lindep_threshold;
         let mut scf = ScfContext::new(mol, &work, lindep)?;
+        if let (Some(cache), Some(map)) = (&shared, shell_map(&plain, &work, flex)) {
+            if scf.in_core_bytes(threshold) <= budget {
+                let engine = EriEngine::new(&work);
+                let src = MixedSource {
+                    engine: EngineSource::new(&engine, &work),
+                    plain: cache,
+                    map: &map,
+                };
+                scf.build_in_core_from(&src, threshold, budget)?;
+            }
+        }
         let s = scf.s.clone();
         let s_half = sqrt_overlap(&s);
         let neutral = scf
@@ -137,7 +167,7 @@ pub fn predict_with_progress(
                 mol,
                 &ScfOptions {
                     reference: Reference::Rhf,
-                    memory_budget_bytes: MEMORY_BUDGET_BYTES,
+                    memory_budget_bytes: budget,
                     ..ScfOptions::default()
                 },
                 &mut |_| {},
@@ -166,7 +196,7 @@ pub fn predict_with_progress(
             neutral: &neutral,
             neutral_mp2,
             opts,
-            memory_budget_bytes: MEMORY_BUDGET_BYTES,
+            memory_budget_bytes: budget,
         };
         for &a in unit {
             let t = std::time::Instant::now();
@@ -290,8 +320,9 @@ pub fn predict_with_progress(
     }
     if levels.iter().any(|l| l.localised) {
         notes.push(
-            "holes on symmetry-equivalent atoms were localised on one atom before the SCF \
-             (the canonical 1s orbitals are spread over the equivalent atoms)"
+            "holes on atoms with symmetry-equivalent partners were localised on the chosen atom \
+             before the SCF (core flexibility on that atom alone, core orbitals rotated onto it); \
+             a hole shared by equivalent atoms lies several eV higher"
                 .into(),
         );
     }
@@ -312,8 +343,8 @@ pub fn predict_with_progress(
     };
     if levels.iter().any(|l| l.same_as_atom.is_some()) {
         notes.push(format!(
-            "atoms equivalent by symmetry ({}, within {} bohr) were computed once: {} SCF runs \
-             for {} levels",
+            "atoms equivalent by symmetry ({}, within {} bohr) were computed once ({} of {} \
+             levels needed a hole search)",
             equivalence.group,
             TOLERANCE,
             total,

@@ -123,6 +123,11 @@ pub struct CoreResult {
 pub struct CoreTimings {
     /// How J and K were built in the last SCF ("in-core (… MiB …)" or "direct").
     pub fock_builder: String,
+    /// The quartets shared by the holes' bases (`shared_eri.rs`): time and bytes (0 when
+    /// not used).
+    pub shared_s: f64,
+    pub shared_cpu_s: Option<f64>,
+    pub shared_bytes: usize,
     /// One entry per neutral SCF (one per basis), including ΔMP2 of the neutral when asked.
     pub neutrals: Vec<StageTiming>,
     /// One entry per computed hole, in order: every SCF start (and ΔMP2 when asked).
