@@ -20,6 +20,7 @@
 //! | hole_check.rs | escaped / collapsed / spin-contaminated verdicts |
 //! | lifetime.rs | natural widths of 1s holes where known |
 //! | result.rs | result records and conversion to bands |
+//! | carry_over.rs | the neutral orbitals carried from one hole's basis to the next |
 //! | cation.rs | the SCF starts for one hole (MOM, IMOM, ROHF) |
 //! | predict.rs | the driver (`predict`) |
 //! | shared_eri.rs | integrals shared by the bases of different holes |
@@ -28,6 +29,7 @@
 //! | relativistic.rs | the optional relativistic correction of 1s levels |
 //! | bench.rs | the `bandcast bench core` workload |
 pub mod bench;
+pub mod carry_over;
 pub mod cation;
 pub mod delocalised;
 pub mod equivalence;

@@ -23,9 +23,10 @@ use crate::error::{Error, Result};
 use crate::integrals::EriEngine;
 use crate::scf::bench::cpu_seconds;
 use crate::scf::fock::source::EngineSource;
-use crate::scf::{Reference, ScfContext, ScfOptions, Wavefunction};
+use crate::scf::{Guess, Reference, ScfContext, ScfOptions, Wavefunction};
 use crate::units::ev;
 
+use super::carry_over::project_occupied;
 use super::cation::{
     final_hole_overlap, run_from_rohf, run_start, CationState, HoleSetup, IMOM_SKIP_OVERLAP,
 };
@@ -142,6 +143,7 @@ pub fn predict_with_progress(
         None
     };
     let budget = MEMORY_BUDGET_BYTES - shared.as_ref().map_or(0, |c| c.bytes());
+    let mut previous: Option<(BasisSet, Mat<f64>, Vec<usize>)> = None;
     for (flex, unit) in &units {
         let work = flexible_basis(&plain, mol, flex, &opts.core_basis)?;
         n_basis_max = n_basis_max.max(work.n_basis);
@@ -162,17 +164,36 @@ pub fn predict_with_progress(
         }
         let s = scf.s.clone();
         let s_half = sqrt_overlap(&s);
-        let neutral = scf
-            .run(
-                mol,
-                &ScfOptions {
-                    reference: Reference::Rhf,
-                    memory_budget_bytes: budget,
-                    ..ScfOptions::default()
-                },
-                &mut |_| {},
-            )
-            .map_err(|e| Error::computation(format!("neutral Hartree–Fock: {e}")))?;
+        let neutral_opts = ScfOptions {
+            reference: Reference::Rhf,
+            memory_budget_bytes: budget,
+            ..ScfOptions::default()
+        };
+        // Start from the previous hole's neutral (`carry_over.rs`), else from atomic
+        // densities; a carried start that fails falls back to the atomic one.
+        let carried =
+            previous
+                .as_ref()
+                .and_then(|(b, c, occ): &(BasisSet, Mat<f64>, Vec<usize>)| {
+                    project_occupied(b, c, occ, &work, &s)
+                });
+        let neutral = match carried {
+            Some(c) => scf
+                .run(
+                    mol,
+                    &ScfOptions {
+                        guess: Guess::Orbitals {
+                            c_alpha: c.clone(),
+                            c_beta: c,
+                        },
+                        ..neutral_opts.clone()
+                    },
+                    &mut |_| {},
+                )
+                .or_else(|_| scf.run(mol, &neutral_opts, &mut |_| {})),
+            None => scf.run(mol, &neutral_opts, &mut |_| {}),
+        }
+        .map_err(|e| Error::computation(format!("neutral Hartree–Fock: {e}")))?;
         let neutral_mp2 = if opts.mp2 {
             Some(mp2_energy(&work, &neutral)?)
         } else {
@@ -198,6 +219,9 @@ pub fn predict_with_progress(
             opts,
             memory_budget_bytes: budget,
         };
+        let occupied: Vec<usize> = (0..neutral.occ_alpha.len())
+            .filter(|&k| neutral.occ_alpha[k] > 0.5)
+            .collect();
         for &a in unit {
             let t = std::time::Instant::now();
             let c0 = cpu_seconds();
@@ -219,6 +243,7 @@ pub fn predict_with_progress(
                 Err(e) => failures.push(e.to_string()),
             }
         }
+        previous = Some((work.clone(), neutral.c_alpha.clone(), occupied));
     }
     if !failures.is_empty() {
         return Err(Error::computation(format!(
