@@ -989,7 +989,8 @@ fn ket_batches_equal_single_quartets_bit_for_bit() {
         let basis = bandcast::basis::load("cc-pVTZ", &water, harmonics).unwrap();
         let e = EriEngine::new(&basis);
         let n = e.n_shells();
-        let pairs: Vec<(usize, usize)> = (0..n).flat_map(|a| (0..=a).map(move |b| (a, b))).collect();
+        let pairs: Vec<(usize, usize)> =
+            (0..n).flat_map(|a| (0..=a).map(move |b| (a, b))).collect();
         let (mut batch, mut one) = (Vec::new(), Vec::new());
         let mut compared = 0;
         for (i, &(a, b)) in pairs.iter().enumerate() {
@@ -1002,7 +1003,9 @@ fn ket_batches_equal_single_quartets_bit_for_bit() {
                 e.shell_quartet(a, b, c, d, &mut one);
                 let got = &batch[off..off + one.len()];
                 assert!(
-                    got.iter().zip(&one).all(|(x, y)| x.to_bits() == y.to_bits()),
+                    got.iter()
+                        .zip(&one)
+                        .all(|(x, y)| x.to_bits() == y.to_bits()),
                     "({a}{b}|{c}{d}) differs"
                 );
                 off += one.len();

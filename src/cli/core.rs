@@ -49,12 +49,24 @@ pub struct Args {
     /// Keep the canonical (delocalised) 1s as the hole instead of localising it.
     #[arg(long)]
     pub canonical_hole: bool,
+    /// Also compute the delocalised hole of atoms with symmetry-equivalent partners (the
+    /// cation SCF kept symmetric), reported beside the localised one.
+    #[arg(long)]
+    pub compare_delocalised: bool,
     /// Add the second-order (ΔMP2) correction.
     #[arg(long)]
     pub mp2: bool,
+    /// Add the relativistic correction of 1s levels (Takahata & Chong 2003 power law in the
+    /// non-relativistic binding energy; off by default).
+    #[arg(long)]
+    pub relativistic: bool,
     /// Keep the first SCF start that holds the hole instead of trying all of them.
     #[arg(long)]
     pub quick: bool,
+    /// Run an SCF for every target atom, also for atoms equivalent by symmetry to one
+    /// already computed (by default those take its numbers).
+    #[arg(long)]
+    pub all_holes: bool,
     /// Machine-readable result on stdout.
     #[arg(long)]
     pub json: bool,
@@ -95,6 +107,9 @@ pub fn options(args: &Args) -> Result<CoreOptions> {
         mp2: args.mp2,
         thorough: !args.quick,
         harmonics: None,
+        use_symmetry: !args.all_holes,
+        relativistic: args.relativistic,
+        delocalised: args.compare_delocalised,
     })
 }
 
@@ -158,10 +173,13 @@ pub fn table(r: &CoreResult) -> String {
         r.core_basis,
         r.n_basis
     ));
-    s.push_str(&format!(
-        "Neutral Hartree–Fock energy {:.8} Eh\n",
-        r.neutral_energy_hartree
-    ));
+    match r.neutral_energy_hartree {
+        Some(e) => s.push_str(&format!("Neutral Hartree–Fock energy {e:.8} Eh\n")),
+        None => s.push_str(
+            "Neutral Hartree–Fock energy: one per hole (each hole's basis has the core \
+             flexibility on its own atom; see JSON)\n",
+        ),
+    }
     for rf in &r.references {
         s.push_str(&format!(
             "Shift reference: {} 1s of {} (atom {}) at {:.2} eV\n",
@@ -170,7 +188,14 @@ pub fn table(r: &CoreResult) -> String {
     }
     s.push('\n');
     let has_mp2 = r.core_levels.iter().any(|l| l.dmp2_ev.is_some());
+    let has_rel = r
+        .core_levels
+        .iter()
+        .any(|l| l.relativistic_correction_ev.is_some());
     s.push_str("level      Koopmans/eV  ΔSCF/eV");
+    if has_rel {
+        s.push_str("  rel./eV  ΔSCF+rel/eV");
+    }
     if has_mp2 {
         s.push_str("  ΔMP2/eV");
     }
@@ -180,6 +205,13 @@ pub fn table(r: &CoreResult) -> String {
             "{:<10} {:>11.2} {:>8.2}",
             l.label, l.koopmans_ev, l.dscf_ev
         ));
+        if has_rel {
+            s.push_str(&format!(
+                " {} {}",
+                opt(l.relativistic_correction_ev, 8, 2),
+                opt(l.dscf_relativistic_ev, 12, 2)
+            ));
+        }
         if has_mp2 {
             s.push_str(&format!(" {}", opt(l.dmp2_ev, 8, 2)));
         }
@@ -228,28 +260,78 @@ pub struct BenchArgs {
     /// Try every SCF start for each hole (default: stop at the first clean one).
     #[arg(long)]
     pub thorough: bool,
+    /// Run an SCF for every carbon, also for those equivalent by symmetry.
+    #[arg(long)]
+    pub all_holes: bool,
+    /// Core flexibility on the hole atoms (as `bandcast core --core-basis`).
+    #[arg(long, default_value = "uncontract-sp", value_name = "KIND")]
+    pub core_basis: String,
+}
+
+fn secs(cpu: Option<f64>) -> String {
+    cpu.map(|c| format!("{c:.1}")).unwrap_or_else(|| "?".into())
 }
 
 pub fn bench(a: BenchArgs) -> Result<()> {
     if a.carbons == 0 {
         return Err(Error::input("--carbons must be at least 1"));
     }
-    let r = bandcast::ionization::core::bench::run_core_bench(a.carbons, &a.basis, a.thorough)?;
+    let opts = CoreOptions {
+        targets: TargetSelection::Element(6),
+        thorough: a.thorough,
+        use_symmetry: !a.all_holes,
+        core_basis: CoreBasis::parse(&a.core_basis),
+        ..CoreOptions::default()
+    };
+    let r = bandcast::ionization::core::bench::run_core_bench(a.carbons, &a.basis, &opts)?;
+    let t = &r.result.timings;
     println!(
-        "core: {} — {} atoms, {} functions, {} C 1s holes, {} starts: {:.2} s wall ({:.2} s per hole), {} threads",
+        "core: {} — {} atoms, {} functions, {} C 1s levels from {} SCF holes, {} starts, {} threads",
         r.molecule,
         r.n_atoms,
         r.result.n_basis,
         r.n_holes,
+        t.holes.len(),
         if a.thorough { "all" } else { "first clean" },
-        r.seconds,
-        r.seconds / r.n_holes.max(1) as f64,
         rayon::current_num_threads()
     );
+    println!(
+        "  total {:.2} s wall, {} CPU-s; Fock builds: {}",
+        t.total_s,
+        secs(t.total_cpu_s),
+        t.fock_builder
+    );
+    if t.shared_bytes > 0 {
+        println!(
+            "  shared quartets (no shell on a hole atom): {:.2} s wall, {} CPU-s, {:.1} MiB",
+            t.shared_s,
+            secs(t.shared_cpu_s),
+            t.shared_bytes as f64 / (1u64 << 20) as f64
+        );
+    }
+    for (kind, list) in [("neutral", &t.neutrals), ("hole", &t.holes)] {
+        for h in list {
+            println!(
+                "  {kind:<7} {:<12} {:>4} fn {:>8.2} s wall {:>8} CPU-s {:>4} iterations",
+                h.label,
+                h.n_basis,
+                h.seconds,
+                secs(h.cpu_seconds),
+                h.iterations
+            );
+        }
+    }
     for l in &r.result.core_levels {
         println!(
-            "  {:<8} ΔSCF {:>8.3} eV  ⟨S²⟩ {:.3}  start {}",
-            l.label, l.dscf_ev, l.s2, l.start
+            "  {:<8} ΔSCF {:>8.3} eV  ⟨S²⟩ {:.3}  start {}{}",
+            l.label,
+            l.dscf_ev,
+            l.s2,
+            l.start,
+            match l.same_as_atom {
+                Some(k) => format!("  (= atom {k} by symmetry)"),
+                None => String::new(),
+            }
         );
     }
     Ok(())

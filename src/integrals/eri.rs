@@ -338,7 +338,8 @@ impl EriEngine {
         let (ub, _) = self.pair_unit[a2 * n + b2];
         assert!(ub != NONE, "shell pair not kept by this engine");
         let pb = &self.units[ub as usize];
-        let okets: Vec<(usize, usize, bool)> = kets.iter().map(|&(c, d)| self.orient(c, d)).collect();
+        let okets: Vec<(usize, usize, bool)> =
+            kets.iter().map(|&(c, d)| self.orient(c, d)).collect();
         // kets of one class (l and harmonics of c and d) with single-member pair data, by
         // class; the rest one by one
         let mut single: Vec<usize> = Vec::new();
@@ -378,17 +379,8 @@ impl EriEngine {
                 refs.push(&self.units[self.pair_unit[c * n + d].0 as usize]);
                 goffs.push(offs[k]);
             }
-            SCRATCH.with(|s| {
-                ket_batch(
-                    metas,
-                    pb,
-                    &refs,
-                    &goffs,
-                    self.tau,
-                    out,
-                    &mut s.borrow_mut(),
-                )
-            });
+            SCRATCH
+                .with(|s| ket_batch(metas, pb, &refs, &goffs, self.tau, out, &mut s.borrow_mut()));
         }
         for (k, &(c, d)) in kets.iter().enumerate() {
             let scd = okets[k].2;

@@ -12,8 +12,7 @@
 //! `EriEngine::shell_quartet` for that quartet: the values are bit-for-bit the same.
 
 use crate::integrals::quartet::{
-    batch_lanes, contract, contracted_quartet, finish, grow, ssss, Scratch, ShellMeta,
-    BATCH_VALUES,
+    batch_lanes, contract, contracted_quartet, finish, grow, ssss, Scratch, ShellMeta, BATCH_VALUES,
 };
 use crate::integrals::shell_pair::PairData;
 use crate::integrals::vrr::{self, LANES, NB_MAX};
@@ -54,12 +53,9 @@ pub fn ket_batch(
         if lanes.is_empty() {
             return;
         }
-        let it = lanes.iter().map(|&(k, p, q)| {
-            (
-                &pb.prims[p as usize],
-                &kets[k as usize].prims[q as usize],
-            )
-        });
+        let it = lanes
+            .iter()
+            .map(|&(k, p, q)| (&pb.prims[p as usize], &kets[k as usize].prims[q as usize]));
         let stride = batch_lanes(plan, it, lanes.len(), s);
         let mut acc = std::mem::take(&mut s.acc);
         grow(&mut acc, nt);

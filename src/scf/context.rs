@@ -14,13 +14,14 @@ use bandcast_linalg::Mat;
 pub use super::df_start::DfStartRecord;
 use super::driver::{self, IterationInfo, Problem, Start};
 use super::fock::quartets::QuartetPlan;
-use super::fock::source::EngineSource;
+use super::fock::source::{EngineSource, EriSource};
 use super::fock::{DfFock, DirectFock, FockBuilder, InCoreFock};
 use super::guess;
 use super::occupation;
 use super::options::{DfStart, FockMethod, Guess, Occupation, Reference, ScfOptions};
 use super::orthogonalize::Orthogonalizer;
 use super::spin::s_squared;
+use super::symmetrise::SymmetrisedFock;
 use super::wavefunction::Wavefunction;
 use crate::basis::BasisSet;
 use crate::chem::{Atom, Molecule};
@@ -166,6 +167,24 @@ fn df_start_with(
 }
 
 /// Run `f`, recording its wall time as "iterations".
+/// The SCF iterations, with J and K built from symmetrised densities when the options ask
+/// for a point-group constraint (`symmetrise.rs`).
+fn iterate_constrained(
+    problem: &Problem,
+    builder: &mut dyn FockBuilder,
+    opts: &ScfOptions,
+    start: Start,
+    log: &mut dyn FnMut(&IterationInfo),
+) -> Result<driver::Solution> {
+    match &opts.density_symmetry {
+        Some(sym) => {
+            let mut symmetrised = SymmetrisedFock::new(builder, sym.as_ref());
+            driver::iterate(problem, &mut symmetrised, opts, start, log)
+        }
+        None => driver::iterate(problem, builder, opts, start, log),
+    }
+}
+
 fn timed<T>(rec: &mut RunRecord, f: impl FnOnce() -> T) -> T {
     let t = Instant::now();
     let r = f();
@@ -251,7 +270,7 @@ impl ScfContext {
             DfStart::Always => true,
             DfStart::Never => false,
             DfStart::Auto => auto && from_scratch,
-        };
+        } && opts.density_symmetry.is_none();
         let auto = opts.fock == FockMethod::Auto;
         match opts.fock {
             FockMethod::DensityFitted => BuilderChoice::DensityFitted,
@@ -271,6 +290,21 @@ impl ScfContext {
     fn df_builder(&mut self, mol: &Molecule, opts: &ScfOptions) -> Result<&mut DfFock> {
         ensure_df(&mut self.df, &mut self.last_run, &self.basis, mol, opts)?;
         Ok(self.df.as_mut().expect("just built"))
+    }
+
+    /// Build the in-core store now from `src`, which must describe this context's shells
+    /// (e.g. a source that copies blocks shared with another basis). Runs at the same
+    /// screening threshold then use it.
+    pub fn build_in_core_from(
+        &mut self,
+        src: &dyn EriSource,
+        threshold: f64,
+        budget: usize,
+    ) -> Result<()> {
+        self.plan(threshold);
+        let plan = self.plan.as_ref().expect("just built");
+        self.incore = Some(InCoreFock::new(src, plan, budget)?);
+        Ok(())
     }
 
     /// One SCF for the electron count and spin of `mol` (same nuclei as the context).
@@ -336,7 +370,7 @@ impl ScfContext {
                 self.last_run.builder = builder.describe();
                 let problem = problem(&self.s, &self.h, e_nuc, &self.ortho, n_alpha, n_beta);
                 timed(&mut self.last_run, || {
-                    driver::iterate(&problem, builder, opts, start, log)
+                    iterate_constrained(&problem, builder, opts, start, log)
                 })?
             }
             BuilderChoice::DensityFitted => {
@@ -346,7 +380,7 @@ impl ScfContext {
                 self.last_run.density_fitted = true;
                 let problem = problem(&self.s, &self.h, e_nuc, &self.ortho, n_alpha, n_beta);
                 timed(&mut self.last_run, || {
-                    driver::iterate(&problem, builder, opts, start, log)
+                    iterate_constrained(&problem, builder, opts, start, log)
                 })?
             }
             BuilderChoice::Direct { df_start } => {
@@ -370,7 +404,7 @@ impl ScfContext {
                 self.last_run.builder = direct.describe();
                 let problem = problem(&self.s, &self.h, e_nuc, &self.ortho, n_alpha, n_beta);
                 let t = Instant::now();
-                let r = driver::iterate(&problem, &mut direct, opts, start, log);
+                let r = iterate_constrained(&problem, &mut direct, opts, start, log);
                 self.last_run
                     .timings
                     .push(("iterations".into(), t.elapsed().as_secs_f64()));

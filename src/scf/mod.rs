@@ -4,7 +4,8 @@
 //! Files: `context` (`run`, integrals, guesses, the finished `Wavefunction`), `options` (what to do), `driver` (the iterations), `fock/` (J and K builders),
 //! `diis`, `convergence` (DIIS / level shift / damping control), `occupation` (aufbau, MOM),
 //! `orthogonalize` (canonical orthogonalisation), `guess` (core, SAD), `rohf` (effective Fock
-//! matrix), `spin` (⟨S²⟩), `wavefunction` (the result every later method reads).
+//! matrix), `spin` (⟨S²⟩), `symmetrise` (optional point-group constraint on the densities),
+//! `wavefunction` (the result every later method reads).
 pub mod bench;
 pub mod context;
 pub mod convergence;
@@ -18,6 +19,7 @@ pub mod options;
 pub mod orthogonalize;
 pub mod rohf;
 pub mod spin;
+pub mod symmetrise;
 pub mod wavefunction;
 
 pub use context::{core_hamiltonian, dipole_moment, run, run_logged, sad_density, ScfContext};
@@ -25,6 +27,7 @@ pub use driver::{IterationInfo, Problem, Solution, Start};
 pub use fock::{FockBuilder, Jk};
 pub use options::{default_memory_budget, DfStart, FockMethod, Guess, Occupation, ScfOptions};
 pub use orthogonalize::Orthogonalizer;
+pub use symmetrise::{DensitySymmetry, SymmetrisedFock};
 pub use wavefunction::{Reference, Wavefunction};
 
 #[cfg(test)]

@@ -9,9 +9,13 @@ pub fn aufbau(n_mo: usize, n: usize) -> Vec<f64> {
     (0..n_mo).map(|i| if i < n { 1.0 } else { 0.0 }).collect()
 }
 
-/// MOM projections p_j = Σ_i |O_ij|, O = C_refᵀ S C_new, i over the reference columns with
-/// `ref_occ[i] > 0.5` (eq. 3 of Gilbert et al. 2008, with absolute values so the sign
-/// of an orbital does not matter).
+/// MOM projections p_j = Σ_i O_ij², O = C_refᵀ S C_new, i over the reference columns with
+/// `ref_occ[i] > 0.5`: the squared length of new orbital j's projection onto the occupied
+/// reference space (0 ≤ p_j ≤ 1, Σ_j p_j = number occupied). Gilbert et al. (2008, eq. 3)
+/// sum the overlaps themselves; a sum of |O_ij| would be sign-independent but lets an
+/// orbital spread thinly over many occupied ones outscore a clean occupied orbital (a
+/// valence-virtual mixture beat the 1s orbitals of other carbons in a 20-carbon chain), so
+/// the squared norm is used.
 pub fn projections(c_ref: &Mat<f64>, ref_occ: &[f64], s: &Mat<f64>, c_new: &Mat<f64>) -> Vec<f64> {
     let occ_cols: Vec<usize> = (0..c_ref.ncols().min(ref_occ.len()))
         .filter(|&i| ref_occ[i] > 0.5)
@@ -21,7 +25,7 @@ pub fn projections(c_ref: &Mat<f64>, ref_occ: &[f64], s: &Mat<f64>, c_new: &Mat<
     let sc = mul(s.as_ref(), false, c_new.as_ref(), false);
     let o = mul(cref_occ.as_ref(), true, sc.as_ref(), false);
     (0..c_new.ncols())
-        .map(|j| (0..o.nrows()).map(|i| o[(i, j)].abs()).sum())
+        .map(|j| (0..o.nrows()).map(|i| o[(i, j)] * o[(i, j)]).sum())
         .collect()
 }
 
@@ -128,6 +132,41 @@ mod tests {
         // new orbital 0 is mostly old 1, new orbital 1 mostly old 0
         let c_new = Mat::<f64>::from_fn(2, 2, |i, j| [[sn, c], [c, -sn]][i][j]);
         assert_eq!(mom(&c_ref, &[1.0, 0.0], &s, &c_new), vec![0.0, 1.0]);
+    }
+
+    #[test]
+    fn a_clean_occupied_orbital_beats_one_spread_thinly_over_many() {
+        // Reference: orbitals 0–3 occupied, 4 virtual. New orbitals: old 0 unchanged; in the
+        // span of old 1–4 an orthonormal set in which v = 0.6 (e1+e2+e3)/√3 + 0.8 e4 is
+        // mostly virtual. A sum of |O_ij| scores v at 1.04, above old 0's 1.00, and would
+        // drop the clean occupied orbital; the squared projection keeps it (1 vs 0.36).
+        let s = identity(5);
+        let c_ref = identity(5);
+        let r3 = 3f64.sqrt();
+        let (a, b) = (0.6, 0.8);
+        let cols: [[f64; 5]; 5] = [
+            [1.0, 0.0, 0.0, 0.0, 0.0],
+            [0.0, a / r3, a / r3, a / r3, b],
+            [0.0, 1.0 / 2f64.sqrt(), -1.0 / 2f64.sqrt(), 0.0, 0.0],
+            [
+                0.0,
+                1.0 / 6f64.sqrt(),
+                1.0 / 6f64.sqrt(),
+                -2.0 / 6f64.sqrt(),
+                0.0,
+            ],
+            [0.0, b / r3, b / r3, b / r3, -a],
+        ];
+        let c_new = Mat::<f64>::from_fn(5, 5, |i, j| cols[j][i]);
+        let ctc = mul(c_new.as_ref(), true, c_new.as_ref(), false);
+        for i in 0..5 {
+            for j in 0..5 {
+                let e = if i == j { 1.0 } else { 0.0 };
+                assert!((ctc[(i, j)] - e).abs() < 1e-12);
+            }
+        }
+        let occ = mom(&c_ref, &[1.0, 1.0, 1.0, 1.0, 0.0], &s, &c_new);
+        assert_eq!(occ, vec![1.0, 0.0, 1.0, 1.0, 1.0]);
     }
 
     #[test]

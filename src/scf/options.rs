@@ -2,6 +2,7 @@
 
 use bandcast_linalg::Mat;
 
+pub use super::symmetrise::DensitySymmetry;
 pub use super::wavefunction::Reference;
 
 /// Starting point of the iterations.
@@ -26,7 +27,7 @@ pub enum Occupation {
     /// Lowest orbital energies first.
     Aufbau,
     /// Maximum overlap method (Gilbert, Besley & Gill, J. Phys. Chem. A 112 (2008) 13164):
-    /// occupy the new orbitals j with the largest projections p_j = Σ_i |(C_refᵀ S C_new)_ij|
+    /// occupy the new orbitals j with the largest projections p_j = Σ_i (C_refᵀ S C_new)_ij²
     /// onto the occupied space of the previous iteration (i over occupied reference
     /// orbitals). With `initial == true` the projection is always onto these initial
     /// reference orbitals (IMOM: Barca, Gilbert & Gill, J. Chem. Theory Comput. 14 (2018)
@@ -129,6 +130,8 @@ pub struct ScfOptions {
     pub df_start: DfStart,
     /// Schwarz / density screening threshold for two-electron integrals.
     pub screening: f64,
+    /// Build J and K from symmetrised densities (`symmetrise.rs`); None = unconstrained.
+    pub density_symmetry: Option<std::sync::Arc<dyn DensitySymmetry>>,
 }
 
 impl Default for ScfOptions {
@@ -149,6 +152,7 @@ impl Default for ScfOptions {
             jk_fitting: None,
             df_start: DfStart::Auto,
             screening: 1e-12,
+            density_symmetry: None,
         }
     }
 }

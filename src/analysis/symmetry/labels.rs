@@ -37,7 +37,7 @@
 //! that l) / (2l + 1) — 1s, 2s, 2p, 3s, 3p, 3d, 4s … in energy order (the shells must all be
 //! present: pass the core orbitals too).
 
-use super::angular::shell_rotation;
+use super::ao_action::ao_actions;
 use super::group::PointGroup;
 use crate::basis::shell::l_letter;
 use crate::basis::BasisSet;
@@ -355,62 +355,21 @@ fn diagonal_characters(
     c: &Mat<f64>,
     n_mo: usize,
 ) -> Option<Vec<Vec<f64>>> {
-    let n_atoms = pg
-        .operations
-        .first()
-        .map(|o| o.permutation.len())
-        .unwrap_or(0);
-    let mut shells_of_atom: Vec<Vec<usize>> = vec![Vec::new(); n_atoms];
-    for (k, sh) in basis.shells.iter().enumerate() {
-        if sh.atom >= n_atoms {
-            return None;
+    let actions = ao_actions(pg, basis, false)?;
+    let mut out = Vec::with_capacity(actions.len());
+    let mut ci = vec![0.0; basis.n_basis];
+    let mut dc = vec![0.0; basis.n_basis];
+    let mut rows = vec![vec![0.0; n_mo]; actions.len()];
+    for i in 0..n_mo {
+        for (mu, v) in ci.iter_mut().enumerate() {
+            *v = c[(mu, i)];
         }
-        shells_of_atom[sh.atom].push(k);
-    }
-    let mut position_in_atom = vec![0usize; basis.shells.len()];
-    for list in &shells_of_atom {
-        for (p, &k) in list.iter().enumerate() {
-            position_in_atom[k] = p;
+        for (row, act) in rows.iter_mut().zip(&actions) {
+            act.apply(basis, &ci, &mut dc);
+            row[i] = (0..basis.n_basis).map(|mu| sc[(mu, i)] * dc[mu]).sum();
         }
     }
-    let mut out = Vec::with_capacity(pg.operations.len());
-    for op in &pg.operations {
-        // Target shell of each shell and the angular blocks.
-        let mut target = Vec::with_capacity(basis.shells.len());
-        for (k, sh) in basis.shells.iter().enumerate() {
-            let b = op.permutation[sh.atom];
-            let t = *shells_of_atom[b].get(position_in_atom[k])?;
-            let ts = &basis.shells[t];
-            if ts.l != sh.l || ts.pure != sh.pure {
-                return None;
-            }
-            target.push(t);
-        }
-        let mut blocks: HashMap<(usize, bool), Vec<f64>> = HashMap::new();
-        for sh in &basis.shells {
-            blocks
-                .entry((sh.l, sh.pure))
-                .or_insert_with(|| shell_rotation(sh.l, sh.pure, &op.matrix));
-        }
-        let mut row = vec![0.0; n_mo];
-        let mut dc = vec![0.0; basis.n_basis];
-        for (i, ri) in row.iter_mut().enumerate() {
-            for (k, sh) in basis.shells.iter().enumerate() {
-                let nf = sh.n_functions();
-                let d = &blocks[&(sh.l, sh.pure)];
-                let (src, dst) = (basis.offsets[k], basis.offsets[target[k]]);
-                for n in 0..nf {
-                    let mut v = 0.0;
-                    for m in 0..nf {
-                        v += d[n * nf + m] * c[(src + m, i)];
-                    }
-                    dc[dst + n] = v;
-                }
-            }
-            *ri = (0..basis.n_basis).map(|mu| sc[(mu, i)] * dc[mu]).sum();
-        }
-        out.push(row);
-    }
+    out.extend(rows);
     Some(out)
 }
 

@@ -6,8 +6,10 @@
 //! - `detect`: finding the group of a geometry; `orient`: the standard frame;
 //! - `group`: the group placed on a molecule (operations in the input frame);
 //! - `subgroup`: the abelian subgroup used as fallback;
-//! - `angular`: D(R) on the AOs of one shell; `labels`: irrep labels of MOs.
+//! - `angular`: D(R) on the AOs of one shell; `ao_action`: an operation on AO coefficient
+//!   vectors of a whole basis; `labels`: irrep labels of MOs.
 pub mod angular;
+pub mod ao_action;
 pub mod detect;
 pub mod group;
 pub mod labels;
@@ -16,6 +18,7 @@ pub mod orient;
 pub mod subgroup;
 pub mod tables;
 
+pub use ao_action::{ao_actions, AoAction};
 pub use detect::{detect_point_group, DEFAULT_TOLERANCE};
 pub use group::{PointGroup, SymOp};
 pub use labels::{degenerate_sets, label_orbitals, OrbitalLabel};

@@ -8,7 +8,7 @@ use crate::chem::{Atom, Molecule};
 use crate::error::Result;
 use crate::units::ANGSTROM_TO_BOHR;
 
-use super::options::{CoreOptions, TargetSelection};
+use super::options::CoreOptions;
 use super::predict::predict;
 use super::result::CoreResult;
 
@@ -82,16 +82,16 @@ pub struct CoreBenchReport {
     pub result: CoreResult,
 }
 
-/// All carbon 1s levels of CnH2n+2 in `basis`; `thorough` tries every SCF start.
-pub fn run_core_bench(n_carbons: usize, basis: &str, thorough: bool) -> Result<CoreBenchReport> {
+/// The 1s levels `opts` asks for (normally `TargetSelection::Element(6)`: every carbon) of
+/// CnH2n+2 in `basis`.
+pub fn run_core_bench(
+    n_carbons: usize,
+    basis: &str,
+    opts: &CoreOptions,
+) -> Result<CoreBenchReport> {
     let mol = alkane(n_carbons);
-    let opts = CoreOptions {
-        targets: TargetSelection::Element(6),
-        thorough,
-        ..CoreOptions::default()
-    };
     let t = Instant::now();
-    let result = predict(&mol, basis, &opts)?;
+    let result = predict(&mol, basis, opts)?;
     Ok(CoreBenchReport {
         molecule: mol.name.clone(),
         n_atoms: mol.atoms.len(),

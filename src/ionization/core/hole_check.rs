@@ -38,6 +38,8 @@ pub enum HoleStatus {
     Excited,
     /// The SCF did not converge.
     Failed,
+    /// The start was not run (it could only have repeated another one).
+    Skipped,
 }
 
 /// Judge a converged cation: `hole_population` of the final vacant orbital on the target,

@@ -81,6 +81,16 @@ pub struct CoreOptions {
     pub thorough: bool,
     /// Harmonics override for the main basis (None: each set's published convention).
     pub harmonics: Option<Harmonics>,
+    /// Compute one atom of each class of symmetry-equivalent hole atoms and give the others
+    /// its numbers (`equivalence.rs`); false runs an SCF for every atom.
+    pub use_symmetry: bool,
+    /// Add the relativistic correction of `relativistic.rs` to each 1s level (off by
+    /// default: the computed energies are non-relativistic).
+    pub relativistic: bool,
+    /// Also compute the delocalised (symmetry-constrained) hole of atoms that have
+    /// symmetry-equivalent partners, reported beside the localised one (`delocalised.rs`).
+    /// Both then use a basis with the core flexibility on the atom and its partners.
+    pub delocalised: bool,
 }
 
 impl Default for CoreOptions {
@@ -93,6 +103,9 @@ impl Default for CoreOptions {
             mp2: false,
             thorough: true,
             harmonics: None,
+            use_symmetry: true,
+            relativistic: false,
+            delocalised: false,
         }
     }
 }

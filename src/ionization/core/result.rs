@@ -6,6 +6,7 @@ use serde::Serialize;
 
 use crate::ionization::band::{Band, MakeupEntry, Region};
 
+use super::delocalised::DelocalisedHole;
 use super::hole_check::HoleStatus;
 
 /// One SCF search for the core-ionised state of one atom.
@@ -42,6 +43,11 @@ pub struct CoreLevel {
     pub dmp2_ev: Option<f64>,
     /// ⟨S²⟩ of the core-ionised cation (0.75 for a pure doublet).
     pub s2: f64,
+    /// Relativistic correction (eV) computed from the ΔSCF value, when asked
+    /// (`relativistic.rs`; null otherwise).
+    pub relativistic_correction_ev: Option<f64>,
+    /// ΔSCF plus the relativistic correction (eV), when asked.
+    pub dscf_relativistic_ev: Option<f64>,
     /// ΔSCF minus the reference's ΔSCF (eV), when a reference was given.
     pub shift_ev: Option<f64>,
     /// The same shift at ΔMP2 level.
@@ -59,6 +65,17 @@ pub struct CoreLevel {
     pub lifetime_fwhm_ev: Option<f64>,
     /// Total energy of the kept cation (hartree).
     pub cation_energy_hartree: f64,
+    /// Energy of the neutral in the basis of this hole (hartree).
+    pub neutral_energy_hartree: f64,
+    /// Functions of the basis of this hole (the basis as named plus the core flexibility
+    /// on the hole atom).
+    pub n_basis: usize,
+    /// When this atom is symmetry-equivalent to an atom computed in the same run, that
+    /// atom's number (from 1): the numbers are copied from it, no SCF was run for this one.
+    pub same_as_atom: Option<usize>,
+    /// The delocalised (symmetry-constrained) hole, when asked and the atom has equivalent
+    /// partners; null otherwise.
+    pub delocalised: Option<DelocalisedHole>,
     pub notes: Vec<String>,
 }
 
@@ -82,26 +99,66 @@ pub struct CoreResult {
     pub basis: String,
     /// Flexibility given to the hole atoms ("uncontracted s on hole atoms", …).
     pub core_basis: String,
-    /// Number of AO functions of the basis actually used.
+    /// Largest number of AO functions of the bases used (each hole has its own basis unless
+    /// the core basis is plain).
     pub n_basis: usize,
-    pub neutral_energy_hartree: f64,
-    /// Second-order correlation energy of the neutral, when ΔMP2 was asked.
+    /// Neutral Hartree–Fock energy when every level used one basis (plain core basis or a
+    /// single hole), otherwise null: each level then carries its own.
+    pub neutral_energy_hartree: Option<f64>,
+    /// Second-order correlation energy of the neutral, when ΔMP2 was asked and one basis
+    /// served every level.
     pub neutral_mp2_hartree: Option<f64>,
     pub core_levels: Vec<CoreLevel>,
     pub references: Vec<ShiftReferenceLevel>,
+    /// Source of the relativistic correction when it was applied, else null.
+    pub relativistic_source: Option<String>,
     pub notes: Vec<String>,
+    /// Where the time went (not part of the JSON output: it differs from run to run).
+    #[serde(skip)]
+    pub timings: CoreTimings,
+}
+
+/// Wall and CPU seconds of the stages of a run (`bandcast bench core` prints them).
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct CoreTimings {
+    /// How J and K were built in the last SCF ("in-core (… MiB …)" or "direct").
+    pub fock_builder: String,
+    /// The quartets shared by the holes' bases (`shared_eri.rs`): time and bytes (0 when
+    /// not used).
+    pub shared_s: f64,
+    pub shared_cpu_s: Option<f64>,
+    pub shared_bytes: usize,
+    /// One entry per neutral SCF (one per basis), including ΔMP2 of the neutral when asked.
+    pub neutrals: Vec<StageTiming>,
+    /// One entry per computed hole, in order: every SCF start (and ΔMP2 when asked).
+    pub holes: Vec<StageTiming>,
+    pub total_s: f64,
+    pub total_cpu_s: Option<f64>,
+}
+
+/// Time spent on one stage: a neutral (integrals included) or one hole (all its starts).
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct StageTiming {
+    /// "C1" (the hole atoms of the basis) for a neutral, "C1 1s" for a hole.
+    pub label: String,
+    pub n_basis: usize,
+    pub seconds: f64,
+    pub cpu_seconds: Option<f64>,
+    /// Fock builds (over all starts for a hole).
+    pub iterations: usize,
 }
 
 impl CoreResult {
     /// Core-level bands for the spectrum module: one per atom, at the ΔSCF energy (ΔMP2 when
-    /// it was computed), two electrons per 1s level.
+    /// it was computed) plus the relativistic correction when it was asked, two electrons
+    /// per 1s level.
     pub fn bands(&self) -> Vec<Band> {
         self.core_levels
             .iter()
             .map(|l| Band {
                 label: l.label.clone(),
                 symmetry: None,
-                ie_ev: l.dmp2_ev.unwrap_or(l.dscf_ev),
+                ie_ev: l.dmp2_ev.unwrap_or(l.dscf_ev) + l.relativistic_correction_ev.unwrap_or(0.0),
                 degeneracy: 1,
                 occupation: 2.0,
                 pole_strength: None,
@@ -146,6 +203,8 @@ mod tests {
             dscf_ev: dscf,
             dmp2_ev: dmp2,
             s2: 0.76,
+            relativistic_correction_ev: None,
+            dscf_relativistic_ev: None,
             shift_ev: None,
             shift_dmp2_ev: None,
             localised: true,
@@ -154,6 +213,10 @@ mod tests {
             attempts: vec![],
             lifetime_fwhm_ev: Some(0.1),
             cation_energy_hartree: -28.0,
+            neutral_energy_hartree: -39.0,
+            n_basis: 10,
+            same_as_atom: None,
+            delocalised: None,
             notes: vec![],
         }
     }
@@ -165,11 +228,13 @@ mod tests {
             basis: "b".into(),
             core_basis: "plain".into(),
             n_basis: 10,
-            neutral_energy_hartree: -40.0,
+            neutral_energy_hartree: Some(-40.0),
             neutral_mp2_hartree: None,
             core_levels: vec![level(2, 290.5, None), level(3, 291.0, Some(291.3))],
             references: vec![],
+            relativistic_source: None,
             notes: vec![],
+            timings: CoreTimings::default(),
         };
         let b: Vec<Band> = (&r).into();
         assert_eq!(b.len(), 2);
