@@ -904,10 +904,9 @@ fn every_bundled_set_gives_unit_overlap_diagonal() {
     }
 }
 
-#[test]
-fn fitting_metric_is_positive_definite_for_water() {
-    // The Coulomb metric is positive definite (common practice); Cholesky must succeed.
-    let mol = Molecule::new(vec![
+/// Water at the Crawford group Programming Projects geometry (bohr; REFERENCE-DATA.md §1).
+fn water() -> Molecule {
+    Molecule::new(vec![
         Atom {
             z: 8,
             position: [0.0, -0.143225816552, 0.0],
@@ -920,7 +919,13 @@ fn fitting_metric_is_positive_definite_for_water() {
             z: 1,
             position: [-1.638036840407, 1.136548822547, 0.0],
         },
-    ]);
+    ])
+}
+
+#[test]
+fn fitting_metric_is_positive_definite_for_water() {
+    // The Coulomb metric is positive definite (common practice); Cholesky must succeed.
+    let mol = water();
     let aux = bandcast::basis::load_auxiliary("def2-universal-JKFIT", &mol).unwrap();
     let m = bandcast::integrals::eri2c(&aux);
     assert!(bandcast_linalg::cholesky_lower(m.as_ref()).is_some());
@@ -971,20 +976,7 @@ fn ket_batches_equal_single_quartets_bit_for_bit() {
     // `shell_quartets` promises exactly the numbers of `shell_quartet` (a property of the
     // engine, no external value needed). Water in cc-pVTZ (Cartesian and pure variants):
     // general contractions, contracted and uncontracted shells s–f.
-    let water = Molecule::new(vec![
-        Atom {
-            z: 8,
-            position: [0.0, -0.143225816552, 0.0],
-        },
-        Atom {
-            z: 1,
-            position: [1.638036840407, 1.136548822547, 0.0],
-        },
-        Atom {
-            z: 1,
-            position: [-1.638036840407, 1.136548822547, 0.0],
-        },
-    ]);
+    let water = water();
     for harmonics in [None, Some(bandcast::basis::Harmonics::Cartesian)] {
         let basis = bandcast::basis::load("cc-pVTZ", &water, harmonics).unwrap();
         let e = EriEngine::new(&basis);

@@ -167,6 +167,32 @@ fn df_start_with(
 }
 
 /// Run `f`, recording its wall time as "iterations".
+/// Iterations with exact integrals from `builder` (in-core or direct), after a
+/// density-fitted start when `df_start` asks for one; the builder and the time are recorded.
+#[allow(clippy::too_many_arguments)]
+fn exact_iterations(
+    df_slot: &mut Option<DfFock>,
+    record: &mut RunRecord,
+    basis: &BasisSet,
+    problem: &Problem,
+    builder: &mut dyn FockBuilder,
+    df_start: bool,
+    mol: &Molecule,
+    opts: &ScfOptions,
+    mut start: Start,
+    log: &mut dyn FnMut(&IterationInfo),
+) -> Result<driver::Solution> {
+    if df_start {
+        start = df_start_with(
+            df_slot, record, basis, problem, builder, mol, opts, start, log,
+        )?;
+    }
+    record.builder = builder.describe();
+    timed(record, || {
+        iterate_constrained(problem, builder, opts, start, log)
+    })
+}
+
 /// The SCF iterations, with J and K built from symmetrised densities when the options ask
 /// for a point-group constraint (`symmetrise.rs`).
 fn iterate_constrained(
@@ -334,7 +360,7 @@ impl ScfContext {
             ..RunRecord::default()
         };
         let t = Instant::now();
-        let mut start = self.start(mol, opts, n_alpha, n_beta)?;
+        let start = self.start(mol, opts, n_alpha, n_beta)?;
         self.last_run
             .timings
             .push(("guess".into(), t.elapsed().as_secs_f64()));
@@ -352,26 +378,19 @@ impl ScfContext {
                         .timings
                         .push(("in-core integrals".into(), t.elapsed().as_secs_f64()));
                 }
-                if df_start {
-                    let problem = problem(&self.s, &self.h, e_nuc, &self.ortho, n_alpha, n_beta);
-                    start = df_start_with(
-                        &mut self.df,
-                        &mut self.last_run,
-                        &self.basis,
-                        &problem,
-                        self.incore.as_mut().expect("just built"),
-                        mol,
-                        opts,
-                        start,
-                        log,
-                    )?;
-                }
-                let builder = self.incore.as_mut().expect("just built");
-                self.last_run.builder = builder.describe();
                 let problem = problem(&self.s, &self.h, e_nuc, &self.ortho, n_alpha, n_beta);
-                timed(&mut self.last_run, || {
-                    iterate_constrained(&problem, builder, opts, start, log)
-                })?
+                exact_iterations(
+                    &mut self.df,
+                    &mut self.last_run,
+                    &self.basis,
+                    &problem,
+                    self.incore.as_mut().expect("just built"),
+                    df_start,
+                    mol,
+                    opts,
+                    start,
+                    log,
+                )?
             }
             BuilderChoice::DensityFitted => {
                 self.df_builder(mol, opts)?;
@@ -387,28 +406,19 @@ impl ScfContext {
                 let src = EngineSource::new(&self.engine, &self.basis);
                 let plan = self.plan.clone().expect("built by choose_builder");
                 let mut direct = DirectFock::new(&src, plan);
-                if df_start {
-                    let problem = problem(&self.s, &self.h, e_nuc, &self.ortho, n_alpha, n_beta);
-                    start = df_start_with(
-                        &mut self.df,
-                        &mut self.last_run,
-                        &self.basis,
-                        &problem,
-                        &mut direct,
-                        mol,
-                        opts,
-                        start,
-                        log,
-                    )?;
-                }
-                self.last_run.builder = direct.describe();
                 let problem = problem(&self.s, &self.h, e_nuc, &self.ortho, n_alpha, n_beta);
-                let t = Instant::now();
-                let r = iterate_constrained(&problem, &mut direct, opts, start, log);
-                self.last_run
-                    .timings
-                    .push(("iterations".into(), t.elapsed().as_secs_f64()));
-                r?
+                exact_iterations(
+                    &mut self.df,
+                    &mut self.last_run,
+                    &self.basis,
+                    &problem,
+                    &mut direct,
+                    df_start,
+                    mol,
+                    opts,
+                    start,
+                    log,
+                )?
             }
         };
         self.last_builder = self.last_run.builder.clone();

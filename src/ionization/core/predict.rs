@@ -12,7 +12,7 @@
 //!
 //! The holes run one after another; each Fock build uses every thread of the pool, and one
 //! SCF context (one-electron integrals, the in-core two-electron store when it fits
-//! `MEMORY_BUDGET_BYTES`) serves the neutral and every cation start of a hole.
+//! `memory_budget_bytes`) serves the neutral and every cation start of a hole.
 
 use bandcast_linalg::Mat;
 
@@ -46,9 +46,12 @@ use super::result::{
 use super::shared_eri::{shell_map, MixedSource, PlainQuartets};
 use super::targets::{atom_label, check_core_atom, resolve_targets};
 
-/// Memory the stored two-electron integrals of a run may take (bytes); above it the Fock
+/// Memory the stored two-electron integrals of a run may take (bytes): the machine-dependent
+/// rule of `bandcast scf` (`scf::options::default_memory_budget`); above it the Fock
 /// matrices are built integral-direct.
-pub const MEMORY_BUDGET_BYTES: usize = 4 << 30;
+pub fn memory_budget_bytes() -> usize {
+    crate::scf::options::default_memory_budget()
+}
 
 /// Core-level binding energies of `mol` in basis `basis_name`.
 pub fn predict(mol: &Molecule, basis_name: &str, opts: &CoreOptions) -> Result<CoreResult> {
@@ -133,7 +136,7 @@ pub fn predict_with_progress(
     let shared = if units.len() > 1 && opts.core_basis != CoreBasis::Plain {
         let t = std::time::Instant::now();
         let c0 = cpu_seconds();
-        let cache = (PlainQuartets::estimate_bytes(&plain, threshold) <= MEMORY_BUDGET_BYTES / 2)
+        let cache = (PlainQuartets::estimate_bytes(&plain, threshold) <= memory_budget_bytes() / 2)
             .then(|| PlainQuartets::new(&plain, threshold));
         timings.shared_s = t.elapsed().as_secs_f64();
         timings.shared_cpu_s = cpu_diff(c0);
@@ -142,7 +145,7 @@ pub fn predict_with_progress(
     } else {
         None
     };
-    let budget = MEMORY_BUDGET_BYTES - shared.as_ref().map_or(0, |c| c.bytes());
+    let budget = memory_budget_bytes() - shared.as_ref().map_or(0, |c| c.bytes());
     let mut previous: Option<(BasisSet, Mat<f64>, Vec<usize>)> = None;
     for (flex, unit) in &units {
         let work = flexible_basis(&plain, mol, flex, &opts.core_basis)?;
