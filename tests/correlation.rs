@@ -154,7 +154,11 @@ fn parity(b: &basis::BasisSet, c: &bandcast_linalg::Mat<f64>, mo: usize) -> f64 
     let mut s = 0.0;
     let mut nn = 0.0;
     for (&p, &q) in a0.iter().zip(&a1) {
-        let sign = if map[p].2 % 2 == 0 { 1.0 } else { -1.0 };
+        let sign = if map[p].2.is_multiple_of(2) {
+            1.0
+        } else {
+            -1.0
+        };
         s += c[(p, mo)] * sign * c[(q, mo)];
         nn += c[(p, mo)] * c[(p, mo)];
     }

@@ -95,7 +95,7 @@ fn water_sto3g_crawford() {
             "{}",
             wf.energy
         );
-        assert!((wf.nuclear_repulsion - 8.002367061810450).abs() < 1e-10);
+        assert!((wf.nuclear_repulsion - 8.002_367_061_810_45).abs() < 1e-10);
         assert!(
             (wf.one_electron + wf.two_electron + wf.nuclear_repulsion - wf.energy).abs() < 1e-10
         );

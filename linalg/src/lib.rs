@@ -229,7 +229,7 @@ pub fn solve_upper_in_place(u: MatRef<'_, f64>, b: MatMut<'_, f64>) {
 /// Returns None when A is singular to working precision. Meant for small systems (DIIS).
 pub fn solve_small(a: &[Vec<f64>], b: &[f64]) -> Option<Vec<f64>> {
     let n = b.len();
-    let mut m: Vec<Vec<f64>> = a.iter().map(|r| r.clone()).collect();
+    let mut m: Vec<Vec<f64>> = a.to_vec();
     let mut x = b.to_vec();
     let scale = m
         .iter()

@@ -35,7 +35,7 @@ impl Molecule {
         Molecule {
             atoms,
             charge: 0,
-            multiplicity: if nel % 2 == 0 { 1 } else { 2 },
+            multiplicity: if nel.is_multiple_of(2) { 1 } else { 2 },
             name: String::new(),
         }
     }
@@ -120,7 +120,7 @@ mod tests {
                 position: [-1.638036840407, 1.136548822547, 0.0],
             },
         ]);
-        assert!((m.nuclear_repulsion() - 8.002367061810450).abs() < 1e-10);
+        assert!((m.nuclear_repulsion() - 8.002_367_061_810_45).abs() < 1e-10);
     }
 
     #[test]

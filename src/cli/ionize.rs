@@ -218,8 +218,8 @@ pub fn table(r: &ValenceResult, molecule: &str) -> String {
     let _ = writeln!(s);
     let _ = writeln!(
         s,
-        "  {:<8} {:>8} {:>4} {:>6} {:>8}  {:<12} {}",
-        "band", "IE (eV)", "deg", "weight", "Koopmans", "character", "make-up"
+        "  {:<8} {:>8} {:>4} {:>6} {:>8}  {:<12} make-up",
+        "band", "IE (eV)", "deg", "weight", "Koopmans", "character"
     );
     for (k, b) in r.bands.iter().enumerate() {
         let flag = if r

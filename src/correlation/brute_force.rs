@@ -28,7 +28,7 @@ fn op(det: u64, p: usize, create: bool) -> Option<(u64, f64)> {
         return None;
     }
     let below = (det & (bit - 1)).count_ones();
-    let sign = if below % 2 == 0 { 1.0 } else { -1.0 };
+    let sign = if below.is_multiple_of(2) { 1.0 } else { -1.0 };
     Some((det ^ bit, sign))
 }
 

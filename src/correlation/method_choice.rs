@@ -50,32 +50,6 @@ pub fn choose(
     }
 }
 
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn rule_follows_size_and_memory() {
-        let ri = |n: usize| FactorRoute::Fitted(5 * n / 2);
-        assert_eq!(choose(60, 4, 55, ri(60), Some(8e9)), DefaultMethod::EomCcsd);
-        assert_eq!(
-            choose(270, 15, 249, ri(270), Some(8e9)),
-            DefaultMethod::EomCcsd
-        );
-        assert_eq!(
-            choose(411, 28, 372, ri(411), Some(14e9)),
-            DefaultMethod::EomMbpt2
-        );
-        assert_eq!(
-            choose(800, 60, 700, ri(800), Some(16e9)),
-            DefaultMethod::Ep2
-        );
-        // memory too small for anything correlated → ep2
-        assert_eq!(choose(270, 15, 249, ri(270), Some(1e8)), DefaultMethod::Ep2);
-        assert!(rule_text().contains("eom-ccsd"));
-    }
-}
-
 /// The default `bandcast ionize` method for a molecule in a basis: for closed shells the
 /// rule above with the correlated space of the frozen-core default; open shells get ΔSCF
 /// (the EOM and EP2 code here is closed-shell only).
@@ -109,5 +83,31 @@ pub fn default_ionization_method(
         DefaultMethod::EomCcsd => Method::EomCcsd,
         DefaultMethod::EomMbpt2 => Method::EomMp2,
         DefaultMethod::Ep2 => Method::Ep2,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn rule_follows_size_and_memory() {
+        let ri = |n: usize| FactorRoute::Fitted(5 * n / 2);
+        assert_eq!(choose(60, 4, 55, ri(60), Some(8e9)), DefaultMethod::EomCcsd);
+        assert_eq!(
+            choose(270, 15, 249, ri(270), Some(8e9)),
+            DefaultMethod::EomCcsd
+        );
+        assert_eq!(
+            choose(411, 28, 372, ri(411), Some(14e9)),
+            DefaultMethod::EomMbpt2
+        );
+        assert_eq!(
+            choose(800, 60, 700, ri(800), Some(16e9)),
+            DefaultMethod::Ep2
+        );
+        // memory too small for anything correlated → ep2
+        assert_eq!(choose(270, 15, 249, ri(270), Some(1e8)), DefaultMethod::Ep2);
+        assert!(rule_text().contains("eom-ccsd"));
     }
 }

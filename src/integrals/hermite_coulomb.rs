@@ -112,13 +112,7 @@ pub fn r_index(d: usize, t: usize, u: usize, v: usize) -> usize {
 /// Compute `prefactor` × R_{tuv} for t + u + v ≤ `l` with exponent `a` and vector
 /// `pc` = P − C. Returns the cube (side l + 1), valid where t + u + v ≤ l.
 #[inline]
-pub fn hermite_r<'s>(
-    l: usize,
-    a: f64,
-    pc: [f64; 3],
-    prefactor: f64,
-    s: &'s mut RScratch,
-) -> &'s [f64] {
+pub fn hermite_r(l: usize, a: f64, pc: [f64; 3], prefactor: f64, s: &mut RScratch) -> &[f64] {
     let t_arg = a * (pc[0] * pc[0] + pc[1] * pc[1] + pc[2] * pc[2]);
     boys_array(l, t_arg, &mut s.boys);
     if l == 0 {

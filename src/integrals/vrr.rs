@@ -448,7 +448,7 @@ pub fn run(plan: &VrrPlan, buf: &mut [f64], c: &VrrCoefs) {
 /// build).
 #[inline(never)]
 pub fn run_batch(plan: &VrrPlan, buf: &mut [f64], nb: usize, c: &BatchCoefs) {
-    assert!(nb <= NB_MAX && nb % LANES == 0 && buf.len() >= plan.buf_len * nb);
+    assert!(nb <= NB_MAX && nb.is_multiple_of(LANES) && buf.len() >= plan.buf_len * nb);
     #[cfg(target_arch = "x86_64")]
     if std::arch::is_x86_feature_detected!("avx2") {
         // SAFETY: the feature is present; the bounds were checked above.

@@ -48,7 +48,7 @@ pub fn abelian_subgroup(name: &str) -> (&'static str, Mat3) {
                 .collect();
             let suffix = &name[1 + digits.len()..];
             let n: usize = digits.parse().unwrap_or(1);
-            let even = n % 2 == 0;
+            let even = n.is_multiple_of(2);
             match (head, suffix, even) {
                 ("D", "h", true) => ("D2h", ID),
                 ("D", "h", false) => ("C2v", C2V_FROM_DNH_ODD),
@@ -61,7 +61,7 @@ pub fn abelian_subgroup(name: &str) -> (&'static str, Mat3) {
                 ("C", "h", true) => ("C2h", ID),
                 ("C", "h", false) => ("Cs", ID),
                 ("C", "", true) => ("C2", ID),
-                ("S", "", _) if (n / 2) % 2 == 0 => ("C2", ID),
+                ("S", "", _) if (n / 2).is_multiple_of(2) => ("C2", ID),
                 ("S", "", _) => ("Ci", ID),
                 _ => ("C1", ID),
             }

@@ -187,7 +187,7 @@ fn cn(n: usize) -> Build {
     let mut classes = vec![("E".to_string(), IDENTITY)];
     classes.extend(rotation_classes(n));
     let mut irreps = vec![("a".to_string(), rot_chars(n, |_| 1.0, 1.0))];
-    if n % 2 == 0 {
+    if n.is_multiple_of(2) {
         irreps.push((
             "b".into(),
             rot_chars(n, |k| if k % 2 == 0 { 1.0 } else { -1.0 }, 1.0),
@@ -215,12 +215,12 @@ fn cn(n: usize) -> Build {
 /// Irreps A1, A2, B1, B2 (n even), E_j of Cnv/Dn/C2nv-type groups: rotation classes, then one
 /// (n odd) or two (n even) classes of "vertical" elements (σv/C2′, then σd/C2″).
 fn dihedral_irreps(n: usize) -> Vec<(String, Vec<f64>)> {
-    let alt = |k: usize| if k % 2 == 0 { 1.0 } else { -1.0 };
+    let alt = |k: usize| if k.is_multiple_of(2) { 1.0 } else { -1.0 };
     let with = |mut v: Vec<f64>, tail: &[f64]| {
         v.extend_from_slice(tail);
         v
     };
-    let even = n % 2 == 0;
+    let even = n.is_multiple_of(2);
     let vert = |a: f64, b: f64| if even { vec![a, b] } else { vec![a] };
     let mut irreps = vec![
         (
@@ -258,7 +258,7 @@ fn cnv(n: usize) -> Build {
     let mut classes = vec![("E".to_string(), IDENTITY)];
     classes.extend(rotation_classes(n));
     classes.push(("σv".into(), ops::reflection(&Y)));
-    if n % 2 == 0 {
+    if n.is_multiple_of(2) {
         let d = horizontal(PI / n as f64 + PI / 2.0);
         classes.push(("σd".into(), ops::reflection(&d)));
     }
@@ -275,7 +275,7 @@ fn dn(n: usize) -> Build {
     let mut classes = vec![("E".to_string(), IDENTITY)];
     classes.extend(rotation_classes(n));
     classes.push(("C2'".into(), ops::rotation(&X, PI)));
-    if n % 2 == 0 {
+    if n.is_multiple_of(2) {
         classes.push(("C2''".into(), ops::rotation(&horizontal(PI / n as f64), PI)));
     }
     let mut irreps = dihedral_irreps(n);
@@ -379,7 +379,7 @@ fn product(base: Build, m: Mat3, inversion: bool) -> Build {
 
 /// Cnh: Cn × {E, i} for n even (g/u), Cn × {E, σh} for n odd (′/″).
 fn cnh(n: usize) -> Build {
-    let b = if n % 2 == 0 {
+    let b = if n.is_multiple_of(2) {
         product(cn(n), INVERSION, true)
     } else {
         product(cn(n), ops::reflection(&Z), false)
@@ -389,7 +389,7 @@ fn cnh(n: usize) -> Build {
 
 /// Dnh: Dn × {E, i} for n even, Dn × {E, σh} for n odd.
 fn dnh(n: usize) -> Build {
-    let b = if n % 2 == 0 {
+    let b = if n.is_multiple_of(2) {
         product(dn(n), INVERSION, true)
     } else {
         product(dn(n), ops::reflection(&Z), false)

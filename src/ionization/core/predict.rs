@@ -65,7 +65,7 @@ pub fn predict_with_progress(
     opts: &CoreOptions,
     progress: &(dyn Fn(usize, usize) + Sync),
 ) -> Result<CoreResult> {
-    if mol.multiplicity != 1 || mol.n_electrons() % 2 != 0 {
+    if mol.multiplicity != 1 || !mol.n_electrons().is_multiple_of(2) {
         return Err(Error::input(format!(
             "core levels are computed for closed-shell molecules (multiplicity 1); this one has \
              charge {} and multiplicity {}",
