@@ -21,7 +21,7 @@ pub struct Args {
     #[arg(long, value_name = "NAME")]
     pub basis: String,
     /// koopmans | dscf | ep2 | eom-ccsd | eom-mp2 (default for closed shells: the most
-    /// accurate that fits — eom-ccsd up to 250 basis functions, eom-mp2 up to 450, ep2
+    /// accurate that fits — eom-ccsd up to 300 basis functions, eom-mp2 up to 450, ep2
     /// beyond, within --memory; dscf for open shells).
     #[arg(long, value_name = "METHOD")]
     pub method: Option<String>,
@@ -34,9 +34,11 @@ pub struct Args {
     /// Correlate the core electrons too in EP2 and EOM (default: frozen core).
     #[arg(long, alias = "all-electron")]
     pub correlate_core: bool,
-    /// Memory for MO integrals in GB.
-    #[arg(long, value_name = "GB", default_value_t = 4.0)]
-    pub memory: f64,
+    /// Memory in GB for the MO integrals and the correlated stages (default: half of the
+    /// machine's memory, at most three quarters of what is available — the rule of
+    /// `bandcast scf --memory`). It also decides the default method.
+    #[arg(long, value_name = "GB")]
+    pub memory: Option<f64>,
     /// Two-electron integrals of eom-ccsd / eom-mp2: ri (density fitting with the fitting
     /// set made for the basis; the default when one is bundled, Cholesky otherwise) or
     /// cholesky (pivoted Cholesky decomposition, threshold 1e-5 Eh).
@@ -53,9 +55,13 @@ substitute for one; check assignments against a measured spectrum before relying
 
 pub fn run(args: Args) -> Result<()> {
     let mol = args.molecule.load()?;
-    if !(args.memory > 0.0) {
-        return Err(Error::input("--memory must be a positive number of GB"));
-    }
+    let memory_gb = match args.memory {
+        Some(gb) if !(gb > 0.0) => {
+            return Err(Error::input("--memory must be a positive number of GB"))
+        }
+        Some(gb) => gb,
+        None => bandcast::scf::options::default_memory_budget() as f64 / 1e9,
+    };
     let basis = bandcast::basis::load(&args.basis, &mol, None)?;
     let defaulted = args.method.is_none();
     let method = match &args.method {
@@ -64,7 +70,7 @@ pub fn run(args: Args) -> Result<()> {
             bandcast::correlation::method_choice::default_ionization_method(
                 &mol,
                 &basis,
-                Some(args.memory * 1e9),
+                Some(memory_gb * 1e9),
             )
         }
         None => default_method(&mol),
@@ -96,7 +102,7 @@ pub fn run(args: Args) -> Result<()> {
         count: args.count,
         window_ev: args.window,
         frozen_core: !args.correlate_core,
-        memory_bytes: (args.memory * 1e9) as usize,
+        memory_bytes: (memory_gb * 1e9) as usize,
         eom_integrals,
         ..Default::default()
     };
