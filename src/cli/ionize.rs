@@ -108,7 +108,7 @@ pub fn run(args: Args) -> Result<()> {
     };
     let mut result = predict(&mol, &basis, &opts)?;
     if defaulted {
-        result.warnings.push(format!(
+        result.notes.push(format!(
             "{} — chose {method} for {} basis functions",
             bandcast::correlation::method_choice::rule_text(),
             basis.n_basis
@@ -197,6 +197,7 @@ pub fn to_json(r: &ValenceResult, molecule: &str) -> Value {
         "reference": { "kind": reference_name(r.reference), "energy_hartree": r.reference_energy },
         "bands": bands,
         "order_uncertain": pairs,
+        "notes": r.notes,
         "warnings": r.warnings,
         "note": GUIDANCE,
     })
@@ -280,8 +281,11 @@ pub fn table(r: &ValenceResult, molecule: &str) -> String {
             let _ = writeln!(s, "  {} / {}: {}", p.labels[0], p.labels[1], p.reason);
         }
     }
-    if !r.warnings.is_empty() {
+    if !r.notes.is_empty() || !r.warnings.is_empty() {
         let _ = writeln!(s);
+        for n in &r.notes {
+            let _ = writeln!(s, "note: {n}");
+        }
         for w in &r.warnings {
             let _ = writeln!(s, "warning: {w}");
         }

@@ -168,7 +168,8 @@ pub fn frozen_core_orbitals(z: u32) -> usize {
 }
 
 /// Energies for chosen orbitals (one targeted EOM root per orbital, in the given order) as
-/// (IE hartree, one-hole weight), plus notes on how the job was run. Used by
+/// (IE hartree, one-hole weight), plus notes on how the job was run and warnings about
+/// roots that did not converge or ended on another orbital. Used by
 /// `ionization::valence` for `--method eom-ccsd|eom-mp2`.
 #[allow(clippy::type_complexity, clippy::too_many_arguments)]
 pub fn band_energies(
@@ -180,7 +181,7 @@ pub fn band_energies(
     frozen_core: bool,
     memory_bytes: Option<f64>,
     two_electron: &TwoElectron,
-) -> Result<(Vec<(f64, f64)>, Vec<String>)> {
+) -> Result<(Vec<(f64, f64)>, Vec<String>, Vec<String>)> {
     let opts = EomOptions {
         method,
         roots: RootSpec::Orbitals(orbitals.to_vec()),
@@ -199,9 +200,10 @@ pub fn band_energies(
     } else {
         notes.push(format!("MP2 correlation energy {:.8} Eh", rep.e_mp2_corr));
     }
+    let mut warnings = Vec::new();
     for (s, &m) in rep.states.iter().zip(orbitals) {
         if !s.converged {
-            notes.push(format!(
+            warnings.push(format!(
                 "{}: the EOM root started from MO {} did not converge (residual {:.1e})",
                 method.name(),
                 m + 1,
@@ -209,7 +211,7 @@ pub fn band_energies(
             ));
         }
         if s.dominant_orbital != m {
-            notes.push(format!(
+            warnings.push(format!(
                 "{}: the root started from MO {} ended dominated by MO {}",
                 method.name(),
                 m + 1,
@@ -223,6 +225,7 @@ pub fn band_energies(
             .map(|s| (s.ie_hartree, s.one_hole_weight))
             .collect(),
         notes,
+        warnings,
     ))
 }
 
@@ -390,7 +393,8 @@ pub fn ionize_report(
         }
     ));
     if n_frozen > 0 {
-        notes.push(format!("frozen core: {n_frozen} orbitals"));
+        let plural = if n_frozen == 1 { "" } else { "s" };
+        notes.push(format!("frozen core: {n_frozen} orbital{plural}"));
     } else {
         notes.push("all electrons correlated".into());
     }

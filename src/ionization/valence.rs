@@ -96,6 +96,11 @@ pub struct ValenceResult {
     pub bands: Vec<Band>,
     /// Koopmans IE (eV) of each band, same order as `bands`.
     pub koopmans_ev: Vec<f64>,
+    /// How the job was run (integral factorisation, frozen core, correlation energies,
+    /// the default-method rule): information, not a problem.
+    pub notes: Vec<String>,
+    /// Something the user should look at (low pole strength, a hole that moved, a root
+    /// that did not converge, spin contamination, …).
     pub warnings: Vec<String>,
     pub uncertain_pairs: Vec<UncertainPair>,
     /// Total SCF energy of the neutral (hartree).
@@ -200,7 +205,18 @@ pub fn predict_with(
         candidates.truncate(c + extra);
     }
 
-    let energies = method_energies(mol, basis, wf, &s, &candidates, opts, n_core, &mut warnings)?;
+    let mut run_notes = Vec::new();
+    let energies = method_energies(
+        mol,
+        basis,
+        wf,
+        &s,
+        &candidates,
+        opts,
+        n_core,
+        &mut run_notes,
+        &mut warnings,
+    )?;
 
     let mut rows: Vec<(Band, f64)> = candidates
         .iter()
@@ -248,6 +264,7 @@ pub fn predict_with(
         point_group: notes.point_group(),
         bands,
         koopmans_ev,
+        notes: run_notes,
         warnings,
         uncertain_pairs,
         reference_energy: wf.energy,
@@ -264,6 +281,7 @@ fn method_energies(
     sets: &[OrbitalSet],
     opts: &ValenceOptions,
     n_core: usize,
+    notes: &mut Vec<String>,
     warnings: &mut Vec<String>,
 ) -> Result<Vec<BandEnergy>> {
     match opts.method {
@@ -332,7 +350,7 @@ fn method_energies(
             };
             let reps: Vec<usize> = sets.iter().map(|s| s.representative()).collect();
             let _ = (s, n_core);
-            let (res, notes) = band_energies(
+            let (res, run_notes, run_warnings) = band_energies(
                 mol,
                 basis,
                 wf,
@@ -342,7 +360,8 @@ fn method_energies(
                 Some(opts.memory_bytes as f64),
                 &opts.eom_integrals,
             )?;
-            warnings.extend(notes);
+            notes.extend(run_notes);
+            warnings.extend(run_warnings);
             Ok(res
                 .into_iter()
                 .map(|(ie, w)| BandEnergy {
