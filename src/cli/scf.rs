@@ -530,7 +530,7 @@ pub struct BenchArgs {
     #[arg(long)]
     pub quick: bool,
     /// Add guanine/def2-TZVPP (exact: integral-direct after a density-fitted start unless
-    /// ~20 GiB are available, about 350 CPU-s with the present ERI engine; and
+    /// ~20 GiB are available, about 100 CPU-s on 2 cores; and
     /// density-fitted).
     #[arg(long)]
     pub guanine: bool,
