@@ -111,6 +111,39 @@ mod tests {
     use crate::correlation::mp2;
     use bandcast_linalg::{eig_general, Mat};
 
+    /// A toy system with o occupied and v virtual orbitals, its determinant space, and three
+    /// amplitude sets (T1, T2): converged CCSD, first-order (MBPT2, T1 = 0), and random
+    /// amplitudes (seeded with `rng_seed`, T2 made pair-symmetric).
+    fn amplitude_sets(
+        o: usize,
+        v: usize,
+        seed: u64,
+        store: bool,
+        rng_seed: u64,
+    ) -> (MoIntegrals, FockSpace, [(Tensor, Tensor); 3]) {
+        let (f, fock) = toy_system(o, v, 6, seed, 0.0);
+        let ints = MoIntegrals::new(f.clone(), &fock, store, false);
+        let cc = ccsd::solve(
+            &ints,
+            &CcsdOptions {
+                r_tol: 1e-11,
+                e_tol: 1e-12,
+                ..Default::default()
+            },
+            &mut |_| {},
+        )
+        .unwrap();
+        let fs = FockSpace::new(&f, &fock);
+        let t2m = mp2::amplitudes(&ints);
+        let mut rng = Lcg(rng_seed);
+        let t1r = Tensor::from_fn(&[o, v], |_| 0.4 * rng.next());
+        let t2r0 = Tensor::from_fn(&[o, o, v, v], |_| 0.4 * rng.next());
+        let mut t2r = t2r0.permute(&[1, 0, 3, 2]);
+        t2r.axpy(1.0, &t2r0);
+        let sets = [(cc.t1, cc.t2), (Tensor::zeros(&[o, v]), t2m), (t1r, t2r)];
+        (ints, fs, sets)
+    }
+
     fn full_matrix(h: &IpHbar, space: &IpSpace) -> Mat<f64> {
         let n = space.dim();
         let mut m = Mat::<f64>::zeros(n, n);
@@ -136,27 +169,8 @@ mod tests {
             (3, 2, 8, false),
             (2, 3, 21, false),
         ] {
-            let (f, fock) = toy_system(o, v, 6, seed, 0.0);
-            let ints = MoIntegrals::new(f.clone(), &fock, store, false);
-            let cc = ccsd::solve(
-                &ints,
-                &CcsdOptions {
-                    r_tol: 1e-11,
-                    e_tol: 1e-12,
-                    ..Default::default()
-                },
-                &mut |_| {},
-            )
-            .unwrap();
-            let fs = FockSpace::new(&f, &fock);
-            let t1z = Tensor::zeros(&[o, v]);
-            let t2m = mp2::amplitudes(&ints);
-            let mut rng = Lcg(seed);
-            let t1r = Tensor::from_fn(&[o, v], |_| 0.4 * rng.next());
-            let t2r0 = Tensor::from_fn(&[o, o, v, v], |_| 0.4 * rng.next());
-            let mut t2r = t2r0.permute(&[1, 0, 3, 2]);
-            t2r.axpy(1.0, &t2r0);
-            for (t1, t2) in [(&cc.t1, &cc.t2), (&t1z, &t2m), (&t1r, &t2r)] {
+            let (ints, fs, sets) = amplitude_sets(o, v, seed, store, seed);
+            for (t1, t2) in &sets {
                 let h = IpHbar::new(ints.clone(), t1, t2.clone());
                 let space = IpSpace { nocc: o, nvir: v };
                 let m = full_matrix(&h, &space);
@@ -190,27 +204,8 @@ mod tests {
         let mut naive_differs = false;
         let (mut w_min, mut w_max) = (1.0f64, 0.0f64);
         for &(o, v, seed) in &[(2usize, 3usize, 5u64), (3, 2, 8), (2, 3, 21)] {
-            let (f, fock) = toy_system(o, v, 6, seed, 0.0);
-            let ints = MoIntegrals::new(f.clone(), &fock, true, false);
-            let cc = ccsd::solve(
-                &ints,
-                &CcsdOptions {
-                    r_tol: 1e-11,
-                    e_tol: 1e-12,
-                    ..Default::default()
-                },
-                &mut |_| {},
-            )
-            .unwrap();
-            let fs = FockSpace::new(&f, &fock);
-            let t1z = Tensor::zeros(&[o, v]);
-            let t2m = mp2::amplitudes(&ints);
-            let mut rng = Lcg(seed + 1);
-            let t1r = Tensor::from_fn(&[o, v], |_| 0.4 * rng.next());
-            let t2r0 = Tensor::from_fn(&[o, o, v, v], |_| 0.4 * rng.next());
-            let mut t2r = t2r0.permute(&[1, 0, 3, 2]);
-            t2r.axpy(1.0, &t2r0);
-            for (t1, t2) in [(&cc.t1, &cc.t2), (&t1z, &t2m), (&t1r, &t2r)] {
+            let (ints, fs, sets) = amplitude_sets(o, v, seed, true, seed + 1);
+            for (t1, t2) in &sets {
                 let h = IpHbar::new(ints.clone(), t1, t2.clone());
                 let space = IpSpace { nocc: o, nvir: v };
                 let m = full_matrix(&h, &space);

@@ -322,6 +322,7 @@ fn solve_metric(l: &Mat<f64>, b: &mut [f64], naux: usize, npair: usize) {
 
 #[cfg(test)]
 mod tests {
+    use super::super::tests::max_diff;
     use super::*;
     use crate::basis::Shell;
     use crate::scf::fock::TensorFock;
@@ -335,16 +336,6 @@ mod tests {
             exponents: vec![exponent],
             coefficients: vec![1.0],
         }
-    }
-
-    fn max_diff(a: &Mat<f64>, b: &Mat<f64>) -> f64 {
-        let mut m = 0.0f64;
-        for i in 0..a.nrows() {
-            for j in 0..a.ncols() {
-                m = m.max((a[(i, j)] - b[(i, j)]).abs());
-            }
-        }
-        m
     }
 
     /// One centre, orbitals s(α) and p(β): every product φ_μ φ_ν is one of the Gaussians

@@ -92,7 +92,8 @@ mod tests {
         })
     }
 
-    fn max_diff(a: &Mat<f64>, b: &Mat<f64>) -> f64 {
+    /// Largest |a_ij − b_ij| (also used by the other builders' tests).
+    pub(super) fn max_diff(a: &Mat<f64>, b: &Mat<f64>) -> f64 {
         let mut m = 0.0f64;
         for i in 0..a.nrows() {
             for j in 0..a.ncols() {
