@@ -6,7 +6,9 @@
 
 pub mod analysis;
 pub mod basis;
+pub mod bench;
 pub mod chem;
+pub mod core_level;
 pub mod correlation;
 pub mod error;
 pub mod integrals;

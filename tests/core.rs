@@ -13,12 +13,18 @@ use std::process::Command;
 
 use bandcast::chem::xyz::{parse_xyz, read_xyz, LengthUnit};
 use bandcast::chem::Molecule;
-use bandcast::ionization::core::{
-    predict, CoreLevel, CoreOptions, CoreResult, ShiftReference, TargetSelection,
+use bandcast::core_level::{
+    CoreLevel, CoreOptions, CoreResult, ReferenceMolecule, ShiftReference, TargetSelection,
 };
 use bandcast::ionization::Region;
 
 const BASIS: &str = "cc-pVDZ";
+
+/// The library entry with the basis set loaded by name, as the command does.
+fn predict(mol: &Molecule, basis_name: &str, opts: &CoreOptions) -> bandcast::Result<CoreResult> {
+    let set = bandcast::basis::load(basis_name, mol, None)?;
+    bandcast::core_level::predict(mol, &set, opts)
+}
 
 fn gw100(name: &str) -> PathBuf {
     Path::new(concat!(env!("CARGO_MANIFEST_DIR"), "/tests/data/gw100")).join(format!("{name}.xyz"))
@@ -74,7 +80,7 @@ fn check_level(what: &str, l: &CoreLevel, published: f64, tol: f64) {
         "{what}: Koopmans {koopmans:.2} eV is {relax:.2} eV above experiment"
     );
     // A spin-contaminated cation (|⟨S²⟩ − 0.75| > 0.1) must say so.
-    let said = l.notes.iter().any(|n| n.contains("⟨S²⟩"));
+    let said = l.notes.iter().any(|n| n.to_string().contains("⟨S²⟩"));
     assert_eq!(
         said,
         (s2 - 0.75).abs() > 0.1,
@@ -267,7 +273,10 @@ fn carbon_monoxide_levels_and_shift_from_methane() {
     let ch4 = load("methane");
     let mut opts = CoreOptions {
         targets: TargetSelection::AllHeavy,
-        reference: ShiftReference::Molecule(Box::new(ch4)),
+        reference: ShiftReference::Molecule(Box::new(ReferenceMolecule {
+            basis: bandcast::basis::load(BASIS, &ch4, None).unwrap(),
+            molecule: ch4,
+        })),
         ..CoreOptions::default()
     };
     let r = predict(&co, BASIS, &opts).expect("CO run");
@@ -341,7 +350,7 @@ fn json_has_the_documented_fields() {
     let out = bandcast()
         .args(["core"])
         .arg(gw100("water"))
-        .args(["--basis", BASIS, "--json", "--reference-atom", "1"])
+        .args(["--basis", BASIS, "--json", "--shift-from-atom", "1"])
         .output()
         .unwrap();
     assert_eq!(
@@ -366,6 +375,28 @@ fn json_has_the_documented_fields() {
     assert!(l["shift_ev"].as_f64().unwrap().abs() < 1e-9);
     assert!(l["localised"].is_boolean());
     assert!(l["notes"].is_array());
+    // Typed notes beside the messages: one {code, message} per note.
+    let details = v["note_details"].as_array().expect("note_details");
+    assert_eq!(details.len(), v["notes"].as_array().unwrap().len());
+    for d in details {
+        assert!(d["code"].is_string() && d["message"].is_string(), "{d}");
+    }
+}
+
+#[test]
+fn old_option_spellings_still_work_with_a_note() {
+    let out = bandcast()
+        .args(["core"])
+        .arg(gw100("water"))
+        .args(["--basis", "sto-3g", "--quick", "--reference-atom", "1", "--mp2"])
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(0));
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(err.contains("--shift-from-atom"), "{err}");
+    assert!(err.contains("--method dmp2"), "{err}");
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert!(text.contains("ΔMP2/eV"), "{text}");
 }
 
 #[test]

@@ -3,10 +3,11 @@
 use std::io::IsTerminal;
 use std::path::PathBuf;
 
+use bandcast::basis;
 use bandcast::chem::elements::parse_element;
-use bandcast::ionization::core::targets::parse_atom_list;
-use bandcast::ionization::core::{
-    predict_with_progress, CoreBasis, CoreOptions, CoreResult, ShiftReference, TargetSelection,
+use bandcast::core_level::{
+    predict_with_progress, CoreBasis, CoreOptions, CoreResult, CoreTimings, ReferenceMolecule,
+    ShiftReference, TargetSelection,
 };
 use bandcast::{Error, Result};
 
@@ -31,12 +32,19 @@ pub struct Args {
     /// Ionise these atoms, numbered from 1: "1,3,5" or "2-4".
     #[arg(long, value_name = "LIST")]
     pub atoms: Option<String>,
-    /// Shifts against the same element's 1s in this molecule (its first atom of the element).
-    #[arg(long, value_name = "FILE.xyz", conflicts_with = "reference_atom")]
-    pub reference: Option<PathBuf>,
+    /// Shifts against the same element's 1s in this molecule (its first atom of the element),
+    /// computed with the same basis set and options.
+    #[arg(long, value_name = "FILE.xyz", conflicts_with_all = ["shift_from_atom", "old_reference_atom"])]
+    pub shift_from: Option<PathBuf>,
     /// Shifts against this atom (from 1) of the same molecule.
-    #[arg(long, value_name = "N")]
-    pub reference_atom: Option<usize>,
+    #[arg(long, value_name = "N", conflicts_with = "old_reference")]
+    pub shift_from_atom: Option<usize>,
+    /// Old spelling of --shift-from (kept for one release).
+    #[arg(long = "reference", value_name = "FILE.xyz", hide = true, conflicts_with_all = ["shift_from", "shift_from_atom", "old_reference_atom"])]
+    pub old_reference: Option<PathBuf>,
+    /// Old spelling of --shift-from-atom (kept for one release).
+    #[arg(long = "reference-atom", value_name = "N", hide = true, conflicts_with = "shift_from_atom")]
+    pub old_reference_atom: Option<usize>,
     /// Core flexibility on the hole atoms: plain, uncontract (split the s shells into
     /// primitives), uncontract-sp (s and p; default), or the name of a set whose functions
     /// replace the hole atoms' (e.g. cc-pCVTZ).
@@ -53,9 +61,13 @@ pub struct Args {
     /// cation SCF kept symmetric), reported beside the localised one.
     #[arg(long)]
     pub compare_delocalised: bool,
-    /// Add the second-order (ΔMP2) correction.
-    #[arg(long)]
-    pub mp2: bool,
+    /// Method: dscf (ΔSCF) or dmp2 (ΔSCF plus the second-order correlation change, ΔMP2,
+    /// printed beside ΔSCF).
+    #[arg(long, value_name = "dscf|dmp2", default_value = "dscf")]
+    pub method: CoreMethod,
+    /// Old spelling of --method dmp2 (kept for one release).
+    #[arg(long = "mp2", hide = true)]
+    pub old_mp2: bool,
     /// Add the relativistic correction of 1s levels (Takahata & Chong 2003 power law in the
     /// non-relativistic binding energy; off by default).
     #[arg(long)]
@@ -67,9 +79,26 @@ pub struct Args {
     /// already computed (by default those take its numbers).
     #[arg(long)]
     pub all_holes: bool,
+    /// Stage timings (each neutral and each hole, wall and CPU seconds) on stderr.
+    #[arg(long)]
+    pub verbose: bool,
     /// Machine-readable result on stdout.
     #[arg(long)]
     pub json: bool,
+}
+
+/// `--method` of `bandcast core`.
+#[derive(clap::ValueEnum, Clone, Copy, Debug, PartialEq, Eq)]
+pub enum CoreMethod {
+    /// ΔSCF.
+    Dscf,
+    /// ΔSCF plus ΔMP2.
+    Dmp2,
+}
+
+/// A note on stderr for an old option spelling.
+fn old_spelling(old: &str, new: &str) {
+    eprintln!("note: {old} is the old spelling of {new}; it will be removed in a later release");
 }
 
 /// Build the library options from the arguments (everything the user can get wrong is
@@ -82,18 +111,31 @@ pub fn options(args: &Args) -> Result<CoreOptions> {
         (None, Some(list)) => TargetSelection::Atoms(parse_atom_list(list)?),
         (None, None) => TargetSelection::AllHeavy,
     };
-    let reference = match (&args.reference, args.reference_atom) {
+    if args.old_reference.is_some() {
+        old_spelling("--reference FILE", "--shift-from FILE");
+    }
+    if args.old_reference_atom.is_some() {
+        old_spelling("--reference-atom N", "--shift-from-atom N");
+    }
+    if args.old_mp2 {
+        old_spelling("--mp2", "--method dmp2");
+    }
+    let shift_file = args.shift_from.as_ref().or(args.old_reference.as_ref());
+    let shift_atom = args.shift_from_atom.or(args.old_reference_atom);
+    let reference = match (shift_file, shift_atom) {
         (Some(path), _) => {
             let state = StateArgs {
                 bohr: args.molecule.state.bohr,
                 charge: 0,
                 multiplicity: None,
             };
-            ShiftReference::Molecule(Box::new(state.load(path)?))
+            let molecule = state.load(path)?;
+            let basis = basis::load(&args.basis, &molecule, None)?;
+            ShiftReference::Molecule(Box::new(ReferenceMolecule { molecule, basis }))
         }
         (None, Some(0)) => {
             return Err(Error::input(
-                "--reference-atom: atoms are numbered from 1, not 0",
+                "--shift-from-atom: atoms are numbered from 1, not 0",
             ))
         }
         (None, Some(n)) => ShiftReference::Atom(n - 1),
@@ -104,9 +146,8 @@ pub fn options(args: &Args) -> Result<CoreOptions> {
         reference,
         core_basis: CoreBasis::parse(&args.core_basis),
         localise: !args.canonical_hole,
-        mp2: args.mp2,
+        mp2: args.method == CoreMethod::Dmp2 || args.old_mp2,
         thorough: !args.quick,
-        harmonics: None,
         use_symmetry: !args.all_holes,
         relativistic: args.relativistic,
         delocalised: args.compare_delocalised,
@@ -115,6 +156,7 @@ pub fn options(args: &Args) -> Result<CoreOptions> {
 
 pub fn run(args: Args) -> Result<()> {
     let mol = args.molecule.load()?;
+    let set = basis::load(&args.basis, &mol, None)?;
     let opts = options(&args)?;
     let bar = if std::io::stderr().is_terminal() {
         let b = indicatif::ProgressBar::new(0);
@@ -133,11 +175,14 @@ pub fn run(args: Args) -> Result<()> {
             b.set_position(done as u64);
         }
     };
-    let result = predict_with_progress(&mol, &args.basis, &opts, &tick);
+    let result = predict_with_progress(&mol, &set, &opts, &tick);
     if let Some(b) = &bar {
         b.finish_and_clear();
     }
     let result = result?;
+    if args.verbose {
+        eprint!("{}", timings_text(&result.timings));
+    }
     if args.json {
         let text = serde_json::to_string_pretty(&result)
             .map_err(|e| Error::computation(format!("JSON output: {e}")))?;
@@ -224,9 +269,9 @@ pub fn table(r: &CoreResult) -> String {
             l.start
         ));
     }
-    let mut notes: Vec<String> = r.notes.clone();
+    let mut notes: Vec<String> = r.notes.iter().map(|n| n.to_string()).collect();
     for l in &r.core_levels {
-        for n in &l.notes {
+        for n in l.notes.iter() {
             notes.push(format!("{}: {n}", l.label));
         }
         if let (Some(a), Some(b)) = (l.shift_ev, l.shift_dmp2_ev) {
@@ -272,6 +317,37 @@ fn secs(cpu: Option<f64>) -> String {
     cpu.map(|c| format!("{c:.1}")).unwrap_or_else(|| "?".into())
 }
 
+/// Stage timings of a run, one line per stage (for `--verbose` and `bandcast bench core`).
+fn timings_text(t: &CoreTimings) -> String {
+    let mut s = format!(
+        "  total {:.2} s wall, {} CPU-s; Fock builds: {}\n",
+        t.total_s,
+        secs(t.total_cpu_s),
+        t.fock_builder
+    );
+    if t.shared_bytes > 0 {
+        s.push_str(&format!(
+            "  shared quartets (no shell on a hole atom): {:.2} s wall, {} CPU-s, {:.1} MiB\n",
+            t.shared_s,
+            secs(t.shared_cpu_s),
+            t.shared_bytes as f64 / (1u64 << 20) as f64
+        ));
+    }
+    for (kind, list) in [("neutral", &t.neutrals), ("hole", &t.holes)] {
+        for h in list {
+            s.push_str(&format!(
+                "  {kind:<7} {:<12} {:>4} fn {:>8.2} s wall {:>8} CPU-s {:>4} iterations\n",
+                h.label,
+                h.n_basis,
+                h.seconds,
+                secs(h.cpu_seconds),
+                h.iterations
+            ));
+        }
+    }
+    s
+}
+
 pub fn bench(a: BenchArgs) -> Result<()> {
     if a.carbons == 0 {
         return Err(Error::input("--carbons must be at least 1"));
@@ -283,7 +359,7 @@ pub fn bench(a: BenchArgs) -> Result<()> {
         core_basis: CoreBasis::parse(&a.core_basis),
         ..CoreOptions::default()
     };
-    let r = bandcast::ionization::core::bench::run_core_bench(a.carbons, &a.basis, &opts)?;
+    let r = bandcast::bench::core_level::run_core_bench(a.carbons, &a.basis, &opts)?;
     let t = &r.result.timings;
     println!(
         "core: {} — {} atoms, {} functions, {} C 1s levels from {} SCF holes, {} starts, {} threads",
@@ -295,32 +371,7 @@ pub fn bench(a: BenchArgs) -> Result<()> {
         if a.thorough { "all" } else { "first clean" },
         rayon::current_num_threads()
     );
-    println!(
-        "  total {:.2} s wall, {} CPU-s; Fock builds: {}",
-        t.total_s,
-        secs(t.total_cpu_s),
-        t.fock_builder
-    );
-    if t.shared_bytes > 0 {
-        println!(
-            "  shared quartets (no shell on a hole atom): {:.2} s wall, {} CPU-s, {:.1} MiB",
-            t.shared_s,
-            secs(t.shared_cpu_s),
-            t.shared_bytes as f64 / (1u64 << 20) as f64
-        );
-    }
-    for (kind, list) in [("neutral", &t.neutrals), ("hole", &t.holes)] {
-        for h in list {
-            println!(
-                "  {kind:<7} {:<12} {:>4} fn {:>8.2} s wall {:>8} CPU-s {:>4} iterations",
-                h.label,
-                h.n_basis,
-                h.seconds,
-                secs(h.cpu_seconds),
-                h.iterations
-            );
-        }
-    }
+    print!("{}", timings_text(t));
     for l in &r.result.core_levels {
         println!(
             "  {:<8} ΔSCF {:>8.3} eV  ⟨S²⟩ {:.3}  start {}{}",
@@ -335,4 +386,52 @@ pub fn bench(a: BenchArgs) -> Result<()> {
         );
     }
     Ok(())
+}
+
+/// Parse an atom list "1,3,5" or "2-4,7" (1-based) into 0-based indices.
+pub fn parse_atom_list(text: &str) -> Result<Vec<usize>> {
+    let mut out = Vec::new();
+    for part in text.split(',').map(str::trim).filter(|p| !p.is_empty()) {
+        let parse = |t: &str| -> Result<usize> {
+            let v: usize = t.trim().parse().map_err(|_| {
+                Error::input(format!(
+                    "--atoms: '{t}' is not an atom number (atoms are numbered from 1)"
+                ))
+            })?;
+            if v == 0 {
+                return Err(Error::input("--atoms: atoms are numbered from 1, not 0"));
+            }
+            Ok(v - 1)
+        };
+        if let Some((a, b)) = part.split_once('-') {
+            let (a, b) = (parse(a)?, parse(b)?);
+            if b < a {
+                return Err(Error::input(format!(
+                    "--atoms: range '{part}' runs backwards"
+                )));
+            }
+            out.extend(a..=b);
+        } else {
+            out.push(parse(part)?);
+        }
+    }
+    if out.is_empty() {
+        return Err(Error::input("--atoms: no atom numbers given"));
+    }
+    Ok(out)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn atom_lists_parse_from_one() {
+        assert_eq!(parse_atom_list("1,3, 5").unwrap(), vec![0, 2, 4]);
+        assert_eq!(parse_atom_list("2-4,7").unwrap(), vec![1, 2, 3, 6]);
+        assert!(parse_atom_list("0").is_err());
+        assert!(parse_atom_list("x").is_err());
+        assert!(parse_atom_list("4-2").is_err());
+        assert!(parse_atom_list("").is_err());
+    }
 }

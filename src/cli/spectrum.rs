@@ -148,7 +148,7 @@ pub fn check_output_dir(path: Option<&Path>) -> Result<()> {
 /// Predicted bands of one molecule for a region, and the name of the method used.
 ///
 /// Valence: `ionization::valence::predict` with `--method` (default: the module's default
-/// for the molecule, EP2 for closed shells). Core: `ionization::core::predict` by ΔSCF
+/// for the molecule, EP2 for closed shells). Core: `core_level::predict` by ΔSCF
 /// (`--method dscf`, default) or ΔMP2 (`--method dmp2`), for every heavy atom or the atoms
 /// of one element (`element`).
 pub fn predict_bands(
@@ -176,7 +176,7 @@ pub fn predict_bands(
             Ok((r.bands, m.name().to_string()))
         }
         Region::Core => {
-            use bandcast::ionization::core::{predict, CoreOptions, TargetSelection};
+            use bandcast::core_level::{predict, CoreOptions, TargetSelection};
             let mut opts = CoreOptions::default();
             match method.map(|m| m.to_ascii_lowercase()) {
                 None => {}
@@ -192,7 +192,8 @@ pub fn predict_bands(
                 opts.targets = TargetSelection::Element(z);
             }
             opts.thorough = !quick;
-            let r = predict(mol, basis, &opts)?;
+            let set = bandcast::basis::load(basis, mol, None)?;
+            let r = predict(mol, &set, &opts)?;
             let name = if opts.mp2 { "dmp2" } else { "dscf" };
             Ok((r.bands(), name.to_string()))
         }

@@ -6,12 +6,11 @@
 //!   `uncertainty`: which band pairs may be in the wrong order.
 //! - `valence`: the entry point, `valence::predict`. `frozen_core`: core orbital counts.
 //! - `bench`: the `bandcast bench ep2` workload.
-//! - `core`: core-level (1s) binding energies and shifts, ΔSCF with localised holes.
+//! Core levels (1s holes) live in `crate::core_level`.
 pub mod annotate;
 pub mod band;
 pub mod bands;
 pub mod bench;
-pub mod core;
 pub mod dscf;
 pub mod ep2;
 pub mod frozen_core;

@@ -1,7 +1,7 @@
 //! Predicted photoelectron spectra and comparison with measured ones.
 //!
 //! Prediction: `photon` (sources, BE ↔ KE) → `predicted` (which bands, how intense:
-//! `cross_section` for the Gelius model, `lifetime` for core-hole widths) → `broaden`
+//! `cross_section` for the Gelius model, `core_level::lifetime` for core-hole widths) → `broaden`
 //! (line shapes from `lineshape`, Voigt through `faddeeva`); `mixture` weights several
 //! molecules.
 //!
@@ -16,7 +16,6 @@ pub mod compare;
 pub mod cross_section;
 pub mod faddeeva;
 pub mod hungarian;
-pub mod lifetime;
 pub mod lineshape;
 pub mod measured;
 pub mod mixture;

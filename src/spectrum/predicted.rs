@@ -4,7 +4,7 @@
 use serde::Serialize;
 
 use super::cross_section::gelius_intensity;
-use super::lifetime::k_level_fwhm_ev;
+use crate::core_level::lifetime::lifetime_fwhm_ev;
 use super::photon::Photon;
 use crate::chem::elements::parse_element;
 use crate::ionization::{Band, Region};
@@ -129,7 +129,7 @@ pub fn sticks_from_bands(
             Region::Valence => 0.0,
             Region::Core => b
                 .lifetime_fwhm_ev
-                .or_else(|| core_z(b).and_then(k_level_fwhm_ev))
+                .or_else(|| core_z(b).and_then(lifetime_fwhm_ev))
                 .unwrap_or(0.0),
         };
         sticks.push(Stick {

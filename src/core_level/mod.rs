@@ -8,6 +8,18 @@
 //! and the lowest state that still holds the hole is kept (`cation.rs`); failures are
 //! detected (`hole_check.rs`) and reported as errors, never as numbers.
 //!
+//! The caller gives the molecule and its `BasisSet`; each hole's basis is derived from it.
+//! The run is four stages, one file each, driven by `predict.rs`:
+//!
+//! | stage | file | what |
+//! |---|---|---|
+//! | 1 | plan.rs | targets, symmetry-equivalent holes, units of work (basis + holes) |
+//! | 2 | neutrals.rs | each unit's basis, SCF context and neutral (shared quartets) |
+//! | 3 | holes.rs | each hole: localise, SCF starts, best held state, ΔMP2 |
+//! | 4 | assemble.rs | symmetry copies, shifts, relativistic correction, notes |
+//!
+//! Helpers of the stages:
+//!
 //! | file | idea |
 //! |---|---|
 //! | options.rs | what a run is asked to do |
@@ -18,28 +30,30 @@
 //! | localize.rs | the localised 1s hole |
 //! | delocalised.rs | the symmetry-constrained (delocalised) hole, for comparison |
 //! | hole_check.rs | escaped / collapsed / spin-contaminated verdicts |
-//! | lifetime.rs | natural widths of 1s holes where known |
+//! | lifetime.rs | natural widths of 1s holes where known (the one table) |
 //! | result.rs | result records and conversion to bands |
+//! | notes.rs | typed notes (code + message) |
 //! | carry_over.rs | the neutral orbitals carried from one hole's basis to the next |
 //! | cation.rs | the SCF starts for one hole (MOM, IMOM, ROHF) |
-//! | predict.rs | the driver (`predict`) |
 //! | shared_eri.rs | integrals shared by the bases of different holes |
-//! | ovov.rs | (ia\|jb) integrals for MP2 |
-//! | mp2.rs | RMP2 / UMP2 energies for ΔMP2 |
 //! | relativistic.rs | the optional relativistic correction of 1s levels |
-//! | bench.rs | the `bandcast bench core` workload |
-pub mod bench;
+//!
+//! ΔMP2 uses `correlation::mp2::mp2_energy`; the benchmark workload is
+//! `bench::core_level`.
+pub mod assemble;
 pub mod carry_over;
 pub mod cation;
 pub mod delocalised;
 pub mod equivalence;
 pub mod flexibility;
 pub mod hole_check;
+pub mod holes;
 pub mod lifetime;
 pub mod localize;
-pub mod mp2;
+pub mod neutrals;
+pub mod notes;
 pub mod options;
-pub mod ovov;
+pub mod plan;
 pub mod population;
 pub mod predict;
 pub mod relativistic;
@@ -48,7 +62,9 @@ pub mod shared_eri;
 pub mod targets;
 
 pub use hole_check::HoleStatus;
-pub use options::{CoreBasis, CoreOptions, ShiftReference, TargetSelection};
+pub use neutrals::memory_budget_bytes;
+pub use notes::{CoreNote, Notes};
+pub use options::{CoreBasis, CoreOptions, ReferenceMolecule, ShiftReference, TargetSelection};
 pub use predict::{predict, predict_with_progress};
 pub use result::{
     CoreLevel, CoreResult, CoreTimings, HoleAttempt, ShiftReferenceLevel, StageTiming,

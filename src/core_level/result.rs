@@ -1,5 +1,5 @@
 //! What a core-level run returns: one record per ionised atom, plus how each hole was
-//! searched for. Plain data; printers (text, JSON) live in the CLI, bands for the spectrum
+//! searched for. Plain data; the text printer lives in the CLI, JSON is serde of these, bands for the spectrum
 //! module come from `CoreResult::bands`.
 
 use serde::Serialize;
@@ -8,6 +8,7 @@ use crate::ionization::band::{Band, MakeupEntry, Region};
 
 use super::delocalised::DelocalisedHole;
 use super::hole_check::HoleStatus;
+use super::notes::Notes;
 
 /// One SCF search for the core-ionised state of one atom.
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -76,7 +77,9 @@ pub struct CoreLevel {
     /// The delocalised (symmetry-constrained) hole, when asked and the atom has equivalent
     /// partners; null otherwise.
     pub delocalised: Option<DelocalisedHole>,
-    pub notes: Vec<String>,
+    /// JSON: `notes` (messages) and `note_details` (`{code, message}`).
+    #[serde(flatten)]
+    pub notes: Notes,
 }
 
 /// The reference a shift is measured from.
@@ -112,7 +115,9 @@ pub struct CoreResult {
     pub references: Vec<ShiftReferenceLevel>,
     /// Source of the relativistic correction when it was applied, else null.
     pub relativistic_source: Option<String>,
-    pub notes: Vec<String>,
+    /// JSON: `notes` (messages) and `note_details` (`{code, message}`).
+    #[serde(flatten)]
+    pub notes: Notes,
     /// Where the time went (not part of the JSON output: it differs from run to run).
     #[serde(skip)]
     pub timings: CoreTimings,
@@ -217,7 +222,7 @@ mod tests {
             n_basis: 10,
             same_as_atom: None,
             delocalised: None,
-            notes: vec![],
+            notes: Notes::default(),
         }
     }
 
@@ -233,7 +238,7 @@ mod tests {
             core_levels: vec![level(2, 290.5, None), level(3, 291.0, Some(291.3))],
             references: vec![],
             relativistic_source: None,
-            notes: vec![],
+            notes: Notes::default(),
             timings: CoreTimings::default(),
         };
         let b: Vec<Band> = (&r).into();

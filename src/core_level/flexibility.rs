@@ -13,7 +13,11 @@
 //! Both the neutral and the cation use the same transformed basis, so ΔSCF compares like
 //! with like.
 
-use crate::basis::{BasisSet, Shell};
+use crate::basis::{self, BasisSet, Shell};
+use crate::chem::Molecule;
+use crate::error::Result;
+
+use super::options::CoreBasis;
 
 /// Relative tolerance under which two exponents count as the same primitive.
 const SAME_EXPONENT: f64 = 1e-10;
@@ -106,6 +110,35 @@ pub fn replace_atoms(basis: &BasisSet, donor: &BasisSet, atoms: &[usize]) -> Bas
         ),
         shells,
     )
+}
+
+/// The basis `plain` with the core flexibility `core` on `hole_atoms`. A named donor set is
+/// loaded for the hole atoms only (it may lack other elements, e.g. a core-valence set
+/// without hydrogen) and its shells are put back on their atoms.
+pub fn flexible_basis(
+    plain: &BasisSet,
+    mol: &Molecule,
+    hole_atoms: &[usize],
+    core: &CoreBasis,
+) -> Result<BasisSet> {
+    Ok(match core {
+        CoreBasis::Plain => plain.clone(),
+        CoreBasis::Uncontract => uncontract(plain, hole_atoms, 0),
+        CoreBasis::UncontractSp => uncontract(plain, hole_atoms, 1),
+        CoreBasis::Named(name) => {
+            let sub = Molecule {
+                atoms: hole_atoms.iter().map(|&a| mol.atoms[a].clone()).collect(),
+                charge: 0,
+                multiplicity: 1,
+                name: mol.name.clone(),
+            };
+            let mut donor = basis::load(name, &sub, None)?;
+            for sh in &mut donor.shells {
+                sh.atom = hole_atoms[sh.atom];
+            }
+            replace_atoms(plain, &donor, hole_atoms)
+        }
+    })
 }
 
 #[cfg(test)]

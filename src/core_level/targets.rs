@@ -78,39 +78,6 @@ pub fn check_core_atom(mol: &Molecule, i: usize) -> Result<()> {
     Ok(())
 }
 
-/// Parse an atom list "1,3,5" or "2-4,7" (1-based) into 0-based indices.
-pub fn parse_atom_list(text: &str) -> Result<Vec<usize>> {
-    let mut out = Vec::new();
-    for part in text.split(',').map(str::trim).filter(|p| !p.is_empty()) {
-        let parse = |t: &str| -> Result<usize> {
-            let v: usize = t.trim().parse().map_err(|_| {
-                Error::input(format!(
-                    "--atoms: '{t}' is not an atom number (atoms are numbered from 1)"
-                ))
-            })?;
-            if v == 0 {
-                return Err(Error::input("--atoms: atoms are numbered from 1, not 0"));
-            }
-            Ok(v - 1)
-        };
-        if let Some((a, b)) = part.split_once('-') {
-            let (a, b) = (parse(a)?, parse(b)?);
-            if b < a {
-                return Err(Error::input(format!(
-                    "--atoms: range '{part}' runs backwards"
-                )));
-            }
-            out.extend(a..=b);
-        } else {
-            out.push(parse(part)?);
-        }
-    }
-    if out.is_empty() {
-        return Err(Error::input("--atoms: no atom numbers given"));
-    }
-    Ok(out)
-}
-
 /// Label of an atom as printed: symbol and 1-based index ("C2").
 pub fn atom_label(mol: &Molecule, i: usize) -> String {
     format!("{}{}", symbol(mol.atoms[i].z), i + 1)
@@ -162,15 +129,5 @@ mod tests {
         assert!(e.to_string().contains("N is not in the molecule"), "{e}");
         let e = resolve_targets(&m, &TargetSelection::Atoms(vec![3])).unwrap_err();
         assert!(e.to_string().contains("atom 4 is H"), "{e}");
-    }
-
-    #[test]
-    fn atom_lists_parse_from_one() {
-        assert_eq!(parse_atom_list("1,3, 5").unwrap(), vec![0, 2, 4]);
-        assert_eq!(parse_atom_list("2-4,7").unwrap(), vec![1, 2, 3, 6]);
-        assert!(parse_atom_list("0").is_err());
-        assert!(parse_atom_list("x").is_err());
-        assert!(parse_atom_list("4-2").is_err());
-        assert!(parse_atom_list("").is_err());
     }
 }

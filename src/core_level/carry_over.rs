@@ -52,7 +52,7 @@ mod tests {
     use super::*;
     use crate::basis;
     use crate::chem::xyz::{parse_xyz, LengthUnit};
-    use crate::ionization::core::flexibility::uncontract;
+    use crate::core_level::flexibility::uncontract;
     use crate::scf::{self, Guess, ScfOptions};
 
     #[test]

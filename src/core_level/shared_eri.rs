@@ -168,7 +168,7 @@ mod tests {
     use super::*;
     use crate::basis;
     use crate::chem::xyz::{parse_xyz, LengthUnit};
-    use crate::ionization::core::flexibility::uncontract;
+    use crate::core_level::flexibility::uncontract;
 
     #[test]
     fn copied_blocks_equal_computed_ones() {

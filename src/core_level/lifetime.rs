@@ -1,14 +1,16 @@
-//! Lorentzian lifetime widths (FWHM, eV) of 1s core holes, used when a core band does not
-//! carry its own width (`Band::lifetime_fwhm_ev`).
+//! Natural (Auger + radiative) lifetime widths of 1s holes, Lorentzian FWHM in eV, where a
+//! value is known to the project; others are left unknown (None) rather than guessed. The
+//! one table of these widths: core levels carry it on each level, and the spectrum uses it
+//! for core bands that do not carry their own.
 //!
 //! Values **from memory**, not re-read: the K-level widths of J. L. Campbell & T. Papp,
 //! "Widths of the atomic K–N7 levels", At. Data Nucl. Data Tables 77 (2001) 1, and the
 //! gas-phase molecular values of high-resolution core-level photoemission (C 1s of CH4 near
-//! 0.1 eV is quoted widely). Treat each as ±20 %. Light-element 1s holes decay almost only
-//! by Auger emission, so the width grows smoothly with Z (common practice).
+//! 0.1 eV is quoted widely; common practice). Treat each as ±20 %. Light-element 1s holes
+//! decay almost only by Auger emission, so the width grows smoothly with Z (common practice).
 
-/// 1s lifetime FWHM (eV) for element `z`, None when not tabulated.
-pub fn k_level_fwhm_ev(z: u32) -> Option<f64> {
+/// Lifetime FWHM (eV) of a 1s hole on element `z`, None when not tabulated.
+pub fn lifetime_fwhm_ev(z: u32) -> Option<f64> {
     match z {
         3 => Some(0.03),  // Li, from memory
         4 => Some(0.04),  // Be, from memory

@@ -1,7 +1,7 @@
 //! What a core-level run is asked to do: which atoms, against which reference, with what
 //! core flexibility, and which extras (ΔMP2).
 
-use crate::basis::Harmonics;
+use crate::basis::BasisSet;
 use crate::chem::Molecule;
 
 /// Which atoms get a 1s hole.
@@ -22,9 +22,26 @@ pub enum ShiftReference {
     #[default]
     None,
     /// A separate molecule: the first atom of each target's element is ionised there.
-    Molecule(Box<Molecule>),
+    Molecule(Box<ReferenceMolecule>),
     /// Another atom (0-based) of the same molecule, same element as the targets.
     Atom(usize),
+}
+
+/// A reference molecule for shifts, with the basis set it is computed in (normally the
+/// same set as the molecule's, put on the reference molecule).
+#[derive(Debug, Clone)]
+pub struct ReferenceMolecule {
+    pub molecule: Molecule,
+    pub basis: BasisSet,
+}
+
+impl PartialEq for ReferenceMolecule {
+    /// Same molecule, and a basis of the same name with the same shells.
+    fn eq(&self, other: &Self) -> bool {
+        self.molecule == other.molecule
+            && self.basis.name == other.basis.name
+            && self.basis.shells == other.basis.shells
+    }
 }
 
 /// Extra flexibility given to the hole atoms' basis functions (see `flexibility.rs`).
@@ -44,7 +61,7 @@ pub enum CoreBasis {
 }
 
 impl CoreBasis {
-    /// Parse the `--core-basis` value: plain | uncontract | uncontract-sp | a set name.
+    /// Parse a core-basis name: plain | uncontract | uncontract-sp | a set name.
     pub fn parse(text: &str) -> CoreBasis {
         match text.trim().to_ascii_lowercase().as_str() {
             "plain" => CoreBasis::Plain,
@@ -79,8 +96,6 @@ pub struct CoreOptions {
     /// hole; when false the first start that holds the hole is used (faster, may keep a
     /// higher state: README "bandcast core" shows by how much).
     pub thorough: bool,
-    /// Harmonics override for the main basis (None: each set's published convention).
-    pub harmonics: Option<Harmonics>,
     /// Compute one atom of each class of symmetry-equivalent hole atoms and give the others
     /// its numbers (`equivalence.rs`); false runs an SCF for every atom.
     pub use_symmetry: bool,
@@ -102,7 +117,6 @@ impl Default for CoreOptions {
             localise: true,
             mp2: false,
             thorough: true,
-            harmonics: None,
             use_symmetry: true,
             relativistic: false,
             delocalised: false,
