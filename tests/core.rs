@@ -388,7 +388,14 @@ fn old_option_spellings_still_work_with_a_note() {
     let out = bandcast()
         .args(["core"])
         .arg(gw100("water"))
-        .args(["--basis", "sto-3g", "--quick", "--reference-atom", "1", "--mp2"])
+        .args([
+            "--basis",
+            "sto-3g",
+            "--quick",
+            "--reference-atom",
+            "1",
+            "--mp2",
+        ])
         .output()
         .unwrap();
     assert_eq!(out.status.code(), Some(0));

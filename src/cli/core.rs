@@ -43,7 +43,12 @@ pub struct Args {
     #[arg(long = "reference", value_name = "FILE.xyz", hide = true, conflicts_with_all = ["shift_from", "shift_from_atom", "old_reference_atom"])]
     pub old_reference: Option<PathBuf>,
     /// Old spelling of --shift-from-atom (kept for one release).
-    #[arg(long = "reference-atom", value_name = "N", hide = true, conflicts_with = "shift_from_atom")]
+    #[arg(
+        long = "reference-atom",
+        value_name = "N",
+        hide = true,
+        conflicts_with = "shift_from_atom"
+    )]
     pub old_reference_atom: Option<usize>,
     /// Core flexibility on the hole atoms: plain, uncontract (split the s shells into
     /// primitives), uncontract-sp (s and p; default), or the name of a set whose functions

@@ -278,9 +278,7 @@ fn dmp2_ev(
     match uhf.and_then(|s| s.wf.as_ref()) {
         Some(u) => {
             let e2c = mp2_energy(ctx.basis, u)?;
-            Ok(Some(ev(
-                u.energy + e2c - ctx.neutral.energy - neutral_mp2,
-            )))
+            Ok(Some(ev(u.energy + e2c - ctx.neutral.energy - neutral_mp2)))
         }
         None => {
             notes.push(CoreNote::NoUhfForMp2);

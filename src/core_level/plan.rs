@@ -196,6 +196,9 @@ mod tests {
         let mut m = ethanol();
         m.charge = 1;
         m.multiplicity = 2;
-        assert_eq!(plan(&m, &CoreOptions::default()).unwrap_err().exit_code(), 2);
+        assert_eq!(
+            plan(&m, &CoreOptions::default()).unwrap_err().exit_code(),
+            2
+        );
     }
 }

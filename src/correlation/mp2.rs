@@ -88,7 +88,9 @@ pub fn mp2_energy(basis: &BasisSet, wf: &Wavefunction) -> Result<f64> {
     if wf.reference == Reference::Rhf {
         let blocks = [BlockSpec::new(&ca_o, &ca_v, &ca_o, &ca_v)];
         check_budget(basis, &blocks, MP2_MEMORY_BYTES)?;
-        let g = mo_eri_blocks(&engine, basis, &blocks).pop().expect("one block");
+        let g = mo_eri_blocks(&engine, basis, &blocks)
+            .pop()
+            .expect("one block");
         return closed_shell(&g, &ea_o, &ea_v);
     }
     let (ob, vb) = split(&wf.occ_beta);

@@ -6,6 +6,7 @@
 //!   `uncertainty`: which band pairs may be in the wrong order.
 //! - `valence`: the entry point, `valence::predict`. `frozen_core`: core orbital counts.
 //! - `bench`: the `bandcast bench ep2` workload.
+//!
 //! Core levels (1s holes) live in `crate::core_level`.
 pub mod annotate;
 pub mod band;

@@ -4,9 +4,9 @@
 use serde::Serialize;
 
 use super::cross_section::gelius_intensity;
-use crate::core_level::lifetime::lifetime_fwhm_ev;
 use super::photon::Photon;
 use crate::chem::elements::parse_element;
+use crate::core_level::lifetime::lifetime_fwhm_ev;
 use crate::ionization::{Band, Region};
 
 /// How band intensities are set.
