@@ -17,8 +17,7 @@ use bandcast::spectrum::photon::{Axis, Photon};
 use bandcast::{Error, Result};
 
 use super::common::{
-    check_fwhm, check_output_dir, parse_axis, parse_photon, print_json, MoleculeArgs,
-    PredictArgs,
+    check_fwhm, check_output_dir, parse_axis, parse_photon, print_json, MoleculeArgs, PredictArgs,
 };
 
 #[derive(clap::Args, Debug)]

@@ -19,8 +19,8 @@ use bandcast::spectrum::predicted::IntensityModel;
 use bandcast::Result;
 
 use super::common::{
-    check_fwhm, check_output_dir, parse_axis, parse_photon, parse_window, print_json,
-    PredictArgs, StateArgs,
+    check_fwhm, check_output_dir, parse_axis, parse_photon, parse_window, print_json, PredictArgs,
+    StateArgs,
 };
 
 #[derive(clap::Args, Debug)]

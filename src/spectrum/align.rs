@@ -13,8 +13,8 @@
 
 use serde::Serialize;
 
-use super::note::Note;
 use super::assign::{match_lines, Alignment, MatchOptions, Matching, PredictedLine};
+use super::note::Note;
 
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct AlignOptions {

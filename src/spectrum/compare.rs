@@ -108,13 +108,11 @@ pub fn compare(
     let peaks = find_peaks(x, &signal, opt.min_prominence);
     let mut notes = Vec::new();
     if peaks.is_empty() {
-        return Err(Error::computation(
-            format!(
-                "no peaks found in the measured spectrum at a minimum prominence of {} % of \
+        return Err(Error::computation(format!(
+            "no peaks found in the measured spectrum at a minimum prominence of {} % of \
                  its range; a lower minimum prominence may find some",
-                100.0 * opt.min_prominence
-            ),
-        ));
+            100.0 * opt.min_prominence
+        )));
     }
     let groups = merge_close(lines, opt.merge_tol_ev);
     if groups.is_empty() {
