@@ -220,3 +220,18 @@ pub fn print_json<T: serde::Serialize>(value: &T) -> Result<()> {
     println!("{}", bandcast::report::json::to_pretty(value)?);
     Ok(())
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn window_is_lo_hi_or_hi() {
+        assert_eq!(parse_window("284:296"), Ok((284.0, 296.0)));
+        // `--window HI` means 0:HI (RULES.md option vocabulary)
+        assert_eq!(parse_window("21.2"), Ok((0.0, 21.2)));
+        assert!(parse_window("296:284").is_err());
+        assert!(parse_window("a:3").is_err());
+        assert!(parse_window("0").is_err());
+    }
+}

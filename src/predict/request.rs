@@ -98,3 +98,26 @@ impl<'a> Request<'a> {
             .unwrap_or_else(crate::scf::options::default_memory_budget)
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn method_names_by_region() {
+        assert_eq!(
+            MethodChoice::parse(Region::Valence, None).unwrap(),
+            MethodChoice::Default
+        );
+        assert_eq!(
+            MethodChoice::parse(Region::Valence, Some("eom-ccsd")).unwrap(),
+            MethodChoice::Valence(Method::EomCcsd)
+        );
+        assert_eq!(
+            MethodChoice::parse(Region::Core, Some("DMP2")).unwrap(),
+            MethodChoice::Core(CoreMethod::Dmp2)
+        );
+        assert!(MethodChoice::parse(Region::Core, Some("ep2")).is_err());
+        assert!(MethodChoice::parse(Region::Valence, Some("dmp2")).is_err());
+    }
+}
