@@ -1,7 +1,8 @@
 //! bandcast: photoelectron spectra from first principles.
 //!
 //! Data flow: Molecule + BasisSet → integrals → SCF Wavefunction → analysis (symmetry,
-//! populations) and ionization methods → Bands → spectrum, assignment, printers.
+//! populations) and ionization methods → Bands (one request path: `predict`) → spectrum,
+//! assignment, printers.
 //! Everything below `cli` and `report` is plain functions on plain data, in atomic units.
 
 pub mod analysis;
@@ -13,6 +14,7 @@ pub mod correlation;
 pub mod error;
 pub mod integrals;
 pub mod ionization;
+pub mod predict;
 pub mod report;
 pub mod scf;
 pub mod spectrum;

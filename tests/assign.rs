@@ -176,20 +176,19 @@ fn shift_and_scale_are_recovered() {
     }
 }
 
-/// Valence bands of a molecule predicted by bandcast itself (default method, small basis),
-/// as lines for the comparison (He I reach, occupation × degeneracy × pole strength).
+/// Valence bands of a molecule predicted by bandcast itself through the request path every
+/// command uses (default method: the ionize rule, small basis), as lines for the comparison
+/// (He I reach, occupation × degeneracy × pole strength or one-hole weight).
 fn predicted_lines(xyz: &str, basis: &str) -> Vec<PredictedLine> {
     use bandcast::chem::xyz::{parse_xyz, LengthUnit};
-    use bandcast::ionization::valence::{default_method, predict, ValenceOptions};
+    use bandcast::ionization::Region;
+    use bandcast::predict::{predict, Request};
     use bandcast::spectrum::predicted::{sticks_from_bands, IntensityModel, StickOptions};
     use bandcast::spectrum::Photon;
     let mol = parse_xyz(xyz, LengthUnit::Angstrom).unwrap();
     let set = bandcast::basis::load(basis, &mol, None).unwrap();
-    let opts = ValenceOptions {
-        method: default_method(&mol),
-        ..ValenceOptions::default()
-    };
-    let r = predict(&mol, &set, &opts).unwrap();
+    let r = predict(&Request::new(&mol, &set, Region::Valence), &|_| {}).unwrap();
+    assert!(r.method_defaulted);
     let mut notes = Vec::new();
     let (sticks, _) = sticks_from_bands(
         &r.bands,
@@ -331,6 +330,18 @@ fn assign_command_json_schema() {
         assert!(a.iter().all(|x| !x[key].is_null()), "{key}");
     }
     assert_eq!(a[0]["label"], "1b1");
+    // The molecule is named by its file stem; the method follows the ionize default rule
+    // (eom-ccsd up to 300 basis functions; water/cc-pVDZ has 24) and a note says so.
+    assert_eq!(v["molecule"], "water");
+    assert_eq!(v["method"], "eom-ccsd");
+    let codes: Vec<&str> = v["note_details"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|n| n["code"].as_str().unwrap())
+        .collect();
+    assert!(codes.contains(&"default_method_chosen"), "{codes:?}");
+    assert_eq!(v["notes"].as_array().unwrap().len(), codes.len());
     let page = std::fs::read_to_string(&html).unwrap();
     assert!(page.contains("<svg") && page.contains("1b1"));
     // self-contained: nothing loaded from elsewhere, no scripts

@@ -3,8 +3,10 @@
 
 use bandcast::ionization::{Band, MakeupEntry, Region};
 use bandcast::spectrum::broaden::{auto_grid, broaden};
+use bandcast::spectrum::build::{build_spectrum, Component, SpectrumOptions};
 use bandcast::spectrum::faddeeva::{dawson, faddeeva, Complex};
 use bandcast::spectrum::lineshape::{gaussian, lorentzian, voigt};
+use bandcast::spectrum::note::Note;
 use bandcast::spectrum::photon::{Axis, Photon};
 use bandcast::spectrum::predicted::{sticks_from_bands, IntensityModel, StickOptions};
 use bandcast::spectrum::Shape;
@@ -154,6 +156,33 @@ fn unreachable_bands_are_left_out_and_said() {
     assert_eq!(s.len(), 1);
     assert_eq!(e.len(), 1);
     assert!(e[0].reason.contains("above the photon energy"));
+    // The built spectrum says so with a typed note (He I: 21.218 eV, common practice).
+    let built = build_spectrum(
+        &[Component {
+            bands: &bands,
+            weight: 1.0,
+            name: "water".into(),
+        }],
+        &SpectrumOptions {
+            photon: Photon::He1,
+            region: Region::Valence,
+            axis: Axis::Binding,
+            fwhm_ev: None,
+            shape: None,
+            intensity: IntensityModel::Occupation,
+            window: None,
+        },
+    )
+    .unwrap();
+    assert_eq!(built.sticks.len(), 1);
+    assert_eq!(
+        built.notes,
+        vec![Note::BandsAbovePhoton {
+            count: 1,
+            photon_ev: Photon::He1.energy_ev()
+        }]
+    );
+    assert_eq!(built.notes[0].code(), "bands_above_photon");
 }
 
 #[test]
@@ -188,7 +217,7 @@ fn mixture_is_the_weighted_sum() {
     let a = vec![band("a", 12.0, &[], Region::Valence)];
     let b = vec![band("b", 15.0, &[], Region::Valence)];
     let mut notes = Vec::new();
-    let mk = |bands: &[Band], w: f64, k: usize, notes: &mut Vec<String>| {
+    let mk = |bands: &[Band], w: f64, k: usize, notes: &mut Vec<Note>| {
         sticks_from_bands(
             bands,
             &StickOptions {
@@ -219,6 +248,36 @@ fn mixture_is_the_weighted_sum() {
     for i in 0..c.total.len() {
         assert!((c.total[i] - c.components[0][i] - c.components[1][i]).abs() < 1e-15);
     }
+    // The same through the spectrum builder the command uses: areas 0.3·2 and 0.7·2.
+    let built = build_spectrum(
+        &[
+            Component {
+                bands: &a,
+                weight: 0.3,
+                name: "a".into(),
+            },
+            Component {
+                bands: &b,
+                weight: 0.7,
+                name: "b".into(),
+            },
+        ],
+        &SpectrumOptions {
+            photon: Photon::He1,
+            region: Region::Valence,
+            axis: Axis::Binding,
+            fwhm_ev: Some(0.3),
+            shape: Some(Shape::Gaussian),
+            intensity: IntensityModel::Occupation,
+            window: None,
+        },
+    )
+    .unwrap();
+    let step = built.curve.energy_ev[1] - built.curve.energy_ev[0];
+    let area0: f64 = built.curve.components[0].iter().sum::<f64>() * step;
+    let area1: f64 = built.curve.components[1].iter().sum::<f64>() * step;
+    assert!((area0 - 0.6).abs() < 1e-6 && (area1 - 1.4).abs() < 1e-6);
+    assert_eq!(built.sticks[0].label, "a: a");
 }
 
 #[test]

@@ -25,12 +25,11 @@ pub fn read_xyz(path: &Path, unit: LengthUnit) -> Result<Molecule> {
         Error::Input { line, message, .. } => Error::input_at(path, line, message),
         other => other,
     })?;
-    if m.name.is_empty() {
-        m.name = path
-            .file_stem()
-            .map(|s| s.to_string_lossy().into_owned())
-            .unwrap_or_default();
-    }
+    // The molecule's name is the file stem in every command (the comment line stays text).
+    m.name = path
+        .file_stem()
+        .map(|s| s.to_string_lossy().into_owned())
+        .unwrap_or_default();
     Ok(m)
 }
 

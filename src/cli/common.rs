@@ -4,7 +4,10 @@ use std::path::{Path, PathBuf};
 
 use bandcast::chem::xyz::{read_xyz, LengthUnit};
 use bandcast::chem::Molecule;
-use bandcast::Result;
+use bandcast::ionization::Region;
+use bandcast::predict::{predict, MethodChoice, Prediction, Progress, Request, RequestOptions};
+use bandcast::spectrum::photon::{Axis, Photon};
+use bandcast::{Error, Result};
 
 /// The molecule: an XYZ file plus charge and multiplicity.
 #[derive(clap::Args, Debug, Clone)]
@@ -49,5 +52,186 @@ impl StateArgs {
 impl MoleculeArgs {
     pub fn load(&self) -> Result<Molecule> {
         self.state.load(&self.file)
+    }
+}
+
+/// What every command that predicts bands asks: basis, region, method and their options.
+/// The work is `bandcast::predict::predict`.
+#[derive(clap::Args, Debug, Clone)]
+pub struct PredictArgs {
+    /// Basis set (name from `bandcast basis` or a path).
+    #[arg(long, value_name = "NAME")]
+    pub basis: String,
+    /// Ionization method. Valence: koopmans | dscf | ep2 | eom-ccsd | eom-mp2 (default for
+    /// closed shells: the most accurate that fits — eom-ccsd up to 300 basis functions,
+    /// eom-mp2 up to 450, ep2 beyond, within --memory; dscf for open shells). Core: dscf
+    /// (default) | dmp2.
+    #[arg(long, value_name = "METHOD")]
+    pub method: Option<String>,
+    /// Valence bands (UPS) or core levels (XPS).
+    #[arg(long, value_name = "valence|core", default_value = "valence", value_parser = parse_region)]
+    pub region: Region,
+    /// Core levels of one element only, e.g. `--element C` (default: every heavy atom).
+    #[arg(long, value_name = "SYMBOL", value_parser = parse_element_arg)]
+    pub element: Option<u32>,
+    /// Core levels: keep the first SCF start that holds the hole (faster, less safe).
+    #[arg(long)]
+    pub quick: bool,
+    /// Memory in GiB for the valence correlated stages; it also decides the default method
+    /// (default: half of the machine's memory, at most three quarters of what is available).
+    #[arg(long, value_name = "GIB")]
+    pub memory: Option<f64>,
+    /// Say on stderr which method runs, its notes, and the core holes as they finish.
+    #[arg(long)]
+    pub verbose: bool,
+}
+
+impl PredictArgs {
+    /// Check the options that need no computation (before any work starts).
+    pub fn check(&self) -> Result<()> {
+        self.memory_bytes()?;
+        MethodChoice::parse(self.region, self.method.as_deref())?;
+        Ok(())
+    }
+
+    fn memory_bytes(&self) -> Result<Option<usize>> {
+        match self.memory {
+            Some(g) if !(g.is_finite() && g > 0.0) => Err(Error::input(format!(
+                "--memory {g}: the budget must be a positive number of GiB"
+            ))),
+            Some(g) => Ok(Some((g * (1u64 << 30) as f64) as usize)),
+            None => Ok(None),
+        }
+    }
+
+    /// Load the basis for `mol`, predict its bands, and (with --verbose) say on stderr what ran.
+    pub fn predict(&self, mol: &Molecule) -> Result<Prediction> {
+        let basis = bandcast::basis::load(&self.basis, mol, None)?;
+        let request = Request {
+            molecule: mol,
+            basis: &basis,
+            region: self.region,
+            method: MethodChoice::parse(self.region, self.method.as_deref())?,
+            options: RequestOptions {
+                element: self.element,
+                quick: self.quick,
+                memory_bytes: self.memory_bytes()?,
+                ..RequestOptions::default()
+            },
+        };
+        let verbose = self.verbose;
+        let started = std::time::Instant::now();
+        let p = predict(&request, &|event| {
+            if verbose {
+                match event {
+                    Progress::CoreHoles { done, total } => {
+                        eprintln!("{}: core hole {done} of {total} done", mol.name)
+                    }
+                }
+            }
+        })?;
+        if verbose {
+            eprintln!(
+                "{}: {} / {} ({} basis functions), {:.1} s",
+                mol.name,
+                p.method,
+                p.basis,
+                p.n_basis,
+                started.elapsed().as_secs_f64()
+            );
+            for n in &p.notes {
+                eprintln!("{}: note: {n}", mol.name);
+            }
+        }
+        Ok(p)
+    }
+}
+
+pub fn parse_region(s: &str) -> std::result::Result<Region, String> {
+    match s.to_ascii_lowercase().as_str() {
+        "valence" => Ok(Region::Valence),
+        "core" => Ok(Region::Core),
+        _ => Err(format!("'{s}' is not valence or core")),
+    }
+}
+
+pub fn parse_element_arg(s: &str) -> std::result::Result<u32, String> {
+    bandcast::chem::elements::parse_element(s)
+        .ok_or_else(|| format!("'{s}' is not an element symbol"))
+}
+
+pub fn parse_photon(s: &str) -> std::result::Result<Photon, String> {
+    Photon::parse(s)
+}
+
+pub fn parse_axis(s: &str) -> std::result::Result<Axis, String> {
+    Axis::parse(s).ok_or_else(|| format!("'{s}' is not binding or kinetic"))
+}
+
+/// `--window LO:HI` or `--window HI` (= 0:HI): an energy range in eV.
+pub fn parse_window(s: &str) -> std::result::Result<(f64, f64), String> {
+    let num = |t: &str| -> std::result::Result<f64, String> {
+        t.trim()
+            .parse::<f64>()
+            .map_err(|_| format!("'{t}' is not a number"))
+    };
+    let (lo, hi) = match s.split_once(':') {
+        Some((a, b)) => (num(a)?, num(b)?),
+        None => (0.0, num(s)?),
+    };
+    if !(lo.is_finite() && hi.is_finite() && hi > lo) {
+        return Err(format!(
+            "window '{s}' needs LO < HI (LO:HI, or HI for 0:HI, in eV)"
+        ));
+    }
+    Ok((lo, hi))
+}
+
+/// Check an instrument width given with --fwhm.
+pub fn check_fwhm(v: Option<f64>) -> Result<Option<f64>> {
+    match v {
+        Some(f) if !(f.is_finite() && f > 0.0 && f < 100.0) => Err(Error::input(format!(
+            "--fwhm {f}: a width must be a positive number of eV below 100"
+        ))),
+        other => Ok(other),
+    }
+}
+
+/// Refuse an output path whose folder does not exist before any computation starts.
+pub fn check_output_dir(path: Option<&Path>) -> Result<()> {
+    if let Some(p) = path {
+        let dir = p
+            .parent()
+            .filter(|d| !d.as_os_str().is_empty())
+            .unwrap_or(Path::new("."));
+        if !dir.is_dir() {
+            return Err(Error::input_at(
+                p,
+                None,
+                "the folder for this output file does not exist",
+            ));
+        }
+    }
+    Ok(())
+}
+
+/// Print a printer's JSON text on stdout.
+pub fn print_json<T: serde::Serialize>(value: &T) -> Result<()> {
+    println!("{}", bandcast::report::json::to_pretty(value)?);
+    Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn window_is_lo_hi_or_hi() {
+        assert_eq!(parse_window("284:296"), Ok((284.0, 296.0)));
+        // `--window HI` means 0:HI (RULES.md option vocabulary)
+        assert_eq!(parse_window("21.2"), Ok((0.0, 21.2)));
+        assert!(parse_window("296:284").is_err());
+        assert!(parse_window("a:3").is_err());
+        assert!(parse_window("0").is_err());
     }
 }

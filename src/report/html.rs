@@ -3,6 +3,8 @@
 
 use std::fmt::Write;
 
+use super::figures::overlay_plot;
+use super::runs::{region_name, AssignRun};
 use super::svg::escape;
 use crate::spectrum::compare::Comparison;
 
@@ -27,6 +29,26 @@ font-size:14px}.small{font-size:12.5px;color:#555}";
 /// Round to the printed 0.01 eV so that −0.004 prints as +0.00, not −0.00.
 pub fn tidy(v: f64) -> f64 {
     (v * 100.0).round() / 100.0 + 0.0
+}
+
+/// The report page of an assignment run (overlay plot included).
+pub fn assignment_page(run: &AssignRun) -> String {
+    let ctx = ReportContext {
+        molecule: run.molecule.clone(),
+        method: run.method.clone(),
+        basis: run.basis.clone(),
+        photon: run
+            .photon
+            .map(|p| p.name())
+            .unwrap_or_else(|| "not given".into()),
+        measured_file: match &run.measured_comment {
+            Some(c) => format!("{} — its header says: {c}", run.measured_file),
+            None => run.measured_file.clone(),
+        },
+        region: region_name(run.region).into(),
+    };
+    let plot = overlay_plot(run);
+    assignment_report(&ctx, &run.assignment.comparison, &plot.render())
 }
 
 /// The report page. `svg` is an inline SVG document (from `svg::Plot::render`).
@@ -101,7 +123,7 @@ pub fn assignment_report(ctx: &ReportContext, cmp: &Comparison, svg: &str) -> St
     if !cmp.notes.is_empty() {
         o.push_str("<ul class=\"small\">");
         for n in &cmp.notes {
-            let _ = write!(o, "<li>{}</li>", escape(n));
+            let _ = write!(o, "<li>{}</li>", escape(&n.to_string()));
         }
         o.push_str("</ul>\n");
     }

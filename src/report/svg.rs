@@ -97,12 +97,73 @@ fn fmt_tick(v: f64, step: f64) -> String {
     format!("{v:.decimals$}")
 }
 
+/// Where things go on the page: margins, the plot area, and the data ranges.
+struct Frame {
+    w: f64,
+    h: f64,
+    /// Left and top margins, plot-area width and height (px).
+    ml: f64,
+    mt: f64,
+    pw: f64,
+    ph: f64,
+    /// Horizontal data range shown.
+    x0: f64,
+    x1: f64,
+    /// Data value at the top of the plot area (room left above for the labels).
+    ytop: f64,
+    increase_left: bool,
+}
+
+impl Frame {
+    fn px(&self, x: f64) -> f64 {
+        let t = (x - self.x0) / (self.x1 - self.x0);
+        if self.increase_left {
+            self.ml + self.pw * (1.0 - t)
+        } else {
+            self.ml + self.pw * t
+        }
+    }
+    fn py(&self, y: f64) -> f64 {
+        self.mt + self.ph * (1.0 - y / self.ytop)
+    }
+    fn inside(&self, x: f64) -> bool {
+        x >= self.x0 && x <= self.x1
+    }
+}
+
+/// Labels of sticks drawn together: (label x px, highest stick, labels, colour).
+type LabelGroup = (f64, f64, Vec<String>, String);
+
 impl Plot {
     /// Render to a standalone SVG document (no external resources).
     pub fn render(&self) -> String {
+        let mut f = self.frame();
+        let vis = self.visible_sticks(&f);
+        let groups = label_groups(&f, &vis);
+        let label_x = label_positions(&groups);
+        // Room above the curves for the rotated labels (≈ 6 px per character at 10.5 px).
+        let longest = groups
+            .iter()
+            .map(|g| g.2.join(", ").chars().count())
+            .max()
+            .unwrap_or(0) as f64;
+        let room = ((6.0 * longest + 14.0) / f.ph).clamp(0.12, 0.6);
+        f.ytop = self.y_max(&f) / (1.0 - room);
+        let mut o = String::new();
+        self.header(&mut o, &f);
+        self.axes(&mut o, &f);
+        self.curves(&mut o, &f);
+        sticks(&mut o, &f, &vis);
+        self.stick_labels(&mut o, &f, &groups, &label_x);
+        self.legend(&mut o, &f);
+        o.push_str("</svg>\n");
+        o
+    }
+
+    /// Page geometry and the horizontal range (`x_range`, or all series and sticks).
+    fn frame(&self) -> Frame {
         let (w, h) = (self.width, self.height);
         let (ml, mr, mt, mb) = (60.0, 30.0, 64.0, 58.0);
-        let (pw, ph) = (w - ml - mr, h - mt - mb);
         let (x0, x1) = self.x_range.unwrap_or_else(|| {
             let mut lo = f64::INFINITY;
             let mut hi = f64::NEG_INFINITY;
@@ -124,10 +185,26 @@ impl Plot {
                 (lo - 1.0, hi + 1.0)
             }
         });
+        Frame {
+            w,
+            h,
+            ml,
+            mt,
+            pw: w - ml - mr,
+            ph: h - mt - mb,
+            x0,
+            x1,
+            ytop: 1.0,
+            increase_left: self.increase_left,
+        }
+    }
+
+    /// The largest value shown (curves inside the range, every stick); 1 when none is > 0.
+    fn y_max(&self, f: &Frame) -> f64 {
         let mut ymax: f64 = 0.0;
         for s in &self.series {
             for (&x, &y) in s.x.iter().zip(&s.y) {
-                if x >= x0 && x <= x1 {
+                if f.inside(x) {
                     ymax = ymax.max(y);
                 }
             }
@@ -138,61 +215,19 @@ impl Plot {
         if !(ymax > 0.0) {
             ymax = 1.0;
         }
-        let px = |x: f64| -> f64 {
-            let t = (x - x0) / (x1 - x0);
-            if self.increase_left {
-                ml + pw * (1.0 - t)
-            } else {
-                ml + pw * t
-            }
-        };
-        // Sticks in drawing order; labels of same-coloured sticks closer than 13 px are
-        // merged ("a, b"), labels of different colours are staggered sideways.
-        let mut vis: Vec<&StickMark> = self
-            .sticks
-            .iter()
-            .filter(|s| s.x >= x0 && s.x <= x1)
-            .collect();
-        vis.sort_by(|a, b| px(a.x).total_cmp(&px(b.x)));
-        // (label x px, highest stick, labels, colour)
-        let mut groups: Vec<(f64, f64, Vec<String>, String)> = Vec::new();
-        for s in &vis {
-            let x = px(s.x);
-            if let Some(g) = groups
-                .iter_mut()
-                .rev()
-                .take(4)
-                .find(|g| g.3 == s.color && (x - g.0).abs() < 13.0)
-            {
-                if !g.2.contains(&s.label) {
-                    g.2.push(s.label.clone());
-                }
-                g.1 = g.1.max(s.height);
-                continue;
-            }
-            groups.push((x, s.height, vec![s.label.clone()], s.color.clone()));
-        }
-        groups.retain(|g| g.2.iter().any(|l| !l.is_empty()));
-        groups.sort_by(|a, b| a.0.total_cmp(&b.0));
-        let mut label_x: Vec<f64> = Vec::with_capacity(groups.len());
-        for g in &groups {
-            let want = g.0 + 3.5;
-            let x = match label_x.last() {
-                Some(&prev) if want - prev < 12.0 => prev + 12.0,
-                _ => want,
-            };
-            label_x.push(x);
-        }
-        // Room above the curves for the rotated labels (≈ 6 px per character at 10.5 px).
-        let longest = groups
-            .iter()
-            .map(|g| g.2.join(", ").chars().count())
-            .max()
-            .unwrap_or(0) as f64;
-        let room = ((6.0 * longest + 14.0) / ph).clamp(0.12, 0.6);
-        let ytop = ymax / (1.0 - room);
-        let py = |y: f64| -> f64 { mt + ph * (1.0 - y / ytop) };
-        let mut o = String::new();
+        ymax
+    }
+
+    /// Sticks inside the range, in drawing order (left to right on the page).
+    fn visible_sticks(&self, f: &Frame) -> Vec<&StickMark> {
+        let mut vis: Vec<&StickMark> = self.sticks.iter().filter(|s| f.inside(s.x)).collect();
+        vis.sort_by(|a, b| f.px(a.x).total_cmp(&f.px(b.x)));
+        vis
+    }
+
+    /// Document start, background, title, subtitle and the clip region of the plot area.
+    fn header(&self, o: &mut String, f: &Frame) {
+        let (w, h, ml, mt, pw, ph) = (f.w, f.h, f.ml, f.mt, f.pw, f.ph);
         let _ = writeln!(
             o,
             r#"<svg xmlns="http://www.w3.org/2000/svg" width="{w}" height="{h}" viewBox="0 0 {w} {h}" font-family="Helvetica, Arial, sans-serif">"#
@@ -218,17 +253,21 @@ impl Plot {
             o,
             r#"<defs><clipPath id="plotarea"><rect x="{ml}" y="{mt}" width="{pw}" height="{ph}"/></clipPath></defs>"#
         );
-        // ticks and grid
-        let (ticks, step) = nice_ticks(x0, x1, 8);
+    }
+
+    /// Ticks, grid lines, both axes and their titles.
+    fn axes(&self, o: &mut String, f: &Frame) {
+        let (h, ml, mt, pw, ph) = (f.h, f.ml, f.mt, f.pw, f.ph);
+        let (ticks, step) = nice_ticks(f.x0, f.x1, 8);
         // minor ticks halfway (or a fifth of the way for 5 × 10^k steps)
         let minor = if (step / 10f64.powf(step.log10().floor()) - 5.0).abs() < 1e-9 {
             step / 5.0
         } else {
             step / 2.0
         };
-        let (mticks, _) = nice_ticks_step(x0, x1, minor);
+        let (mticks, _) = nice_ticks_step(f.x0, f.x1, minor);
         for t in &mticks {
-            let x = px(*t);
+            let x = f.px(*t);
             let _ = writeln!(
                 o,
                 r##"<line x1="{x:.1}" y1="{:.1}" x2="{x:.1}" y2="{:.1}" stroke="#333" stroke-width="0.8"/>"##,
@@ -237,7 +276,7 @@ impl Plot {
             );
         }
         for t in &ticks {
-            let x = px(*t);
+            let x = f.px(*t);
             let _ = writeln!(
                 o,
                 r##"<line x1="{x:.1}" y1="{mt}" x2="{x:.1}" y2="{:.1}" stroke="#eceef1" stroke-width="1"/>"##,
@@ -256,7 +295,6 @@ impl Plot {
                 fmt_tick(*t, step)
             );
         }
-        // axes
         let _ = writeln!(
             o,
             r##"<line x1="{ml}" y1="{:.1}" x2="{:.1}" y2="{:.1}" stroke="#333" stroke-width="1.2"/>"##,
@@ -285,20 +323,23 @@ impl Plot {
             mt + ph / 2.0,
             escape(&self.y_label)
         );
-        // curves
+    }
+
+    /// Every series as a path (with a light fill under it when asked).
+    fn curves(&self, o: &mut String, f: &Frame) {
         for s in &self.series {
             let mut d = String::new();
             let mut first = true;
             for (&x, &y) in s.x.iter().zip(&s.y) {
-                if x < x0 || x > x1 {
+                if !f.inside(x) {
                     continue;
                 }
                 let _ = write!(
                     d,
                     "{}{:.2},{:.2} ",
                     if first { "M" } else { "L" },
-                    px(x),
-                    py(y.max(0.0))
+                    f.px(x),
+                    f.py(y.max(0.0))
                 );
                 first = false;
             }
@@ -306,19 +347,15 @@ impl Plot {
                 continue;
             }
             if s.fill {
-                let xs: Vec<f64> =
-                    s.x.iter()
-                        .cloned()
-                        .filter(|&x| x >= x0 && x <= x1)
-                        .collect();
+                let xs: Vec<f64> = s.x.iter().cloned().filter(|&x| f.inside(x)).collect();
                 let (a, b) = (xs[0], xs[xs.len() - 1]);
                 let _ = writeln!(
                     o,
                     r#"<path d="{d}L{:.2},{:.2} L{:.2},{:.2} Z" fill="{}" fill-opacity="0.12" stroke="none" clip-path="url(#plotarea)"/>"#,
-                    px(b),
-                    py(0.0),
-                    px(a),
-                    py(0.0),
+                    f.px(b),
+                    f.py(0.0),
+                    f.px(a),
+                    f.py(0.0),
                     s.color
                 );
             }
@@ -333,28 +370,21 @@ impl Plot {
                 s.color, s.stroke_width
             );
         }
-        for s in &vis {
-            let x = px(s.x);
-            let _ = writeln!(
-                o,
-                r#"<line x1="{x:.2}" y1="{:.2}" x2="{x:.2}" y2="{:.2}" stroke="{}" stroke-width="1.6"/>"#,
-                py(0.0),
-                py(s.height),
-                s.color
-            );
-        }
-        for (g, &lx) in groups.iter().zip(&label_x) {
+    }
+
+    /// The rotated labels of the stick groups, above the sticks and every curve near them.
+    fn stick_labels(&self, o: &mut String, f: &Frame, groups: &[LabelGroup], label_x: &[f64]) {
+        for (g, &lx) in groups.iter().zip(label_x) {
             let text = g.2.join(", ");
-            // start the label above the sticks and every curve near this position
-            let mut top = py(g.1);
+            let mut top = f.py(g.1);
             for s in &self.series {
                 for (&sx, &sy) in s.x.iter().zip(&s.y) {
-                    if sx >= x0 && sx <= x1 && (px(sx) - lx).abs() < 6.0 {
-                        top = top.min(py(sy.max(0.0)));
+                    if f.inside(sx) && (f.px(sx) - lx).abs() < 6.0 {
+                        top = top.min(f.py(sy.max(0.0)));
                     }
                 }
             }
-            let y = (top - 5.0).max(mt + 4.0);
+            let y = (top - 5.0).max(f.mt + 4.0);
             let fill = if g.3.starts_with('#') && g.3 != "#444" {
                 g.3.as_str()
             } else {
@@ -366,13 +396,16 @@ impl Plot {
                 escape(&text)
             );
         }
-        // legend
-        let mut ly = mt + 12.0;
+    }
+
+    /// The legend of the named series, in the corner away from the high-energy side.
+    fn legend(&self, o: &mut String, f: &Frame) {
+        let mut ly = f.mt + 12.0;
         for s in self.series.iter().filter(|s| !s.name.is_empty()) {
             let lx = if self.increase_left {
-                ml + 12.0
+                f.ml + 12.0
             } else {
-                ml + pw - 190.0
+                f.ml + f.pw - 190.0
             };
             let dash = if s.dashed {
                 r#" stroke-dasharray="5,3""#
@@ -395,9 +428,60 @@ impl Plot {
             );
             ly += 16.0;
         }
-        o.push_str("</svg>\n");
-        o
     }
+}
+
+/// Sticks as vertical lines from the axis.
+fn sticks(o: &mut String, f: &Frame, vis: &[&StickMark]) {
+    for s in vis {
+        let x = f.px(s.x);
+        let _ = writeln!(
+            o,
+            r#"<line x1="{x:.2}" y1="{:.2}" x2="{x:.2}" y2="{:.2}" stroke="{}" stroke-width="1.6"/>"#,
+            f.py(0.0),
+            f.py(s.height),
+            s.color
+        );
+    }
+}
+
+/// Labels of same-coloured sticks closer than 13 px are merged ("a, b"); groups without
+/// text are dropped; the rest ordered left to right.
+fn label_groups(f: &Frame, vis: &[&StickMark]) -> Vec<LabelGroup> {
+    let mut groups: Vec<LabelGroup> = Vec::new();
+    for s in vis {
+        let x = f.px(s.x);
+        if let Some(g) = groups
+            .iter_mut()
+            .rev()
+            .take(4)
+            .find(|g| g.3 == s.color && (x - g.0).abs() < 13.0)
+        {
+            if !g.2.contains(&s.label) {
+                g.2.push(s.label.clone());
+            }
+            g.1 = g.1.max(s.height);
+            continue;
+        }
+        groups.push((x, s.height, vec![s.label.clone()], s.color.clone()));
+    }
+    groups.retain(|g| g.2.iter().any(|l| !l.is_empty()));
+    groups.sort_by(|a, b| a.0.total_cmp(&b.0));
+    groups
+}
+
+/// Label x positions: beside each group's sticks, staggered sideways to stay 12 px apart.
+fn label_positions(groups: &[LabelGroup]) -> Vec<f64> {
+    let mut label_x: Vec<f64> = Vec::with_capacity(groups.len());
+    for g in groups {
+        let want = g.0 + 3.5;
+        let x = match label_x.last() {
+            Some(&prev) if want - prev < 12.0 => prev + 12.0,
+            _ => want,
+        };
+        label_x.push(x);
+    }
+    label_x
 }
 
 #[cfg(test)]

@@ -14,6 +14,7 @@
 use serde::Serialize;
 
 use super::assign::{match_lines, Alignment, MatchOptions, Matching, PredictedLine};
+use super::note::Note;
 
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct AlignOptions {
@@ -29,7 +30,7 @@ pub struct AlignResult {
     pub cost: f64,
     pub n_pairs: usize,
     /// Why the scale was not fitted although asked, if so.
-    pub note: Option<String>,
+    pub note: Option<Note>,
 }
 
 fn matching_at(
@@ -102,10 +103,7 @@ pub fn align(
             }
         } else {
             if aopt.fit_scale {
-                note = Some(format!(
-                    "scale not fitted: {} matched pair(s), three or more are needed",
-                    xs.len()
-                ));
+                note = Some(Note::ScaleNotFitted { pairs: xs.len() });
             }
             let scale = if aopt.fit_scale { 1.0 } else { a.scale };
             let shift = ys.iter().zip(&xs).map(|(y, x)| y - scale * x).sum::<f64>() / n;
@@ -129,10 +127,9 @@ pub fn align(
     }
     if aopt.fit_scale && m.pairs.len() < 3 && a.scale != 1.0 {
         // Too few pairs to determine a scale: fall back to a pure shift.
-        note = Some(format!(
-            "scale not fitted: {} matched pair(s), three or more are needed",
-            m.pairs.len()
-        ));
+        note = Some(Note::ScaleNotFitted {
+            pairs: m.pairs.len(),
+        });
         let fallback = AlignOptions {
             fit_scale: false,
             ..*aopt

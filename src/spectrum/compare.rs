@@ -9,6 +9,7 @@ use super::assign::{
 };
 use super::background;
 use super::measured::Measured;
+use super::note::Note;
 use super::peaks::{find_peaks, Peak};
 use super::smooth::savitzky_golay;
 use crate::error::{Error, Result};
@@ -75,7 +76,9 @@ pub struct Comparison {
     pub peaks: Vec<Peak>,
     pub background: String,
     pub smoothing_window: usize,
-    pub notes: Vec<String>,
+    /// Typed notes (the printers decide how to show them).
+    #[serde(skip)]
+    pub notes: Vec<Note>,
     /// Processed trace (binding energy, smoothed, background) for plotting.
     #[serde(skip)]
     pub energy_ev: Vec<f64>,
@@ -105,9 +108,11 @@ pub fn compare(
     let peaks = find_peaks(x, &signal, opt.min_prominence);
     let mut notes = Vec::new();
     if peaks.is_empty() {
-        return Err(Error::computation(
-            "no peaks found in the measured spectrum (try a lower --prominence)",
-        ));
+        return Err(Error::computation(format!(
+            "no peaks found in the measured spectrum at a minimum prominence of {} % of \
+                 its range; a lower minimum prominence may find some",
+            100.0 * opt.min_prominence
+        )));
     }
     let groups = merge_close(lines, opt.merge_tol_ev);
     if groups.is_empty() {
@@ -127,10 +132,9 @@ pub fn compare(
     }
     let a: Alignment = ar.alignment;
     if (a.shift_ev.abs() - opt.max_shift_ev).abs() < 0.05 {
-        notes.push(format!(
-            "the shift sits at the edge of the search range (±{} eV): widen --max-shift",
-            opt.max_shift_ev
-        ));
+        notes.push(Note::ShiftAtSearchEdge {
+            limit_ev: opt.max_shift_ev,
+        });
     }
     let (pairs, best) = assigned_pairs(&groups, &peak_e, a, &mopt, opt.confidence_scale_ev);
     let matched_bands: Vec<usize> = best.pairs.iter().map(|p| p.0).collect();

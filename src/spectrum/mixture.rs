@@ -64,13 +64,6 @@ pub fn parse_inputs(args: &[String]) -> Result<Vec<MixtureInput>> {
     Ok(v)
 }
 
-/// Short name of an input for legends and labels: the file stem.
-pub fn component_name(path: &Path) -> String {
-    path.file_stem()
-        .map(|s| s.to_string_lossy().into_owned())
-        .unwrap_or_else(|| path.display().to_string())
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;

@@ -3,15 +3,18 @@
 //! Prediction: `photon` (sources, BE ↔ KE) → `predicted` (which bands, how intense:
 //! `cross_section` for the Gelius model, `core_level::lifetime` for core-hole widths) → `broaden`
 //! (line shapes from `lineshape`, Voigt through `faddeeva`); `mixture` weights several
-//! molecules.
+//! molecules; `build` runs the chain for the printers.
 //!
 //! Comparison: `measured` (reading a trace) → `smooth` (Savitzky–Golay) → `background`
 //! (linear, Shirley) → `peaks` (prominence) → `align` (global shift/scale) → `assign`
-//! (one-to-one matching by `hungarian`, confidences); `compare` runs the whole chain.
+//! (one-to-one matching by `hungarian`, confidences); `compare` runs the whole chain and
+//! `assignment` feeds it predicted bands. Notes of both are typed values (`note`).
 pub mod align;
 pub mod assign;
+pub mod assignment;
 pub mod background;
 pub mod broaden;
+pub mod build;
 pub mod compare;
 pub mod cross_section;
 pub mod faddeeva;
@@ -19,6 +22,7 @@ pub mod hungarian;
 pub mod lineshape;
 pub mod measured;
 pub mod mixture;
+pub mod note;
 pub mod peaks;
 pub mod photon;
 pub mod predicted;

@@ -4,6 +4,7 @@
 use serde::Serialize;
 
 use super::cross_section::gelius_intensity;
+use super::note::Note;
 use super::photon::Photon;
 use crate::chem::elements::parse_element;
 use crate::core_level::lifetime::lifetime_fwhm_ev;
@@ -73,7 +74,7 @@ pub struct StickOptions {
 pub fn sticks_from_bands(
     bands: &[Band],
     opts: &StickOptions,
-    notes: &mut Vec<String>,
+    notes: &mut Vec<Note>,
 ) -> (Vec<Stick>, Vec<Excluded>) {
     let hv = opts.photon.energy_ev();
     let mut sticks = Vec::new();
@@ -97,24 +98,18 @@ pub fn sticks_from_bands(
             IntensityModel::Gelius => {
                 let g = gelius_intensity(b, hv);
                 if g.untabulated_fraction.abs() > 0.2 {
-                    notes.push(format!(
-                        "{}: {:.0} % of its make-up has no tabulated cross section",
-                        b.label,
-                        100.0 * g.untabulated_fraction
-                    ));
+                    notes.push(Note::UntabulatedCrossSection {
+                        band: b.label.clone(),
+                        percent: 100.0 * g.untabulated_fraction,
+                    });
                 }
                 if b.makeup.is_empty() {
-                    notes.push(format!(
-                        "{}: no orbital make-up, Gelius intensity is zero",
-                        b.label
-                    ));
+                    notes.push(Note::NoMakeup {
+                        band: b.label.clone(),
+                    });
                 }
                 if g.approximate && !approx_noted {
-                    notes.push(
-                        "Gelius intensities use cross sections typed from memory, scaled or \
-                         interpolated at this photon energy: relative intensities are rough"
-                            .into(),
-                    );
+                    notes.push(Note::RoughCrossSections);
                     approx_noted = true;
                 }
                 g.intensity

@@ -1,0 +1,142 @@
+//! The one library entry: dispatch a request to the valence methods or the core levels.
+
+use super::notice::Notice;
+use super::prediction::Prediction;
+use super::request::{CoreMethod, MethodChoice, Request};
+use crate::basis::BasisSet;
+use crate::chem::Molecule;
+use crate::error::{Error, Result};
+use crate::ionization::valence::{self, ValenceOptions};
+use crate::ionization::{Method, Region};
+
+/// What a running prediction reports while it works.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Progress {
+    /// Core levels: `done` of `total` distinct holes are finished.
+    CoreHoles { done: usize, total: usize },
+}
+
+/// Predict the bands of `request.molecule`; `progress` is called as stages finish.
+pub fn predict(request: &Request, progress: &(dyn Fn(Progress) + Sync)) -> Result<Prediction> {
+    match request.region {
+        Region::Valence => predict_valence(request),
+        Region::Core => predict_core(request, progress),
+    }
+}
+
+/// The default valence method of a molecule in a basis within a memory budget: the one
+/// rule `bandcast ionize` uses too (closed shells: the most accurate method that fits;
+/// open shells: ΔSCF).
+pub fn default_valence_method(mol: &Molecule, basis: &BasisSet, budget_bytes: usize) -> Method {
+    // merge: default rule
+    if mol.multiplicity == 1 {
+        crate::correlation::method_choice::default_ionization_method(
+            mol,
+            basis,
+            Some(budget_bytes as f64),
+        )
+    } else {
+        valence::default_method(mol)
+    }
+}
+
+/// The default rule in words, for the note that says which method it chose.
+fn default_rule_text(mol: &Molecule) -> String {
+    if mol.multiplicity == 1 {
+        // merge: default rule
+        crate::correlation::method_choice::rule_text()
+    } else {
+        "default method for open shells: dscf (the correlated methods here are closed-shell \
+         only)"
+            .into()
+    }
+}
+
+fn predict_valence(req: &Request) -> Result<Prediction> {
+    let mol = req.molecule;
+    let budget = req.memory_bytes();
+    let (method, defaulted) = match req.method {
+        MethodChoice::Valence(m) => (m, false),
+        MethodChoice::Default => (default_valence_method(mol, req.basis, budget), true),
+        MethodChoice::Core(m) => {
+            return Err(Error::input(format!(
+                "{} is a core-level method; valence bands are computed by {}",
+                m.name(),
+                Method::ALL.map(Method::name).join(", ")
+            )))
+        }
+    };
+    let opts = ValenceOptions {
+        method,
+        count: req.options.count,
+        window_ev: req.options.window_max_ev,
+        memory_bytes: budget,
+        ..ValenceOptions::default()
+    };
+    let r = valence::predict(mol, req.basis, &opts)?;
+    let mut notes: Vec<Notice> = r.notes.into_iter().map(Notice::MethodNote).collect();
+    if defaulted {
+        notes.push(Notice::DefaultMethodChosen {
+            method: method.name().into(),
+            n_basis: req.basis.n_basis,
+            rule: default_rule_text(mol),
+        });
+    }
+    Ok(Prediction {
+        region: Region::Valence,
+        method: method.name().into(),
+        method_defaulted: defaulted,
+        basis: req.basis.name.clone(),
+        n_basis: req.basis.n_basis,
+        bands: r.bands,
+        notes,
+        warnings: r.warnings.into_iter().map(Notice::MethodWarning).collect(),
+    })
+}
+
+fn predict_core(req: &Request, progress: &(dyn Fn(Progress) + Sync)) -> Result<Prediction> {
+    use crate::core_level::{CoreOptions, TargetSelection};
+    let method = match req.method {
+        MethodChoice::Default => CoreMethod::Dscf,
+        MethodChoice::Core(m) => m,
+        MethodChoice::Valence(m) => {
+            return Err(Error::input(format!(
+                "core levels are computed by dscf or dmp2, not '{}'",
+                m.name()
+            )))
+        }
+    };
+    let mut opts = CoreOptions {
+        mp2: method == CoreMethod::Dmp2,
+        thorough: !req.options.quick,
+        ..CoreOptions::default()
+    };
+    if let Some(atoms) = &req.options.atoms {
+        opts.targets = TargetSelection::Atoms(atoms.clone());
+    } else if let Some(z) = req.options.element {
+        opts.targets = TargetSelection::Element(z);
+    }
+    let r = core_levels(req.molecule, req.basis, &opts, progress)?;
+    Ok(Prediction {
+        region: Region::Core,
+        method: method.name().into(),
+        method_defaulted: req.method == MethodChoice::Default,
+        basis: req.basis.name.clone(),
+        n_basis: r.n_basis,
+        bands: r.bands(),
+        notes: r.notes.iter().map(|n| Notice::MethodNote(n.to_string())).collect(),
+        warnings: Vec::new(),
+    })
+}
+
+/// The one call into the core-level code (the path to fix when it moves).
+fn core_levels(
+    mol: &Molecule,
+    basis: &BasisSet,
+    opts: &crate::core_level::CoreOptions,
+    progress: &(dyn Fn(Progress) + Sync),
+) -> Result<crate::core_level::CoreResult> {
+    crate::core_level::predict_with_progress(mol, basis, opts, &|done, total| {
+        progress(Progress::CoreHoles { done, total })
+    })
+}

@@ -1,0 +1,164 @@
+//! The plots of `spectrum` and `assign`, as `svg::Plot` values built from the results.
+
+use super::runs::{AssignRun, SpectrumRun};
+use super::svg::{Plot, Series, StickMark, PALETTE};
+use crate::spectrum::lineshape::{profile, Shape};
+use crate::spectrum::photon::Axis;
+
+/// The plot of a spectrum: the total (and each molecule of a mixture, dashed) with a stick
+/// per band. `flip` draws the energy axis the other way round.
+pub fn spectrum_plot(run: &SpectrumRun, flip: bool) -> Plot {
+    let b = run.spectrum;
+    let axis = run.axis;
+    let multi = b.curve.components.len() > 1;
+    let mut series = Vec::new();
+    if multi {
+        for (k, c) in b.curve.components.iter().enumerate() {
+            series.push(Series {
+                name: b.curve.component_names[k].clone(),
+                x: b.curve.energy_ev.clone(),
+                y: c.clone(),
+                color: PALETTE[(k + 1) % PALETTE.len()].into(),
+                stroke_width: 1.2,
+                fill: false,
+                dashed: true,
+            });
+        }
+    }
+    series.push(Series {
+        name: if multi { "total".into() } else { String::new() },
+        x: b.curve.energy_ev.clone(),
+        y: b.curve.total.clone(),
+        color: PALETTE[0].into(),
+        stroke_width: 2.0,
+        fill: true,
+        dashed: false,
+    });
+    let sticks = b
+        .sticks
+        .iter()
+        .map(|s| StickMark {
+            x: match axis {
+                Axis::Binding => s.binding_ev,
+                Axis::Kinetic => s.kinetic_ev,
+            },
+            // the peak height of this band alone, so a stick meets its own envelope
+            height: s.intensity * profile(b.shape, 0.0, s.gaussian_fwhm_ev, s.lorentzian_fwhm_ev),
+            // in a mixture the colour tells the molecule (legend); the label keeps the band
+            label: if multi {
+                s.label
+                    .split_once(": ")
+                    .map(|x| x.1.to_string())
+                    .unwrap_or_else(|| s.label.clone())
+            } else {
+                s.label.clone()
+            },
+            color: if multi {
+                PALETTE[(s.component + 1) % PALETTE.len()].into()
+            } else {
+                "#444".into()
+            },
+        })
+        .collect();
+    let increase_left = match axis {
+        Axis::Binding => !flip,
+        Axis::Kinetic => flip,
+    };
+    Plot {
+        title: run.title(),
+        subtitle: run.subtitle(),
+        x_label: axis.title().into(),
+        y_label: "Intensity (arb. units)".into(),
+        series,
+        sticks,
+        increase_left,
+        x_range: Some((b.curve.energy_ev[0], *b.curve.energy_ev.last().unwrap())),
+        width: 900.0,
+        height: 560.0,
+    }
+}
+
+/// Measured trace and aligned prediction, both scaled to a maximum of 1.
+pub fn overlay_plot(run: &AssignRun) -> Plot {
+    let cmp = &run.assignment.comparison;
+    let sticks = &run.assignment.sticks;
+    let fwhm = run.assignment.fwhm;
+    let x = cmp.energy_ev.clone();
+    let raw_max = cmp
+        .smoothed
+        .iter()
+        .zip(&cmp.background_curve)
+        .map(|(a, b)| a - b)
+        .fold(0.0, f64::max);
+    let norm = if raw_max > 0.0 { 1.0 / raw_max } else { 1.0 };
+    let meas: Vec<f64> = cmp
+        .smoothed
+        .iter()
+        .zip(&cmp.background_curve)
+        .map(|(a, b)| (a - b) * norm)
+        .collect();
+    let align = |e: f64| cmp.scale * e + cmp.shift_ev;
+    let pred_raw: Vec<f64> = x
+        .iter()
+        .map(|&e| {
+            sticks
+                .iter()
+                .map(|s| {
+                    s.intensity
+                        * profile(
+                            Shape::Voigt,
+                            e - align(s.binding_ev),
+                            fwhm,
+                            s.lorentzian_fwhm_ev,
+                        )
+                })
+                .sum()
+        })
+        .collect();
+    let pmax = pred_raw.iter().cloned().fold(0.0, f64::max);
+    let pnorm = if pmax > 0.0 { 1.0 / pmax } else { 1.0 };
+    let pred: Vec<f64> = pred_raw.iter().map(|v| v * pnorm).collect();
+    let marks = sticks
+        .iter()
+        .map(|s| StickMark {
+            x: align(s.binding_ev),
+            height: s.intensity * profile(Shape::Voigt, 0.0, fwhm, s.lorentzian_fwhm_ev) * pnorm,
+            label: s.label.clone(),
+            color: PALETTE[0].into(),
+        })
+        .collect();
+    Plot {
+        title: "Measured and predicted (aligned)".into(),
+        subtitle: format!(
+            "prediction {} / {}, shifted by {:+.2} eV, scale {:.4}; measured: smoothed, background removed",
+            run.method, run.basis, cmp.shift_ev, cmp.scale
+        ),
+        x_label: "Binding energy (eV)".into(),
+        y_label: "Intensity (normalised)".into(),
+        series: vec![
+            Series {
+                name: "measured".into(),
+                x: x.clone(),
+                y: meas,
+                color: "#333333".into(),
+                stroke_width: 1.4,
+                fill: false,
+                dashed: false,
+            },
+            Series {
+                name: "predicted, aligned".into(),
+                x,
+                y: pred,
+                color: PALETTE[0].into(),
+                stroke_width: 1.8,
+                fill: true,
+                dashed: true,
+            },
+        ],
+        sticks: marks,
+        increase_left: true,
+        x_range: Some((cmp.energy_ev[0], *cmp.energy_ev.last().unwrap())),
+        width: 900.0,
+        height: 520.0,
+    }
+}

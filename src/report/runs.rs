@@ -1,0 +1,85 @@
+//! What the printers of `spectrum` and `assign` are given: the plain result plus how it was
+//! asked for (method, basis, inputs), with the titles every format shares.
+
+use serde::Serialize;
+
+use crate::ionization::Region;
+use crate::spectrum::assignment::Assignment;
+use crate::spectrum::build::Spectrum;
+use crate::spectrum::photon::{Axis, Photon};
+use crate::spectrum::predicted::IntensityModel;
+
+/// One input of a spectrum (a molecule of a mixture).
+#[derive(Debug, Clone, Serialize)]
+pub struct InputInfo {
+    pub file: String,
+    pub name: String,
+    pub weight: f64,
+}
+
+/// A broadened spectrum and how it was made.
+#[derive(Debug, Clone)]
+pub struct SpectrumRun<'a> {
+    pub spectrum: &'a Spectrum,
+    pub photon: Photon,
+    pub region: Region,
+    pub axis: Axis,
+    pub intensity: IntensityModel,
+    /// Method name (several joined by ", " when the inputs of a mixture differ).
+    pub method: String,
+    pub basis: String,
+    pub inputs: Vec<InputInfo>,
+}
+
+impl SpectrumRun<'_> {
+    pub fn title(&self) -> String {
+        let names: Vec<&str> = self.inputs.iter().map(|i| i.name.as_str()).collect();
+        format!(
+            "{} photoelectron spectrum of {}",
+            if self.region == Region::Core {
+                "Core-level"
+            } else {
+                "Valence"
+            },
+            names.join(" + ")
+        )
+    }
+
+    pub fn subtitle(&self) -> String {
+        format!(
+            "predicted: {} / {} · {} · {} FWHM {:.2} eV · intensities: {} · a prediction, not a measurement",
+            self.method,
+            self.basis,
+            self.photon.name(),
+            self.spectrum.shape.name(),
+            self.spectrum.fwhm,
+            match self.intensity {
+                IntensityModel::Occupation => "occupation × degeneracy",
+                IntensityModel::Gelius => "Gelius model",
+            }
+        )
+    }
+}
+
+/// An assignment against a measured trace and how it was made.
+#[derive(Debug, Clone)]
+pub struct AssignRun<'a> {
+    pub assignment: &'a Assignment,
+    /// Molecule name (the file stem).
+    pub molecule: String,
+    pub method: String,
+    pub basis: String,
+    pub region: Region,
+    /// Photon source given for the measurement, if any.
+    pub photon: Option<Photon>,
+    pub measured_file: String,
+    /// The first `#` comment of the measured file (so a report says when data are synthetic).
+    pub measured_comment: Option<String>,
+}
+
+pub fn region_name(r: Region) -> &'static str {
+    match r {
+        Region::Valence => "valence",
+        Region::Core => "core",
+    }
+}

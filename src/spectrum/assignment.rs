@@ -1,0 +1,117 @@
+//! Assigning a predicted spectrum to a measured trace: the bands the photon reaches become
+//! lines (occupation × degeneracy intensities), which `compare` aligns and matches with the
+//! measured peaks. Plain data in and out; the printers live in `report`.
+
+use super::assign::PredictedLine;
+use super::compare::{compare, CompareOptions, Comparison};
+use super::measured::Measured;
+use super::note::Note;
+use super::photon::Photon;
+use super::predicted::{sticks_from_bands, IntensityModel, Stick, StickOptions};
+use crate::error::Result;
+use crate::ionization::{Band, Region};
+
+/// How an assignment is made. Unset fields take the region's defaults (`CompareOptions`).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct AssignmentOptions {
+    pub region: Region,
+    /// Photon source of the measurement; None: no band is left out for its energy, and the
+    /// default width is that of the region's usual source (He I valence, Al Kα core).
+    pub photon: Option<Photon>,
+    /// Instrument Gaussian FWHM (eV) of the bands; it also sets the smoothing window.
+    pub fwhm_ev: Option<f64>,
+    /// Smallest peak prominence, a fraction of the trace's range.
+    pub min_prominence: Option<f64>,
+    /// Largest residual of an assigned pair (eV).
+    pub max_residual_ev: Option<f64>,
+    /// Largest global shift searched (eV).
+    pub max_shift_ev: Option<f64>,
+    /// Fit a linear scale as well as a shift.
+    pub fit_scale: bool,
+}
+
+impl AssignmentOptions {
+    pub fn new(region: Region) -> Self {
+        AssignmentOptions {
+            region,
+            photon: None,
+            fwhm_ev: None,
+            min_prominence: None,
+            max_residual_ev: None,
+            max_shift_ev: None,
+            fit_scale: false,
+        }
+    }
+
+    /// The source used for default widths.
+    pub fn photon_or_default(&self) -> Photon {
+        self.photon.unwrap_or(match self.region {
+            Region::Valence => Photon::He1,
+            Region::Core => Photon::AlKa,
+        })
+    }
+}
+
+/// The comparison with the sticks it was made from.
+#[derive(Debug, Clone)]
+pub struct Assignment {
+    /// Alignment, pairs, unmatched bands and peaks, and every note.
+    pub comparison: Comparison,
+    /// The predicted lines before alignment.
+    pub sticks: Vec<Stick>,
+    /// Gaussian FWHM used (eV).
+    pub fwhm: f64,
+}
+
+/// Assign `bands` to the peaks of `measured` (binding-energy axis, increasing).
+pub fn assign_bands(
+    bands: &[Band],
+    measured: &Measured,
+    opts: &AssignmentOptions,
+) -> Result<Assignment> {
+    let photon = opts.photon_or_default();
+    let fwhm = opts
+        .fwhm_ev
+        .unwrap_or_else(|| photon.default_fwhm_ev(opts.region));
+    let mut stick_notes = Vec::new();
+    let so = StickOptions {
+        photon: opts.photon.unwrap_or(Photon::Custom(f64::MAX)),
+        intensity: IntensityModel::Occupation,
+        gaussian_fwhm_ev: fwhm,
+        weight: 1.0,
+        component: 0,
+    };
+    let (sticks, excluded) = sticks_from_bands(bands, &so, &mut stick_notes);
+    let lines: Vec<PredictedLine> = sticks
+        .iter()
+        .map(|s| PredictedLine {
+            label: s.label.clone(),
+            energy_ev: s.binding_ev,
+            intensity: s.intensity,
+        })
+        .collect();
+    let mut copt = CompareOptions::defaults(opts.region, fwhm);
+    if let Some(p) = opts.min_prominence {
+        copt.min_prominence = p;
+    }
+    if let Some(c) = opts.max_residual_ev {
+        copt.cap_ev = c;
+    }
+    if let Some(s) = opts.max_shift_ev {
+        copt.max_shift_ev = s;
+    }
+    copt.fit_scale = opts.fit_scale;
+    let mut comparison = compare(&lines, measured, &copt)?;
+    if !excluded.is_empty() {
+        comparison.notes.push(Note::BandsAbovePhoton {
+            count: excluded.len(),
+            photon_ev: photon.energy_ev(),
+        });
+    }
+    comparison.notes.extend(stick_notes);
+    Ok(Assignment {
+        comparison,
+        sticks,
+        fwhm,
+    })
+}

@@ -1,0 +1,121 @@
+//! Notes of a spectrum or an assignment as typed values: a stable `code` for programs, a
+//! `message` for people. None of them names a command-line option (a printer may add a hint).
+
+use std::fmt;
+
+use serde::ser::SerializeStruct;
+use serde::{Serialize, Serializer};
+
+use crate::predict::{Notice, Prediction};
+
+#[derive(Debug, Clone, PartialEq)]
+pub enum Note {
+    /// A band whose make-up is largely without a tabulated cross section (Gelius model).
+    UntabulatedCrossSection { band: String, percent: f64 },
+    /// A band without orbital make-up: its Gelius intensity is zero.
+    NoMakeup { band: String },
+    /// The cross sections used are typed from memory, scaled or interpolated.
+    RoughCrossSections,
+    /// Bands beyond the photon energy, left out.
+    BandsAbovePhoton { count: usize, photon_ev: f64 },
+    /// A scale was asked for but too few pairs were matched to fit one.
+    ScaleNotFitted { pairs: usize },
+    /// The fitted shift sits at the edge of the searched range.
+    ShiftAtSearchEdge { limit_ev: f64 },
+    /// A note or warning of the prediction itself.
+    Prediction(Notice),
+}
+
+impl Note {
+    /// What a spectrum or an assignment reports of a prediction: which method the default
+    /// rule chose, and every warning (the method's other notes are for verbose output).
+    pub fn from_prediction(p: &Prediction) -> Vec<Note> {
+        p.notes
+            .iter()
+            .filter(|n| matches!(n, Notice::DefaultMethodChosen { .. }))
+            .chain(&p.warnings)
+            .cloned()
+            .map(Note::Prediction)
+            .collect()
+    }
+
+    /// Stable identifier for programs reading the JSON.
+    pub fn code(&self) -> &'static str {
+        match self {
+            Note::UntabulatedCrossSection { .. } => "untabulated_cross_section",
+            Note::NoMakeup { .. } => "no_makeup",
+            Note::RoughCrossSections => "rough_cross_sections",
+            Note::BandsAbovePhoton { .. } => "bands_above_photon",
+            Note::ScaleNotFitted { .. } => "scale_not_fitted",
+            Note::ShiftAtSearchEdge { .. } => "shift_at_search_edge",
+            Note::Prediction(n) => n.code(),
+        }
+    }
+}
+
+impl fmt::Display for Note {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            Note::UntabulatedCrossSection { band, percent } => write!(
+                f,
+                "{band}: {percent:.0} % of its make-up has no tabulated cross section"
+            ),
+            Note::NoMakeup { band } => {
+                write!(f, "{band}: no orbital make-up, Gelius intensity is zero")
+            }
+            Note::RoughCrossSections => f.write_str(
+                "Gelius intensities use cross sections typed from memory, scaled or \
+                 interpolated at this photon energy: relative intensities are rough",
+            ),
+            Note::BandsAbovePhoton { count, photon_ev } => write!(
+                f,
+                "{count} band(s) lie above the photon energy ({photon_ev:.3} eV) and are left out"
+            ),
+            Note::ScaleNotFitted { pairs } => write!(
+                f,
+                "scale not fitted: {pairs} matched pair(s), three or more are needed"
+            ),
+            Note::ShiftAtSearchEdge { limit_ev } => write!(
+                f,
+                "the shift sits at the edge of the search range (±{limit_ev} eV): widen the range"
+            ),
+            Note::Prediction(n) => n.fmt(f),
+        }
+    }
+}
+
+impl Serialize for Note {
+    fn serialize<S: Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        let mut st = s.serialize_struct("Note", 2)?;
+        st.serialize_field("code", self.code())?;
+        st.serialize_field("message", &self.to_string())?;
+        st.end()
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn codes_are_stable_and_messages_name_no_option() {
+        let notes = [
+            Note::BandsAbovePhoton {
+                count: 2,
+                photon_ev: 21.218,
+            },
+            Note::ShiftAtSearchEdge { limit_ev: 6.0 },
+            Note::ScaleNotFitted { pairs: 2 },
+        ];
+        let v = serde_json::to_value(&notes).unwrap();
+        assert_eq!(v[0]["code"], "bands_above_photon");
+        assert_eq!(
+            v[0]["message"],
+            "2 band(s) lie above the photon energy (21.218 eV) and are left out"
+        );
+        assert_eq!(v[1]["code"], "shift_at_search_edge");
+        for n in &notes {
+            assert!(!n.to_string().contains("--"), "{n}");
+        }
+    }
+}
