@@ -5,6 +5,7 @@
 //! Everything below `cli` and `report` is plain functions on plain data, in atomic units.
 
 pub mod analysis;
+pub mod bench;
 pub mod basis;
 pub mod chem;
 pub mod correlation;
@@ -14,6 +15,7 @@ pub mod ionization;
 pub mod report;
 pub mod scf;
 pub mod spectrum;
+pub mod system;
 pub mod units;
 
 pub use error::{Error, Result};

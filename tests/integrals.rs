@@ -113,7 +113,7 @@ fn h2_sto3g_matches_szabo_ostlund() {
 use bandcast::basis::evaluate::shell_values;
 use bandcast::basis::normalize::contracted_coefficients;
 use bandcast::basis::solid_harmonics::transform;
-use bandcast::integrals::cartesian::components;
+use bandcast::basis::cartesian::components;
 use bandcast_linalg::Mat;
 
 /// Nodes and weights of the n-point Gauss–Hermite rule (weight exp(−x²)).

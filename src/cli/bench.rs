@@ -5,7 +5,7 @@
 use std::path::{Path, PathBuf};
 
 use bandcast::chem::xyz::{read_xyz, LengthUnit};
-use bandcast::integrals::bench::{all_eris, class_throughput};
+use bandcast::bench::integrals::{all_eris, class_throughput};
 use bandcast::{Error, Result};
 
 #[derive(clap::Args, Debug)]

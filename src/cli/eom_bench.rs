@@ -28,13 +28,13 @@ pub fn bench(a: BenchArgs) -> Result<()> {
          all threads, peak resident memory (VmHWM) within the stage",
         rayon::current_num_threads()
     );
-    bandcast::correlation::bench::run_eom_bench(
+    bandcast::bench::eom::run_eom_bench(
         &a.dir,
         a.quick,
         &a.only,
         a.memory * 1024.0 * 1024.0 * 1024.0,
         &mut |l| eprintln!("{l}"),
-        &mut |r| print!("{}", bandcast::correlation::bench::format_result(r)),
+        &mut |r| print!("{}", bandcast::bench::eom::format_result(r)),
     )?;
     Ok(())
 }

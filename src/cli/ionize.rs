@@ -5,7 +5,8 @@
 use std::fmt::Write as _;
 
 use bandcast::ionization::method::Method;
-use bandcast::ionization::valence::{default_method, predict, ValenceOptions, ValenceResult};
+use bandcast::ionization::default_method;
+use bandcast::ionization::valence::{predict, ValenceOptions, ValenceResult};
 use bandcast::scf::Reference;
 use bandcast::{Error, Result};
 use serde_json::{json, Value};
@@ -60,20 +61,17 @@ pub fn run(args: Args) -> Result<()> {
             return Err(Error::input("--memory must be a positive number of GB"))
         }
         Some(gb) => gb,
-        None => bandcast::scf::options::default_memory_budget() as f64 / 1e9,
+        None => bandcast::system::default_memory_budget() as f64 / 1e9,
     };
     let basis = bandcast::basis::load(&args.basis, &mol, None)?;
-    let defaulted = args.method.is_none();
-    let method = match &args.method {
-        Some(m) => Method::parse(m)?,
-        None if mol.multiplicity == 1 => {
-            bandcast::correlation::method_choice::default_ionization_method(
-                &mol,
-                &basis,
-                Some(memory_gb * 1e9),
-            )
-        }
-        None => default_method(&mol),
+    let choice = match &args.method {
+        Some(_) => None,
+        None => Some(default_method::choose(&mol, &basis, Some(memory_gb * 1e9))),
+    };
+    let method = match (&args.method, &choice) {
+        (Some(m), _) => Method::parse(m)?,
+        (None, Some(c)) => c.method,
+        (None, None) => unreachable!("a default is chosen when no method is given"),
     };
     use bandcast::correlation::two_electron::TwoElectron;
     let eom_integrals = match args.integrals.as_deref() {
@@ -107,12 +105,10 @@ pub fn run(args: Args) -> Result<()> {
         ..Default::default()
     };
     let mut result = predict(&mol, &basis, &opts)?;
-    if defaulted {
-        result.notes.push(format!(
-            "{} — chose {method} for {} basis functions",
-            bandcast::correlation::method_choice::rule_text(),
-            basis.n_basis
-        ));
+    if let Some(c) = &choice {
+        if !matches!(c.reason, default_method::DefaultReason::OpenShell) {
+            result.notes.push(c.to_string());
+        }
     }
     let name = if mol.name.is_empty() {
         args.molecule.file.display().to_string()
@@ -308,7 +304,7 @@ pub struct Ep2BenchArgs {
 pub fn ep2_bench(args: Ep2BenchArgs) -> Result<()> {
     let mol = args.molecule.load()?;
     let basis = bandcast::basis::load(&args.basis, &mol, None)?;
-    let r = bandcast::ionization::bench::run_ep2_bench(&mol, &basis)?;
+    let r = bandcast::bench::ep2::run_ep2_bench(&mol, &basis)?;
     println!("{} / {}: {r}", args.molecule.file.display(), basis.name);
     Ok(())
 }

@@ -135,7 +135,7 @@ pub fn run(args: Args) -> Result<()> {
         max_iter: args.max_iter,
         memory_budget_bytes: match args.memory {
             Some(m) => (m * (1u64 << 30) as f64) as usize,
-            None => scf::default_memory_budget(),
+            None => bandcast::system::default_memory_budget(),
         },
         guess: if args.guess == "core" {
             Guess::Core
@@ -551,7 +551,7 @@ pub fn bench(a: BenchArgs) -> Result<()> {
                 "--memory must be a non-negative number of GiB",
             ))
         }
-        None => scf::default_memory_budget(),
+        None => bandcast::system::default_memory_budget(),
     };
     println!(
         "SCF benchmark ({} threads; RHF, SAD guess, default thresholds; memory budget for \
@@ -559,8 +559,8 @@ pub fn bench(a: BenchArgs) -> Result<()> {
         rayon::current_num_threads(),
         budget as f64 / (1u64 << 30) as f64
     );
-    bandcast::scf::bench::run_scf_bench(&a.dir, a.quick, a.guanine, budget, &mut |r| {
-        println!("{}", bandcast::scf::bench::format_result(r));
+    bandcast::bench::scf::run_scf_bench(&a.dir, a.quick, a.guanine, budget, &mut |r| {
+        println!("{}", bandcast::bench::scf::format_result(r));
     })?;
     Ok(())
 }

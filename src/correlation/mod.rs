@@ -8,7 +8,6 @@
 //! ccsd.rs, diis.rs, davidson.rs (non-symmetric Davidson), eom_ip*.rs (H̄, sigma vectors
 //! and the `ionize` entry point), memory.rs (estimates before anything large is
 //! allocated), stages.rs (wall/CPU/peak memory per stage).
-pub mod bench;
 pub mod ccsd;
 pub mod ccsd_intermediates;
 pub mod cholesky;
@@ -26,7 +25,6 @@ pub mod eom_ip;
 pub mod eom_ip_intermediates;
 pub mod eom_ip_sigma;
 pub mod memory;
-pub mod method_choice;
 pub mod stages;
 pub mod two_electron;
 

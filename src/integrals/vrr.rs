@@ -19,7 +19,7 @@
 //! are chosen when the plan is built (the cheapest of a few strategies), so the hot loop has
 //! neither index arithmetic nor decisions.
 
-use crate::integrals::cartesian::{components, MAX_L};
+use crate::basis::cartesian::{components, MAX_L};
 use std::sync::OnceLock;
 
 /// One step: for m in 0..n (n and the kind are those of its run),

@@ -21,7 +21,7 @@ use crate::chem::elements::symbol;
 use crate::chem::Molecule;
 use crate::error::{Error, Result};
 use crate::integrals::EriEngine;
-use crate::scf::bench::cpu_seconds;
+use crate::system::process_cpu_seconds as cpu_seconds;
 use crate::scf::fock::source::EngineSource;
 use crate::scf::{Guess, Reference, ScfContext, ScfOptions, Wavefunction};
 use crate::units::ev;
@@ -50,7 +50,7 @@ use super::targets::{atom_label, check_core_atom, resolve_targets};
 /// rule of `bandcast scf` (`scf::options::default_memory_budget`); above it the Fock
 /// matrices are built integral-direct.
 pub fn memory_budget_bytes() -> usize {
-    crate::scf::options::default_memory_budget()
+    crate::system::default_memory_budget()
 }
 
 /// Core-level binding energies of `mol` in basis `basis_name`.
