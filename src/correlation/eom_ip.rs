@@ -523,7 +523,17 @@ fn empty_report(opts: &EomOptions, wfn: &Wavefunction, nf: usize, o: usize, v: u
 mod tests {
     use super::*;
     use crate::chem::{Atom, Molecule};
-    use crate::correlation::test_rhf::rhf;
+
+    /// The program's RHF (scf::run), converged tightly for the reference values below.
+    fn rhf(mol: &Molecule, basis: &crate::basis::BasisSet) -> Wavefunction {
+        let opts = crate::scf::ScfOptions {
+            e_tol: 1e-12,
+            commutator_tol: 1e-10,
+            screening: 1e-14,
+            ..Default::default()
+        };
+        crate::scf::run(mol, basis, &opts).unwrap()
+    }
 
     fn water() -> Molecule {
         // Crawford group Programming Projects geometry (bohr), REFERENCE-DATA.md §1.
