@@ -35,10 +35,10 @@ pub struct Args {
     /// Correlate the core electrons too in EP2 and EOM (default: frozen core).
     #[arg(long, alias = "all-electron")]
     pub correlate_core: bool,
-    /// Memory in GB for the MO integrals and the correlated stages (default: half of the
+    /// Memory in GiB for the MO integrals and the correlated stages (default: half of the
     /// machine's memory, at most three quarters of what is available — the rule of
     /// `bandcast scf --memory`). It also decides the default method.
-    #[arg(long, value_name = "GB")]
+    #[arg(long, value_name = "GIB")]
     pub memory: Option<f64>,
     /// Two-electron integrals of eom-ccsd / eom-mp2: ri (density fitting with the fitting
     /// set made for the basis; the default when one is bundled, Cholesky otherwise) or
@@ -56,17 +56,18 @@ substitute for one; check assignments against a measured spectrum before relying
 
 pub fn run(args: Args) -> Result<()> {
     let mol = args.molecule.load()?;
-    let memory_gb = match args.memory {
-        Some(gb) if !(gb > 0.0) => {
-            return Err(Error::input("--memory must be a positive number of GB"))
+    const GIB: f64 = (1u64 << 30) as f64;
+    let memory_bytes = match args.memory {
+        Some(gib) if !(gib > 0.0) => {
+            return Err(Error::input("--memory must be a positive number of GiB"))
         }
-        Some(gb) => gb,
-        None => bandcast::system::default_memory_budget() as f64 / 1e9,
+        Some(gib) => gib * GIB,
+        None => bandcast::system::default_memory_budget() as f64,
     };
     let basis = bandcast::basis::load(&args.basis, &mol, None)?;
     let choice = match &args.method {
         Some(_) => None,
-        None => Some(default_method::choose(&mol, &basis, Some(memory_gb * 1e9))),
+        None => Some(default_method::choose(&mol, &basis, Some(memory_bytes))),
     };
     let method = match (&args.method, &choice) {
         (Some(m), _) => Method::parse(m)?,
@@ -100,7 +101,7 @@ pub fn run(args: Args) -> Result<()> {
         count: args.count,
         window_ev: args.window,
         frozen_core: !args.correlate_core,
-        memory_bytes: (memory_gb * 1e9) as usize,
+        memory_bytes: memory_bytes as usize,
         eom_integrals,
         ..Default::default()
     };

@@ -610,31 +610,3 @@ mod tests {
         }
     }
 }
-#[cfg(test)]
-mod tmp_time {
-    #[test]
-    fn time_all() {
-        let t = std::time::Instant::now();
-        let mut n = 0;
-        let mut big = Vec::new();
-        for la in 0..=4 {
-            for lb in 0..=4 {
-                for lc in 0..=4 {
-                    for ld in 0..=4 {
-                        let t1 = std::time::Instant::now();
-                        let p = super::build_best(la, la + lb, lc, lc + ld);
-                        big.push((t1.elapsed().as_secs_f64(), la, lb, lc, ld, p.steps.len()));
-                        n += p.steps.len();
-                    }
-                }
-            }
-        }
-        big.sort_by(|a, b| b.0.total_cmp(&a.0));
-        eprintln!(
-            "all 625 plans: {:.3} s, {} steps; top: {:?}",
-            t.elapsed().as_secs_f64(),
-            n,
-            &big[..5]
-        );
-    }
-}
