@@ -18,6 +18,7 @@ pub mod predict;
 pub mod report;
 pub mod scf;
 pub mod spectrum;
+pub mod system;
 pub mod units;
 
 pub use error::{Error, Result};

@@ -7,17 +7,11 @@ use bandcast::basis::{
 };
 use bandcast::chem::{Atom, Molecule};
 
+mod common;
+use common::crawford_water as water;
+
 fn atom(z: u32, position: [f64; 3]) -> Atom {
     Atom { z, position }
-}
-
-/// Water near its equilibrium geometry (bohr); the geometry does not matter for counting.
-fn water() -> Molecule {
-    Molecule::new(vec![
-        atom(8, [0.0, -0.143225816552, 0.0]),
-        atom(1, [1.638036840407, 1.136548822547, 0.0]),
-        atom(1, [-1.638036840407, 1.136548822547, 0.0]),
-    ])
 }
 
 fn one_atom(z: u32) -> Molecule {
@@ -25,7 +19,7 @@ fn one_atom(z: u32) -> Molecule {
 }
 
 fn temp_path(name: &str) -> PathBuf {
-    std::env::temp_dir().join(format!("bandcast-basis-{}-{name}", std::process::id()))
+    common::temp_path("basis", name)
 }
 
 const ORBITAL_SETS: [&str; 17] = [

@@ -3,6 +3,9 @@
 
 use std::path::Path;
 
+mod common;
+use common::crawford_water;
+
 use bandcast::basis;
 use bandcast::chem::xyz::{read_xyz, LengthUnit};
 use bandcast::chem::{Atom, Molecule};
@@ -37,24 +40,6 @@ fn eom(
         ..Default::default()
     };
     ionize_report(mol, b, wfn, &opts, &mut |_| {}).unwrap()
-}
-
-/// Crawford group Programming Projects water geometry (bohr), REFERENCE-DATA.md §1.
-fn crawford_water() -> Molecule {
-    Molecule::new(vec![
-        Atom {
-            z: 8,
-            position: [0.0, -0.143225816552, 0.0],
-        },
-        Atom {
-            z: 1,
-            position: [1.638036840407, 1.136548822547, 0.0],
-        },
-        Atom {
-            z: 1,
-            position: [-1.638036840407, 1.136548822547, 0.0],
-        },
-    ])
 }
 
 #[test]

@@ -4,6 +4,9 @@ use bandcast::basis::{BasisSet, Shell};
 use bandcast::chem::{Atom, Molecule};
 use bandcast::integrals::{dipole, eri_tensor, kinetic, nuclear, overlap, EriEngine};
 
+mod common;
+use common::crawford_water as water;
+
 fn shell(
     l: usize,
     pure: bool,
@@ -113,7 +116,7 @@ fn h2_sto3g_matches_szabo_ostlund() {
 use bandcast::basis::evaluate::shell_values;
 use bandcast::basis::normalize::contracted_coefficients;
 use bandcast::basis::solid_harmonics::transform;
-use bandcast::integrals::cartesian::components;
+use bandcast::basis::cartesian::components;
 use bandcast_linalg::Mat;
 
 /// Nodes and weights of the n-point Gauss–Hermite rule (weight exp(−x²)).
@@ -902,24 +905,6 @@ fn every_bundled_set_gives_unit_overlap_diagonal() {
             }
         }
     }
-}
-
-/// Water at the Crawford group Programming Projects geometry (bohr; REFERENCE-DATA.md §1).
-fn water() -> Molecule {
-    Molecule::new(vec![
-        Atom {
-            z: 8,
-            position: [0.0, -0.143225816552, 0.0],
-        },
-        Atom {
-            z: 1,
-            position: [1.638036840407, 1.136548822547, 0.0],
-        },
-        Atom {
-            z: 1,
-            position: [-1.638036840407, 1.136548822547, 0.0],
-        },
-    ])
 }
 
 #[test]

@@ -10,6 +10,9 @@ use bandcast::chem::{Atom, Molecule};
 use bandcast::scf::{self, DfStart, FockMethod, Reference, ScfOptions, Wavefunction};
 use bandcast::units::HARTREE_TO_EV;
 
+mod common;
+use common::crawford_water as water_crawford;
+
 const GW100: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/tests/data/gw100");
 
 fn atoms_bohr(list: &[(u32, [f64; 3])]) -> Molecule {
@@ -68,15 +71,6 @@ fn heh_cation_szabo_ostlund_zetas() {
     // Szabo & Ostlund (1989) ch. 3: E = −2.860662 (memory; the book rounds its contraction,
     // agreement to ~1e-5 expected).
     assert!((wf.energy - (-2.860662)).abs() < 2e-5, "{}", wf.energy);
-}
-
-fn water_crawford() -> Molecule {
-    // Crawford group Programming Projects, water STO-3G geometry (bohr).
-    atoms_bohr(&[
-        (8, [0.0, -0.143225816552, 0.0]),
-        (1, [1.638036840407, 1.136548822547, 0.0]),
-        (1, [-1.638036840407, 1.136548822547, 0.0]),
-    ])
 }
 
 #[test]

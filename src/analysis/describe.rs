@@ -6,7 +6,7 @@ use super::population::orbital_makeup;
 use super::symmetry::{degenerate_sets, label_orbitals, PointGroup};
 use crate::basis::BasisSet;
 use crate::chem::Molecule;
-use crate::ionization::MakeupEntry;
+use crate::analysis::makeup::MakeupEntry;
 use bandcast_linalg::Mat;
 
 /// One degenerate set of orbitals (one band).

@@ -2,7 +2,9 @@
 //! bonding character.
 pub mod bonding;
 pub mod describe;
+pub mod makeup;
 pub mod population;
 pub mod symmetry;
 
 pub use describe::{describe_orbital_sets, OrbitalSet};
+pub use makeup::MakeupEntry;

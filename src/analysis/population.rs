@@ -28,7 +28,7 @@
 use crate::basis::BasisSet;
 use crate::chem::elements;
 use crate::chem::Molecule;
-use crate::ionization::MakeupEntry;
+use crate::analysis::makeup::MakeupEntry;
 use bandcast_linalg::Mat;
 use std::collections::BTreeMap;
 

@@ -5,7 +5,7 @@
 use crate::basis::normalize::contracted_coefficients;
 use crate::basis::solid_harmonics;
 use crate::basis::Shell;
-use crate::integrals::cartesian::components;
+use crate::basis::cartesian::components;
 
 /// AO values of `shell` at `point` (bohr).
 pub fn shell_values(shell: &Shell, point: [f64; 3]) -> Vec<f64> {

@@ -1,5 +1,6 @@
 //! Basis sets: shells, bundled data, loading by name or path.
 //!
+//! - `cartesian`: Cartesian component order, double factorials.
 //! - `shell`: the Shell / BasisSet contract (AO order, normalisation).
 //! - `schema`: the basis-set file format and its reader.
 //! - `catalog`: the sets bundled in the binary.
@@ -7,6 +8,7 @@
 //! - `load`: a set on a molecule.
 //! - `normalize`, `solid_harmonics`, `evaluate`: AO normalisation, Cartesian → real solid
 //!   harmonics, AO values at a point.
+pub mod cartesian;
 pub mod catalog;
 pub mod evaluate;
 pub mod load;

@@ -9,7 +9,7 @@
 //! normalised too.
 
 use crate::basis::Shell;
-use crate::integrals::cartesian::double_factorial;
+use crate::basis::cartesian::double_factorial;
 use std::f64::consts::PI;
 
 /// Normalisation constant of the primitive x^l exp(−α r²).

@@ -16,7 +16,7 @@
 //! factors); for s and p it is the identity.
 
 use crate::basis::normalize::component_factor;
-use crate::integrals::cartesian::{components, double_factorial, n_cartesian, MAX_L};
+use crate::basis::cartesian::{components, double_factorial, n_cartesian, MAX_L};
 use std::sync::OnceLock;
 
 fn binom(n: i64, k: i64) -> f64 {

@@ -1,5 +1,14 @@
-//! Benchmark workloads for `bandcast bench`, kept apart from the numerical modules they
-//! measure. The CLI parses and prints; the work is here.
+//! Benchmark workloads behind `bandcast bench …`, kept out of the numerical modules. Plain
+//! functions returning plain results; the CLI prints them. Timings are wall-clock and CPU
+//! seconds from `system`, and depend on the machine.
 //!
+//! - `integrals`: ERI throughput per angular-momentum class, all ERIs of a molecule.
+//! - `scf`: SCF cases (wall, CPU, peak memory).
+//! - `ep2`: SCF and EP2 for all valence bands.
+//! - `eom`: EOM-IP stages (factors → MO blocks → ground state → H̄ → roots).
 //! - `core_level`: carbon 1s levels of an all-trans n-alkane.
 pub mod core_level;
+pub mod eom;
+pub mod ep2;
+pub mod integrals;
+pub mod scf;

@@ -1,11 +1,11 @@
 //! `bandcast bench`: performance workloads. Each workload is a subcommand; its work lives in
-//! the library (e.g. `bandcast::integrals::bench`), this file only parses and prints.
+//! the library (e.g. `bandcast::bench::integrals`), this file only parses and prints.
 //! To add a workload: one variant in `Workload` and one arm in `run`.
 
 use std::path::{Path, PathBuf};
 
 use bandcast::chem::xyz::{read_xyz, LengthUnit};
-use bandcast::integrals::bench::{all_eris, class_throughput};
+use bandcast::bench::integrals::{all_eris, class_throughput};
 use bandcast::{Error, Result};
 
 #[derive(clap::Args, Debug)]
@@ -18,7 +18,7 @@ pub struct Args {
 pub enum Workload {
     /// ERI throughput per angular-momentum class and wall time for all ERIs of molecules.
     Integrals(IntegralsArgs),
-    /// SCF and EP2 valence IEs of one molecule (args in cli/ionize.rs).
+    /// SCF and EP2 valence IEs of one molecule: wall and CPU time of each step.
     Ep2(super::ionize::Ep2BenchArgs),
     /// SCF wall time, iterations, peak memory and 1→N-thread speed-up (see `bandcast bench scf --help`).
     Scf(super::scf::BenchArgs),
@@ -43,8 +43,8 @@ pub struct IntegralsArgs {
     /// Schwarz threshold for skipping quartets in the molecule runs.
     #[arg(long, default_value_t = 1e-12, value_name = "EH")]
     pub threshold: f64,
-    /// Compute the molecule runs with one `shell_quartets` call per bra pair (kets batched)
-    /// instead of one `shell_quartet` call per quartet.
+    /// Compute the molecule runs with the ket shells of each bra pair in one batch instead
+    /// of one shell quartet at a time.
     #[arg(long)]
     pub ket_batches: bool,
     /// Seconds spent on each class.
@@ -64,6 +64,10 @@ pub fn run(args: Args) -> Result<()> {
         Workload::Eom(a) => super::eom_bench::bench(a),
     }
 }
+
+/// Printed on stderr when the old spelling `--quick` of `--small` is used.
+pub const QUICK_NOTE: &str =
+    "note: bench's --quick is now --small (the old spelling is accepted for one release)";
 
 const DEFAULT_DIR: &str = "tests/data/gw100";
 

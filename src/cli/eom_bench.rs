@@ -1,4 +1,4 @@
-//! `bandcast bench eom`: the EOM-IP workload (library: `bandcast::correlation::bench`).
+//! `bandcast bench eom`: the EOM-IP workload (library: `bandcast::bench::eom`).
 
 use bandcast::{Error, Result};
 
@@ -6,6 +6,9 @@ use bandcast::{Error, Result};
 pub struct BenchArgs {
     /// Small stand-ins only (water/def2-TZVPP and benzene/def2-SVP).
     #[arg(long)]
+    pub small: bool,
+    /// Old spelling of --small, kept for one release.
+    #[arg(long, hide = true)]
     pub quick: bool,
     /// Run only the cases of these molecules (e.g. --only benzene).
     #[arg(long, value_name = "NAME")]
@@ -19,6 +22,9 @@ pub struct BenchArgs {
 }
 
 pub fn bench(a: BenchArgs) -> Result<()> {
+    if a.quick {
+        eprintln!("{}", super::bench::QUICK_NOTE);
+    }
     if !(a.memory > 0.0) {
         return Err(Error::input("--memory must be a positive number of GiB"));
     }
@@ -28,13 +34,13 @@ pub fn bench(a: BenchArgs) -> Result<()> {
          all threads, peak resident memory (VmHWM) within the stage",
         rayon::current_num_threads()
     );
-    bandcast::correlation::bench::run_eom_bench(
+    bandcast::bench::eom::run_eom_bench(
         &a.dir,
-        a.quick,
+        a.small || a.quick,
         &a.only,
         a.memory * 1024.0 * 1024.0 * 1024.0,
         &mut |l| eprintln!("{l}"),
-        &mut |r| print!("{}", bandcast::correlation::bench::format_result(r)),
+        &mut |r| print!("{}", bandcast::bench::eom::format_result(r)),
     )?;
     Ok(())
 }

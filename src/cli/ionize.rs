@@ -5,7 +5,8 @@
 use std::fmt::Write as _;
 
 use bandcast::ionization::method::Method;
-use bandcast::ionization::valence::{default_method, predict, ValenceOptions, ValenceResult};
+use bandcast::ionization::default_method;
+use bandcast::ionization::valence::{predict, ValenceOptions, ValenceResult};
 use bandcast::scf::Reference;
 use bandcast::{Error, Result};
 use serde_json::{json, Value};
@@ -34,10 +35,10 @@ pub struct Args {
     /// Correlate the core electrons too in EP2 and EOM (default: frozen core).
     #[arg(long, alias = "all-electron")]
     pub correlate_core: bool,
-    /// Memory in GB for the MO integrals and the correlated stages (default: half of the
+    /// Memory in GiB for the MO integrals and the correlated stages (default: half of the
     /// machine's memory, at most three quarters of what is available — the rule of
     /// `bandcast scf --memory`). It also decides the default method.
-    #[arg(long, value_name = "GB")]
+    #[arg(long, value_name = "GIB")]
     pub memory: Option<f64>,
     /// Two-electron integrals of eom-ccsd / eom-mp2: ri (density fitting with the fitting
     /// set made for the basis; the default when one is bundled, Cholesky otherwise) or
@@ -55,25 +56,23 @@ substitute for one; check assignments against a measured spectrum before relying
 
 pub fn run(args: Args) -> Result<()> {
     let mol = args.molecule.load()?;
-    let memory_gb = match args.memory {
-        Some(gb) if !(gb > 0.0) => {
-            return Err(Error::input("--memory must be a positive number of GB"))
+    const GIB: f64 = (1u64 << 30) as f64;
+    let memory_bytes = match args.memory {
+        Some(gib) if !(gib > 0.0) => {
+            return Err(Error::input("--memory must be a positive number of GiB"))
         }
-        Some(gb) => gb,
-        None => bandcast::scf::options::default_memory_budget() as f64 / 1e9,
+        Some(gib) => gib * GIB,
+        None => bandcast::system::default_memory_budget() as f64,
     };
     let basis = bandcast::basis::load(&args.basis, &mol, None)?;
-    let defaulted = args.method.is_none();
-    let method = match &args.method {
-        Some(m) => Method::parse(m)?,
-        None if mol.multiplicity == 1 => {
-            bandcast::correlation::method_choice::default_ionization_method(
-                &mol,
-                &basis,
-                Some(memory_gb * 1e9),
-            )
-        }
-        None => default_method(&mol),
+    let choice = match &args.method {
+        Some(_) => None,
+        None => Some(default_method::choose(&mol, &basis, Some(memory_bytes))),
+    };
+    let method = match (&args.method, &choice) {
+        (Some(m), _) => Method::parse(m)?,
+        (None, Some(c)) => c.method,
+        (None, None) => unreachable!("a default is chosen when no method is given"),
     };
     use bandcast::correlation::two_electron::TwoElectron;
     let eom_integrals = match args.integrals.as_deref() {
@@ -102,17 +101,15 @@ pub fn run(args: Args) -> Result<()> {
         count: args.count,
         window_ev: args.window,
         frozen_core: !args.correlate_core,
-        memory_bytes: (memory_gb * 1e9) as usize,
+        memory_bytes: memory_bytes as usize,
         eom_integrals,
         ..Default::default()
     };
     let mut result = predict(&mol, &basis, &opts)?;
-    if defaulted {
-        result.notes.push(format!(
-            "{} — chose {method} for {} basis functions",
-            bandcast::correlation::method_choice::rule_text(),
-            basis.n_basis
-        ));
+    if let Some(c) = &choice {
+        if !matches!(c.reason, default_method::DefaultReason::OpenShell) {
+            result.notes.push(c.to_string());
+        }
     }
     let name = if mol.name.is_empty() {
         args.molecule.file.display().to_string()
@@ -308,7 +305,7 @@ pub struct Ep2BenchArgs {
 pub fn ep2_bench(args: Ep2BenchArgs) -> Result<()> {
     let mol = args.molecule.load()?;
     let basis = bandcast::basis::load(&args.basis, &mol, None)?;
-    let r = bandcast::ionization::bench::run_ep2_bench(&mol, &basis)?;
+    let r = bandcast::bench::ep2::run_ep2_bench(&mol, &basis)?;
     println!("{} / {}: {r}", args.molecule.file.display(), basis.name);
     Ok(())
 }

@@ -135,7 +135,7 @@ pub fn run(args: Args) -> Result<()> {
         max_iter: args.max_iter,
         memory_budget_bytes: match args.memory {
             Some(m) => (m * (1u64 << 30) as f64) as usize,
-            None => scf::default_memory_budget(),
+            None => bandcast::system::default_memory_budget(),
         },
         guess: if args.guess == "core" {
             Guess::Core
@@ -528,6 +528,9 @@ fn to_text(mol: &Molecule, wf: &Wavefunction, info: &RunInfo, all: bool) -> Stri
 pub struct BenchArgs {
     /// Only the small cases (water/cc-pVTZ and benzene/cc-pVDZ).
     #[arg(long)]
+    pub small: bool,
+    /// Old spelling of --small, kept for one release.
+    #[arg(long, hide = true)]
     pub quick: bool,
     /// Add guanine/def2-TZVPP (exact: integral-direct after a density-fitted start unless
     /// ~20 GiB are available, about 100 CPU-s on 2 cores; and
@@ -544,6 +547,10 @@ pub struct BenchArgs {
 }
 
 pub fn bench(a: BenchArgs) -> Result<()> {
+    let small = a.small || a.quick;
+    if a.quick {
+        eprintln!("{}", super::bench::QUICK_NOTE);
+    }
     let budget = match a.memory {
         Some(m) if m.is_finite() && m >= 0.0 => (m * (1u64 << 30) as f64) as usize,
         Some(_) => {
@@ -551,7 +558,7 @@ pub fn bench(a: BenchArgs) -> Result<()> {
                 "--memory must be a non-negative number of GiB",
             ))
         }
-        None => scf::default_memory_budget(),
+        None => bandcast::system::default_memory_budget(),
     };
     println!(
         "SCF benchmark ({} threads; RHF, SAD guess, default thresholds; memory budget for \
@@ -559,8 +566,8 @@ pub fn bench(a: BenchArgs) -> Result<()> {
         rayon::current_num_threads(),
         budget as f64 / (1u64 << 30) as f64
     );
-    bandcast::scf::bench::run_scf_bench(&a.dir, a.quick, a.guanine, budget, &mut |r| {
-        println!("{}", bandcast::scf::bench::format_result(r));
+    bandcast::bench::scf::run_scf_bench(&a.dir, small, a.guanine, budget, &mut |r| {
+        println!("{}", bandcast::bench::scf::format_result(r));
     })?;
     Ok(())
 }

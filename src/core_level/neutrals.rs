@@ -14,7 +14,7 @@ use crate::correlation::mp2::mp2_energy;
 use crate::error::{Error, Result};
 use crate::integrals::EriEngine;
 // TODO(merge): the CPU-time probe moves to `system/`.
-use crate::scf::bench::cpu_seconds;
+use crate::system::process_cpu_seconds as cpu_seconds;
 use crate::scf::fock::source::EngineSource;
 use crate::scf::{Guess, Reference, ScfContext, ScfOptions, Wavefunction};
 
@@ -27,10 +27,10 @@ use super::result::{CoreTimings, StageTiming};
 use super::shared_eri::{shell_map, MixedSource, PlainQuartets};
 
 /// Memory the stored two-electron integrals of a run may take (bytes): the machine-dependent
-/// rule of `bandcast scf` (`scf::options::default_memory_budget`); above it the Fock
+/// rule of `bandcast scf` (`system::default_memory_budget`); above it the Fock
 /// matrices are built integral-direct.
 pub fn memory_budget_bytes() -> usize {
-    crate::scf::options::default_memory_budget()
+    crate::system::default_memory_budget()
 }
 
 /// CPU seconds since `start`, when the probe works.

@@ -8,7 +8,7 @@
 use crate::basis::BasisSet;
 use crate::chem::Molecule;
 use crate::error::{Error, Result};
-use crate::scf::bench::cpu_seconds;
+use crate::system::process_cpu_seconds as cpu_seconds;
 
 use super::assemble::{
     apply_relativistic, apply_shifts, atom_reference, expand_equivalent, molecule_reference,

@@ -11,7 +11,7 @@
 //! thresholds.
 
 use super::ccsd_intermediates as imd;
-use super::diis::Diis;
+use crate::scf::diis::VectorDiis as Diis;
 use super::integrals::MoIntegrals;
 use super::mp2;
 use super::tensor::{einsum, Tensor};

@@ -17,6 +17,7 @@
 //! replace it.
 
 use crate::basis::BasisSet;
+use crate::chem::frozen_core::frozen_orbitals;
 use crate::chem::Molecule;
 use crate::scf::{Reference, Wavefunction};
 use crate::units::HARTREE_TO_EV;
@@ -154,19 +155,6 @@ impl EomReport {
     }
 }
 
-/// Number of core orbitals kept frozen for an element (chemical core, common practice).
-pub fn frozen_core_orbitals(z: u32) -> usize {
-    match z {
-        0..=2 => 0,
-        3..=10 => 1,
-        11..=18 => 5,
-        19..=36 => 9,
-        37..=54 => 18,
-        55..=86 => 34,
-        _ => 50,
-    }
-}
-
 /// Energies for chosen orbitals (one targeted EOM root per orbital, in the given order) as
 /// (IE hartree, one-hole weight), plus notes on how the job was run and warnings about
 /// roots that did not converge or ended on another orbital. Used by
@@ -262,14 +250,11 @@ pub fn ionize_report(
     let c = &wfn.c_alpha;
     let nmo = c.ncols();
     let nocc = wfn.n_alpha();
-    let mut n_frozen = if opts.frozen_core {
-        mol.atoms.iter().map(|a| frozen_core_orbitals(a.z)).sum()
+    let n_frozen = if opts.frozen_core {
+        frozen_orbitals(mol, nocc)
     } else {
         0
     };
-    if n_frozen >= nocc {
-        n_frozen = 0;
-    }
     let o = nocc - n_frozen;
     let v = nmo - nocc;
     if o == 0 || v == 0 {
@@ -289,7 +274,7 @@ pub fn ionize_report(
     };
     let budget = opts
         .memory_budget
-        .unwrap_or_else(|| 0.8 * memory::available_bytes());
+        .unwrap_or_else(|| 0.8 * crate::system::available_bytes());
     let how = two_electron::resolve(&opts.two_electron, mol, basis, opts.cholesky_threshold)?;
     let route = match &how {
         Resolved::Fitted(aux) => FactorRoute::Fitted(aux.n_basis),
@@ -538,7 +523,17 @@ fn empty_report(opts: &EomOptions, wfn: &Wavefunction, nf: usize, o: usize, v: u
 mod tests {
     use super::*;
     use crate::chem::{Atom, Molecule};
-    use crate::correlation::test_rhf::rhf;
+
+    /// The program's RHF (scf::run), converged tightly for the reference values below.
+    fn rhf(mol: &Molecule, basis: &crate::basis::BasisSet) -> Wavefunction {
+        let opts = crate::scf::ScfOptions {
+            e_tol: 1e-12,
+            commutator_tol: 1e-10,
+            screening: 1e-14,
+            ..Default::default()
+        };
+        crate::scf::run(mol, basis, &opts).unwrap()
+    }
 
     fn water() -> Molecule {
         // Crawford group Programming Projects geometry (bohr), REFERENCE-DATA.md §1.

@@ -50,25 +50,6 @@ pub struct MemoryPlan {
     pub budget_bytes: f64,
 }
 
-/// Memory available to this process: `MemAvailable` from /proc/meminfo (Linux), or 4 GiB
-/// when it cannot be read.
-pub fn available_bytes() -> f64 {
-    if let Ok(s) = std::fs::read_to_string("/proc/meminfo") {
-        for line in s.lines() {
-            if let Some(rest) = line.strip_prefix("MemAvailable:") {
-                if let Some(kb) = rest
-                    .split_whitespace()
-                    .next()
-                    .and_then(|x| x.parse::<f64>().ok())
-                {
-                    return kb * 1024.0;
-                }
-            }
-        }
-    }
-    4.0 * 1024.0 * 1024.0 * 1024.0
-}
-
 /// Expected number of Cholesky vectors for `n` basis functions at threshold `tau`
 /// (water/def2-TZVPP needs 6.1 n at 1e-5; the factor grows slowly as the threshold
 /// tightens and falls slowly with molecular size).

@@ -5,16 +5,14 @@
 //! density_fit.rs and cholesky.rs (the two factorisations), integrals.rs (MO integral
 //! blocks from three-index factors), ladder.rs (the (vv|vv) ladder), tensor.rs (dense
 //! tensors and contractions through matrix products), mp2.rs, ccsd_intermediates.rs,
-//! ccsd.rs, diis.rs, davidson.rs (non-symmetric Davidson), eom_ip*.rs (H̄, sigma vectors
+//! ccsd.rs (DIIS from scf::diis), davidson.rs (non-symmetric Davidson), eom_ip*.rs (H̄, sigma vectors
 //! and the `ionize` entry point), memory.rs (estimates before anything large is
 //! allocated), stages.rs (wall/CPU/peak memory per stage).
-pub mod bench;
 pub mod ccsd;
 pub mod ccsd_intermediates;
 pub mod cholesky;
 pub mod davidson;
 pub mod density_fit;
-pub mod diis;
 pub mod integrals;
 pub mod ladder;
 pub mod mp2;
@@ -26,9 +24,6 @@ pub mod eom_ip;
 pub mod eom_ip_intermediates;
 pub mod eom_ip_sigma;
 pub mod memory;
-pub mod method_choice;
 pub mod stages;
 pub mod two_electron;
 
-#[cfg(test)]
-pub(crate) mod test_rhf;

@@ -8,7 +8,7 @@
 
 use std::time::Instant;
 
-use crate::scf::bench::{cpu_seconds, peak_memory_mib};
+use crate::system::{peak_memory_mib, process_cpu_seconds as cpu_seconds, reset_peak_memory};
 
 #[derive(Debug, Clone)]
 pub struct StageRecord {
@@ -26,14 +26,10 @@ pub struct StageClock {
     pub records: Vec<StageRecord>,
 }
 
-fn reset_high_water_mark() {
-    let _ = std::fs::write("/proc/self/clear_refs", "5");
-}
-
 impl StageClock {
     pub fn new(reset_peak: bool) -> Self {
         if reset_peak {
-            reset_high_water_mark();
+            let _ = reset_peak_memory();
         }
         StageClock {
             start: Instant::now(),
@@ -56,7 +52,7 @@ impl StageClock {
             peak_mib: peak_memory_mib(),
         });
         if self.reset_peak {
-            reset_high_water_mark();
+            let _ = reset_peak_memory();
         }
         self.start = Instant::now();
         self.cpu0 = cpu_seconds();

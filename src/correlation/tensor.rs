@@ -339,7 +339,7 @@ fn permuted<'a>(t: &'a Tensor, perm: &[usize]) -> std::borrow::Cow<'a, Tensor> {
 pub static TRACE: std::sync::Mutex<Vec<(String, f64, f64, f64)>> =
     std::sync::Mutex::new(Vec::new());
 fn now_cpu() -> f64 {
-    crate::scf::bench::cpu_seconds().unwrap_or(0.0)
+    crate::system::process_cpu_seconds().unwrap_or(0.0)
 }
 /// Binary contraction, e.g. `einsum("kcld,ilcd->ki", &a, &b)`.
 pub fn einsum(spec: &str, a: &Tensor, b: &Tensor) -> Tensor {

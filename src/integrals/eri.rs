@@ -16,7 +16,7 @@
 use crate::basis::normalize::contracted_coefficients;
 use crate::basis::solid_harmonics;
 use crate::basis::{BasisSet, Shell};
-use crate::integrals::cartesian::n_cartesian;
+use crate::basis::cartesian::n_cartesian;
 use crate::integrals::family_cache::FamilyCache;
 use crate::integrals::ket_batch::ket_batch;
 use crate::integrals::quartet::{contracted_quartet, ssss, Scratch, ShellMeta};

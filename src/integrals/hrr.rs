@@ -13,7 +13,7 @@
 //! for l_a ≤ |e| ≤ l_a + l_b in the order of `vrr::shell_range`; the outputs are the rows
 //! (a, b), |a| = l_a, |b| = l_b, a-major in the component order of `cartesian`.
 
-use crate::integrals::cartesian::{components, MAX_L};
+use crate::basis::cartesian::{components, MAX_L};
 use crate::integrals::vrr::shell_range;
 use std::collections::HashMap;
 use std::sync::OnceLock;

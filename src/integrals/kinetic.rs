@@ -5,7 +5,7 @@
 //! T = −½ (D_x S_y S_z + S_x D_y S_z + S_x S_y D_z).
 
 use crate::basis::BasisSet;
-use crate::integrals::cartesian::components;
+use crate::basis::cartesian::components;
 use crate::integrals::one_electron::{gaussian_product, symmetric_matrices, PrimPair};
 use crate::integrals::overlap::overlap_1d;
 use bandcast_linalg::Mat;

@@ -3,16 +3,12 @@
 //! section "Integrals", for the equations and conventions.
 //!
 //! - `boys`: the Boys function F_m(T).
-//! - `cartesian`: Cartesian component order.
 //! - `hermite_expansion`, `hermite_coulomb`: McMurchie–Davidson E and R quantities.
 //! - `overlap`, `kinetic`, `nuclear`, `dipole`: one-electron matrices (driver in `one_electron`).
 //! - `shell_pair`, `vrr`, `hrr`, `quartet`, `ket_batch`, `family_cache`, `eri`: the
 //!   two-electron engine (Head-Gordon–Pople); `schwarz` screening helpers.
 //! - `density_fitting`: (P|Q) and (P|μν) for density fitting.
-//! - `bench`: workloads behind `bandcast bench integrals`.
-pub mod bench;
 pub mod boys;
-pub mod cartesian;
 pub mod density_fitting;
 pub mod dipole;
 pub mod eri;

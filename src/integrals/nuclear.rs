@@ -4,7 +4,7 @@
 
 use crate::basis::BasisSet;
 use crate::chem::Molecule;
-use crate::integrals::cartesian::components;
+use crate::basis::cartesian::components;
 use crate::integrals::hermite_coulomb::{hermite_r, r_index, RScratch};
 use crate::integrals::hermite_expansion::{e_index, e_len, hermite_e};
 use crate::integrals::one_electron::{gaussian_product, symmetric_matrices, PrimPair};

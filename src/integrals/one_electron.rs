@@ -5,7 +5,7 @@
 use crate::basis::normalize::contracted_coefficients;
 use crate::basis::solid_harmonics;
 use crate::basis::{BasisSet, Shell};
-use crate::integrals::cartesian::n_cartesian;
+use crate::basis::cartesian::n_cartesian;
 use crate::integrals::transform::transform_axis;
 use bandcast_linalg::Mat;
 use rayon::prelude::*;

@@ -2,7 +2,7 @@
 //! S_ij = E^{ij}_0 √(π/p) (Helgaker, Jørgensen & Olsen, eq. 9.5.41), S = S_x S_y S_z.
 
 use crate::basis::BasisSet;
-use crate::integrals::cartesian::components;
+use crate::basis::cartesian::components;
 use crate::integrals::hermite_expansion::{e_index, e_len, hermite_e};
 use crate::integrals::one_electron::{gaussian_product, symmetric_matrices, PrimPair};
 use bandcast_linalg::Mat;

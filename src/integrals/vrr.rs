@@ -19,7 +19,7 @@
 //! are chosen when the plan is built (the cheapest of a few strategies), so the hot loop has
 //! neither index arithmetic nor decisions.
 
-use crate::integrals::cartesian::{components, MAX_L};
+use crate::basis::cartesian::{components, MAX_L};
 use std::sync::OnceLock;
 
 /// One step: for m in 0..n (n and the kind are those of its run),
@@ -608,33 +608,5 @@ mod tests {
                 }
             }
         }
-    }
-}
-#[cfg(test)]
-mod tmp_time {
-    #[test]
-    fn time_all() {
-        let t = std::time::Instant::now();
-        let mut n = 0;
-        let mut big = Vec::new();
-        for la in 0..=4 {
-            for lb in 0..=4 {
-                for lc in 0..=4 {
-                    for ld in 0..=4 {
-                        let t1 = std::time::Instant::now();
-                        let p = super::build_best(la, la + lb, lc, lc + ld);
-                        big.push((t1.elapsed().as_secs_f64(), la, lb, lc, ld, p.steps.len()));
-                        n += p.steps.len();
-                    }
-                }
-            }
-        }
-        big.sort_by(|a, b| b.0.total_cmp(&a.0));
-        eprintln!(
-            "all 625 plans: {:.3} s, {} steps; top: {:?}",
-            t.elapsed().as_secs_f64(),
-            n,
-            &big[..5]
-        );
     }
 }

@@ -10,15 +10,8 @@ pub enum Region {
     Core,
 }
 
-/// One atom-and-shell share of a band's orbital (Mulliken gross population fraction).
-#[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct MakeupEntry {
-    /// Atom label, e.g. "O1" (symbol and 1-based input index).
-    pub atom: String,
-    /// Shell label, e.g. "2p".
-    pub shell: String,
-    pub fraction: f64,
-}
+/// Re-exported from `analysis`, where the make-up of an orbital is computed.
+pub use crate::analysis::MakeupEntry;
 
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Band {

@@ -4,17 +4,15 @@
 //!   electron propagator). `method`: their names and typical errors.
 //! - `bands`: degenerate orbitals → bands; `annotate`: labels and make-up from `analysis`;
 //!   `uncertainty`: which band pairs may be in the wrong order.
-//! - `valence`: the entry point, `valence::predict`. `frozen_core`: core orbital counts.
-//! - `bench`: the `bandcast bench ep2` workload.
+//! - `valence`: the entry point, `valence::predict`. `default_method`: THE default-method rule.
 //!
 //! Core levels (1s holes) live in `crate::core_level`.
 pub mod annotate;
 pub mod band;
 pub mod bands;
-pub mod bench;
 pub mod dscf;
 pub mod ep2;
-pub mod frozen_core;
+pub mod default_method;
 pub mod koopmans;
 pub mod method;
 pub mod uncertainty;

@@ -18,7 +18,7 @@ use crate::ionization::bands::{
 };
 use crate::ionization::dscf::dscf;
 use crate::ionization::ep2::{ep2, Ep2Options};
-use crate::ionization::frozen_core::core_orbitals;
+use crate::chem::frozen_core::core_orbitals;
 use crate::ionization::koopmans::{koopmans, Spin};
 use crate::ionization::method::Method;
 use crate::ionization::uncertainty::{disagreements, merge, within_error, UncertainPair};

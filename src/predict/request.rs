@@ -95,7 +95,7 @@ impl<'a> Request<'a> {
     pub fn memory_bytes(&self) -> usize {
         self.options
             .memory_bytes
-            .unwrap_or_else(crate::scf::options::default_memory_budget)
+            .unwrap_or_else(crate::system::default_memory_budget)
     }
 }
 

@@ -28,23 +28,13 @@ pub fn predict(request: &Request, progress: &(dyn Fn(Progress) + Sync)) -> Resul
 /// rule `bandcast ionize` uses too (closed shells: the most accurate method that fits;
 /// open shells: ΔSCF).
 pub fn default_valence_method(mol: &Molecule, basis: &BasisSet, budget_bytes: usize) -> Method {
-    // merge: default rule
-    if mol.multiplicity == 1 {
-        crate::correlation::method_choice::default_ionization_method(
-            mol,
-            basis,
-            Some(budget_bytes as f64),
-        )
-    } else {
-        valence::default_method(mol)
-    }
+    crate::ionization::default_method::choose(mol, basis, Some(budget_bytes as f64)).method
 }
 
 /// The default rule in words, for the note that says which method it chose.
 fn default_rule_text(mol: &Molecule) -> String {
     if mol.multiplicity == 1 {
-        // merge: default rule
-        crate::correlation::method_choice::rule_text()
+        crate::ionization::default_method::rule_text()
     } else {
         "default method for open shells: dscf (the correlated methods here are closed-shell \
          only)"

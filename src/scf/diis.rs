@@ -12,6 +12,9 @@
 //! ```
 //!
 //! When B becomes numerically singular the oldest entries are dropped until it solves.
+//!
+//! The same Pulay solve (`pulay_coefficients`) serves the coupled-cluster amplitudes
+//! (`VectorDiis`); this file is the one DIIS of the program.
 
 use std::collections::VecDeque;
 
@@ -83,42 +86,110 @@ impl Diis {
 
     /// Solve the bordered system; None when it is singular.
     fn coefficients(&self) -> Option<Vec<f64>> {
-        let m = self.errors.len();
-        let mut b = vec![vec![0.0; m + 1]; m + 1];
-        for i in 0..m {
-            for j in 0..=i {
-                let v: f64 = self.errors[i]
+        pulay_coefficients(&self.errors, Some(1e8))
+    }
+}
+
+/// The Pulay coefficients c (Σ c_i = 1) minimising |Σ c_i e_i|² for the stored error
+/// vectors: the bordered system above, B scaled by its largest diagonal element. None when
+/// the system is singular, or when some |c_i| exceeds `max_coefficient` (near-linear
+/// dependence of the error vectors).
+pub fn pulay_coefficients(
+    errors: &VecDeque<Vec<f64>>,
+    max_coefficient: Option<f64>,
+) -> Option<Vec<f64>> {
+    let m = errors.len();
+    let mut b = vec![vec![0.0; m + 1]; m + 1];
+    for i in 0..m {
+        for j in 0..=i {
+            let v: f64 = errors[i]
+                .iter()
+                .zip(errors[j].iter())
+                .map(|(a, b)| a * b)
+                .sum();
+            b[i][j] = v;
+            b[j][i] = v;
+        }
+    }
+    // Scale by the largest diagonal so the border (−1) is commensurate with B.
+    let scale = (0..m).map(|i| b[i][i]).fold(0.0f64, f64::max);
+    if scale <= 0.0 {
+        return None;
+    }
+    for row in b.iter_mut().take(m) {
+        for v in row.iter_mut().take(m) {
+            *v /= scale;
+        }
+    }
+    for i in 0..m {
+        b[i][m] = -1.0;
+        b[m][i] = -1.0;
+    }
+    let mut rhs = vec![0.0; m + 1];
+    rhs[m] = -1.0;
+    let x = solve_small(&b, &rhs)?;
+    let c = x[..m].to_vec();
+    if let Some(limit) = max_coefficient {
+        if c.iter().any(|v| !v.is_finite() || v.abs() > limit) {
+            return None;
+        }
+    }
+    Some(c)
+}
+
+/// DIIS for flat amplitude vectors (coupled cluster: Scuseria, Lee & Schaefer, Chem. Phys.
+/// Lett. 130 (1986) 236). Each iterate x comes with the step e the Jacobi update wants to
+/// take; the extrapolation is Σ c_i (x_i + e_i).
+pub struct VectorDiis {
+    max: usize,
+    vecs: VecDeque<Vec<f64>>,
+    errs: VecDeque<Vec<f64>>,
+}
+
+impl VectorDiis {
+    pub fn new(max: usize) -> Self {
+        VectorDiis {
+            max: max.max(2),
+            vecs: VecDeque::new(),
+            errs: VecDeque::new(),
+        }
+    }
+
+    /// Store (x, err) and return the extrapolated vector (x itself until two are stored; the
+    /// plain step x + err, after dropping the oldest entry, when the system is singular).
+    pub fn extrapolate(&mut self, x: Vec<f64>, err: Vec<f64>) -> Vec<f64> {
+        if self.vecs.len() == self.max {
+            self.vecs.pop_front();
+            self.errs.pop_front();
+        }
+        self.vecs.push_back(x);
+        self.errs.push_back(err);
+        let m = self.vecs.len();
+        if m < 2 {
+            return self.vecs[m - 1].clone();
+        }
+        match pulay_coefficients(&self.errs, None) {
+            Some(c) => {
+                let n = self.vecs[0].len();
+                let mut out = vec![0.0; n];
+                for (k, ck) in c.iter().take(m).enumerate() {
+                    for (o, (x, e)) in out.iter_mut().zip(self.vecs[k].iter().zip(&self.errs[k])) {
+                        *o += ck * (x + e);
+                    }
+                }
+                out
+            }
+            None => {
+                self.vecs.pop_front();
+                self.errs.pop_front();
+                let k = self.vecs.len() - 1;
+                self.vecs[k]
                     .iter()
-                    .zip(self.errors[j].iter())
-                    .map(|(a, b)| a * b)
-                    .sum();
-                b[i][j] = v;
-                b[j][i] = v;
+                    .zip(&self.errs[k])
+                    .map(|(x, e)| x + e)
+                    .collect()
             }
         }
-        // Scale by the largest diagonal so the border (−1) is commensurate with B.
-        let scale = (0..m).map(|i| b[i][i]).fold(0.0f64, f64::max);
-        if scale <= 0.0 {
-            return None;
-        }
-        for row in b.iter_mut().take(m) {
-            for v in row.iter_mut().take(m) {
-                *v /= scale;
-            }
-        }
-        for i in 0..m {
-            b[i][m] = -1.0;
-            b[m][i] = -1.0;
-        }
-        let mut rhs = vec![0.0; m + 1];
-        rhs[m] = -1.0;
-        let x = solve_small(&b, &rhs)?;
-        let c = x[..m].to_vec();
-        // Wildly large coefficients mean near-linear dependence of the error vectors.
-        if c.iter().any(|v| !v.is_finite() || v.abs() > 1e8) {
-            return None;
-        }
-        Some(c)
     }
 }
 
@@ -158,5 +229,33 @@ mod tests {
             d.extrapolate(vec![f], vec![(k as f64).exp(), 1.0 / (1.0 + k as f64)]);
         }
         assert!(d.len() <= 3);
+    }
+
+    /// DIIS on a linear fixed-point iteration x ← Bx + c converges to the solution of
+    /// (1 − B)x = c far faster than the plain iteration (Pulay 1980).
+    #[test]
+    fn diis_solves_linear_fixed_point() {
+        let n = 6;
+        let b: Vec<Vec<f64>> = (0..n)
+            .map(|i| {
+                (0..n)
+                    .map(|j| 0.9 * ((i * 3 + j * 5) % 7) as f64 / 7.0 / n as f64)
+                    .collect()
+            })
+            .collect();
+        let c: Vec<f64> = (0..n).map(|i| 1.0 + i as f64).collect();
+        let mut x = vec![0.0; n];
+        let mut diis = VectorDiis::new(8);
+        for _ in 0..30 {
+            let nx: Vec<f64> = (0..n)
+                .map(|i| (0..n).map(|j| b[i][j] * x[j]).sum::<f64>() + c[i])
+                .collect();
+            let err: Vec<f64> = nx.iter().zip(&x).map(|(a, b)| a - b).collect();
+            x = diis.extrapolate(x, err);
+        }
+        for i in 0..n {
+            let r: f64 = x[i] - (0..n).map(|j| b[i][j] * x[j]).sum::<f64>() - c[i];
+            assert!(r.abs() < 1e-10, "residual {r}");
+        }
     }
 }

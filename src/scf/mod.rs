@@ -6,7 +6,6 @@
 //! `orthogonalize` (canonical orthogonalisation), `guess` (core, SAD), `rohf` (effective Fock
 //! matrix), `spin` (⟨S²⟩), `symmetrise` (optional point-group constraint on the densities),
 //! `wavefunction` (the result every later method reads).
-pub mod bench;
 pub mod context;
 pub mod convergence;
 pub mod df_start;
@@ -25,7 +24,7 @@ pub mod wavefunction;
 pub use context::{core_hamiltonian, dipole_moment, run, run_logged, sad_density, ScfContext};
 pub use driver::{IterationInfo, Problem, Solution, Start};
 pub use fock::{FockBuilder, Jk};
-pub use options::{default_memory_budget, DfStart, FockMethod, Guess, Occupation, ScfOptions};
+pub use options::{DfStart, FockMethod, Guess, Occupation, ScfOptions};
 pub use orthogonalize::Orthogonalizer;
 pub use symmetrise::{DensitySymmetry, SymmetrisedFock};
 pub use wavefunction::{Reference, Wavefunction};

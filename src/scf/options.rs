@@ -1,5 +1,6 @@
 //! What an SCF run is asked to do: reference, thresholds, guess, occupations, fallbacks.
 
+use crate::system::default_memory_budget;
 use bandcast_linalg::Mat;
 
 pub use super::symmetrise::DensitySymmetry;
@@ -70,32 +71,6 @@ pub enum DfStart {
     Never,
 }
 
-/// The default memory budget for stored two-electron integrals (in-core ERIs, the
-/// density-fitting tensor): half of the physical memory, but no more than three quarters of
-/// the memory available when the program starts (Linux /proc/meminfo: MemTotal,
-/// MemAvailable); 4 GiB where that file cannot be read. Read once per process.
-pub fn default_memory_budget() -> usize {
-    static BUDGET: std::sync::OnceLock<usize> = std::sync::OnceLock::new();
-    *BUDGET.get_or_init(|| {
-        std::fs::read_to_string("/proc/meminfo")
-            .ok()
-            .and_then(|s| memory_budget_from_meminfo(&s))
-            .unwrap_or(4 << 30)
-    })
-}
-
-/// The rule of `default_memory_budget` applied to the text of /proc/meminfo.
-pub fn memory_budget_from_meminfo(text: &str) -> Option<usize> {
-    let field = |name: &str| -> Option<usize> {
-        let line = text.lines().find(|l| l.starts_with(name))?;
-        let kb: usize = line.split_whitespace().nth(1)?.parse().ok()?;
-        Some(kb * 1024)
-    };
-    let total = field("MemTotal:")?;
-    let avail = field("MemAvailable:").unwrap_or(total);
-    Some((total / 2).min(avail / 4 * 3))
-}
-
 /// Options of one SCF run. `ScfOptions::default()` is RHF, SAD guess, aufbau, DIIS.
 /// Progress lines: pass a callback to `run_logged` / `ScfContext::run`; threads: run inside
 /// a rayon `ThreadPool::install` (the result does not depend on the thread count).
@@ -154,19 +129,5 @@ impl Default for ScfOptions {
             screening: 1e-12,
             density_symmetry: None,
         }
-    }
-}
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn budget_is_half_the_memory_or_three_quarters_of_what_is_free() {
-        let text = "MemTotal:       16000000 kB\nMemFree:  1000 kB\nMemAvailable:   12000000 kB\n";
-        assert_eq!(memory_budget_from_meminfo(text), Some(8_000_000 * 1024));
-        let busy = "MemTotal:       16000000 kB\nMemAvailable:    4000000 kB\n";
-        assert_eq!(memory_budget_from_meminfo(busy), Some(3_000_000 * 1024));
-        assert_eq!(memory_budget_from_meminfo("nothing"), None);
     }
 }

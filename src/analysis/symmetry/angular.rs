@@ -3,7 +3,7 @@
 //! angular polynomials matter).
 //!
 //! The angular polynomials are the integral engine's own: raw Cartesian monomials
-//! (`integrals::cartesian::components`) times `basis::solid_harmonics::transform`, i.e. the
+//! (`basis::cartesian::components`) times `basis::solid_harmonics::transform`, i.e. the
 //! same order, normalisation and real-solid-harmonic phases as the AOs in S and C (no second
 //! copy of the conventions). D is obtained exactly, up to rounding, by least squares over a
 //! fixed set of points on the unit sphere: the shell's function space is closed under
@@ -11,7 +11,7 @@
 
 use super::ops::{self, Mat3};
 use crate::basis::solid_harmonics;
-use crate::integrals::cartesian::components;
+use crate::basis::cartesian::components;
 
 /// Values of a shell's angular functions (AO order of `basis::shell`) at `u`.
 pub fn angular_values(l: usize, pure: bool, u: &[f64; 3]) -> Vec<f64> {

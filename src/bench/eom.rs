@@ -10,8 +10,8 @@ use crate::chem::xyz::{read_xyz, LengthUnit};
 use crate::error::Result;
 use crate::scf::{self, ScfOptions};
 
-use super::eom_ip::{ionize_report, EomMethod, EomOptions, RootSpec};
-use super::stages::{StageClock, StageRecord};
+use crate::correlation::eom_ip::{ionize_report, EomMethod, EomOptions, RootSpec};
+use crate::correlation::stages::{StageClock, StageRecord};
 
 #[derive(Debug, Clone)]
 pub struct Case {

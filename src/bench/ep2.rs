@@ -6,7 +6,7 @@ use std::time::Instant;
 use crate::basis::BasisSet;
 use crate::chem::Molecule;
 use crate::error::Result;
-use crate::integrals::bench::cpu_seconds;
+use crate::system::process_cpu_seconds;
 use crate::ionization::method::Method;
 use crate::ionization::valence::{predict_with, ValenceOptions};
 use crate::scf::{Reference, ScfOptions};
@@ -50,7 +50,7 @@ fn cpu(s: Option<f64>) -> String {
 
 /// Run the closed-shell SCF, then EP2 for every valence band, timing each.
 pub fn run_ep2_bench(mol: &Molecule, basis: &BasisSet) -> Result<Ep2Bench> {
-    let c0 = cpu_seconds(true);
+    let c0 = process_cpu_seconds();
     let t0 = Instant::now();
     let scf = ScfOptions {
         reference: Reference::Rhf,
@@ -58,7 +58,7 @@ pub fn run_ep2_bench(mol: &Molecule, basis: &BasisSet) -> Result<Ep2Bench> {
     };
     let wf = crate::scf::run(mol, basis, &scf)?;
     let scf_seconds = t0.elapsed().as_secs_f64();
-    let c1 = cpu_seconds(true);
+    let c1 = process_cpu_seconds();
     let t1 = Instant::now();
     let r = predict_with(
         mol,
@@ -70,7 +70,7 @@ pub fn run_ep2_bench(mol: &Molecule, basis: &BasisSet) -> Result<Ep2Bench> {
         },
     )?;
     let ep2_seconds = t1.elapsed().as_secs_f64();
-    let c2 = cpu_seconds(true);
+    let c2 = process_cpu_seconds();
     Ok(Ep2Bench {
         n_basis: basis.n_basis,
         n_bands: r.bands.len(),

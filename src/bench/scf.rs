@@ -9,6 +9,7 @@ use crate::basis;
 use crate::chem::xyz::{read_xyz, LengthUnit};
 use crate::error::{Error, Result};
 use crate::scf::{self, DfStart, FockMethod, ScfContext, ScfOptions};
+use crate::system::{peak_memory_mib, process_cpu_seconds, reset_peak_memory, resident_memory_mib};
 use crate::units::HARTREE_TO_EV;
 
 /// One benchmark case: a GW100 structure file stem, a basis and a Fock builder.
@@ -93,39 +94,6 @@ pub struct CaseResult {
     pub timings: Vec<(String, f64)>,
 }
 
-/// CPU time (user + system, all threads) of the process so far, from /proc/self/stat
-/// (Linux; clock ticks assumed 100 per second, the Linux default).
-pub fn cpu_seconds() -> Option<f64> {
-    let s = std::fs::read_to_string("/proc/self/stat").ok()?;
-    let rest = &s[s.rfind(')')? + 2..];
-    let f: Vec<&str> = rest.split_whitespace().collect();
-    let ut: f64 = f.get(11)?.parse().ok()?;
-    let st: f64 = f.get(12)?.parse().ok()?;
-    Some((ut + st) / 100.0)
-}
-
-/// Peak resident set size from /proc/self/status (Linux), MiB.
-pub fn peak_memory_mib() -> Option<f64> {
-    let s = std::fs::read_to_string("/proc/self/status").ok()?;
-    let line = s.lines().find(|l| l.starts_with("VmHWM:"))?;
-    let kb: f64 = line.split_whitespace().nth(1)?.parse().ok()?;
-    Some(kb / 1024.0)
-}
-
-/// Current resident set size from /proc/self/status (Linux), MiB.
-pub fn resident_memory_mib() -> Option<f64> {
-    let s = std::fs::read_to_string("/proc/self/status").ok()?;
-    let line = s.lines().find(|l| l.starts_with("VmRSS:"))?;
-    let kb: f64 = line.split_whitespace().nth(1)?.parse().ok()?;
-    Some(kb / 1024.0)
-}
-
-/// Reset the peak resident set size to the current one (Linux: "5" to
-/// /proc/self/clear_refs), so that the next `peak_memory_mib` covers what follows.
-pub fn reset_peak_memory() -> bool {
-    std::fs::write("/proc/self/clear_refs", "5").is_ok()
-}
-
 struct Timed {
     seconds: f64,
     cpu: Option<f64>,
@@ -141,7 +109,7 @@ fn time_one(dir: &Path, case: &Case, budget: usize) -> Result<Timed> {
     let mol = read_xyz(&path, LengthUnit::Angstrom)?;
     let b = basis::load(case.basis, &mol, None)?;
     let t0 = Instant::now();
-    let c0 = cpu_seconds();
+    let c0 = process_cpu_seconds();
     let opts = ScfOptions {
         fock: case.fock,
         df_start: case.df_start,
@@ -150,7 +118,7 @@ fn time_one(dir: &Path, case: &Case, budget: usize) -> Result<Timed> {
     };
     let mut ctx = ScfContext::new(&mol, &b, opts.lindep_threshold)?;
     let wf = ctx.run(&mol, &opts, &mut |_| {})?;
-    let cpu = match (c0, cpu_seconds()) {
+    let cpu = match (c0, process_cpu_seconds()) {
         (Some(a), Some(b)) => Some(b - a),
         _ => None,
     };

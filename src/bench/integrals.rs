@@ -3,26 +3,11 @@
 //! results; the CLI prints them. Timings are wall-clock and depend on the machine.
 
 use crate::basis::{BasisSet, Shell};
-use crate::integrals::cartesian::n_cartesian;
+use crate::basis::cartesian::n_cartesian;
 use crate::integrals::EriEngine;
+use crate::system::{process_cpu_seconds, thread_cpu_seconds};
 use rayon::prelude::*;
 use std::time::Instant;
-
-/// CPU seconds (user + system) of this thread or process from /proc (Linux; None
-/// elsewhere). Lets a benchmark on a shared machine report work per CPU-second.
-pub fn cpu_seconds(whole_process: bool) -> Option<f64> {
-    let path = if whole_process {
-        "/proc/self/stat"
-    } else {
-        "/proc/thread-self/stat"
-    };
-    let text = std::fs::read_to_string(path).ok()?;
-    // fields after the parenthesised command name; utime and stime are fields 14 and 15
-    let rest = &text[text.rfind(')')? + 2..];
-    let f: Vec<&str> = rest.split_whitespace().collect();
-    let ticks: f64 = f.get(11)?.parse::<f64>().ok()? + f.get(12)?.parse::<f64>().ok()?;
-    Some(ticks / 100.0) // USER_HZ is 100 on Linux
-}
 
 /// Throughput of one class (la lb | lc ld), one thread.
 #[derive(Debug, Clone, serde::Serialize)]
@@ -83,7 +68,7 @@ pub fn class_throughput(ls: [usize; 4], n_prim: usize, min_seconds: f64) -> Clas
     let basis = BasisSet::from_shells("bench", shells);
     let engine = EriEngine::new(&basis);
     let mut out = Vec::new();
-    let cpu0 = cpu_seconds(false);
+    let cpu0 = thread_cpu_seconds();
     let start = Instant::now();
     let mut reps = 0usize;
     loop {
@@ -96,7 +81,7 @@ pub fn class_throughput(ls: [usize; 4], n_prim: usize, min_seconds: f64) -> Clas
         }
     }
     let dt = start.elapsed().as_secs_f64();
-    let cpu = cpu_seconds(false).zip(cpu0).map(|(a, b)| a - b);
+    let cpu = thread_cpu_seconds().zip(cpu0).map(|(a, b)| a - b);
     let letters = ['s', 'p', 'd', 'f', 'g', 'h'];
     let n_cart: usize = ls.iter().map(|&l| n_cartesian(l)).product();
     ClassTiming {
@@ -123,7 +108,7 @@ pub fn all_eris(basis: &BasisSet, threshold: f64, ket_batches: bool) -> Molecule
     let n = engine.n_shells();
     let sch = engine.schwarz();
     let pairs: Vec<(usize, usize)> = (0..n).flat_map(|a| (0..=a).map(move |b| (a, b))).collect();
-    let cpu0 = cpu_seconds(true);
+    let cpu0 = process_cpu_seconds();
     let t1 = Instant::now();
     let per_pair: Vec<(usize, usize, usize, f64)> = pairs
         .par_iter()
@@ -157,7 +142,7 @@ pub fn all_eris(basis: &BasisSet, threshold: f64, ket_batches: bool) -> Molecule
         })
         .collect();
     let dt = t1.elapsed().as_secs_f64();
-    let cpu = cpu_seconds(true).zip(cpu0).map(|(a, b)| a - b);
+    let cpu = process_cpu_seconds().zip(cpu0).map(|(a, b)| a - b);
     let (mut done, mut skipped, mut count, mut sum) = (0, 0, 0, 0.0);
     for (d, s, c, x) in per_pair {
         done += d;
