@@ -71,7 +71,8 @@ pub fn parse_xyz(text: &str, unit: LengthUnit) -> Result<Molecule> {
         LengthUnit::Angstrom => ANGSTROM_TO_BOHR,
         LengthUnit::Bohr => 1.0,
     };
-    let mut atoms = Vec::with_capacity(n);
+    // The count comes from the file: never trust it for an allocation.
+    let mut atoms = Vec::with_capacity(n.min(lines.len()));
     let mut idx = 2;
     while atoms.len() < n {
         let lineno = idx + 1;
@@ -160,6 +161,28 @@ pub fn parse_xyz(text: &str, unit: LengthUnit) -> Result<Molecule> {
     let mut m = Molecule::new(atoms.into_iter().map(|(_, a)| a).collect());
     m.name = comment;
     Ok(m)
+}
+
+/// The molecule as XYZ text that `parse_xyz` reads back to the same atoms: the atom count,
+/// the name as the comment line (line breaks replaced by spaces), then one `Symbol x y z`
+/// line per atom in `unit`. Coordinates use the shortest decimal that reads back to the same
+/// f64, so with `LengthUnit::Bohr` the round trip is exact; in Å it is exact to the last bit
+/// or two of the Å ↔ bohr conversion.
+pub fn write_xyz(mol: &Molecule, unit: LengthUnit) -> String {
+    let scale = match unit {
+        LengthUnit::Angstrom => 1.0 / ANGSTROM_TO_BOHR,
+        LengthUnit::Bohr => 1.0,
+    };
+    let mut out = format!(
+        "{}\n{}\n",
+        mol.atoms.len(),
+        mol.name.replace(['\n', '\r'], " ")
+    );
+    for a in &mol.atoms {
+        let [x, y, z] = a.position.map(|c| c * scale);
+        out.push_str(&format!("{} {x:?} {y:?} {z:?}\n", a.symbol()));
+    }
+    out
 }
 
 #[cfg(test)]
