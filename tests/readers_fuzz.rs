@@ -1,5 +1,5 @@
-//! Generated and mutated inputs for the three readers a user feeds by hand: XYZ structures,
-//! basis-set JSON files and measured traces.
+//! Generated and mutated inputs for the readers a user feeds by hand: XYZ structures,
+//! MOL/SD files, basis-set JSON files and measured traces.
 //!
 //! What every case must show (the input rules of the command line, DEVELOPERS.md):
 //! - no panic, whatever the bytes;
@@ -9,7 +9,7 @@
 //!   trip).
 //!
 //! The generator is a small seeded xorshift, so a failure names a seed and case number that
-//! reproduce it. Case counts are chosen so the three corpora together take a few seconds in a
+//! reproduce it. Case counts are chosen so the corpora together take a few seconds in a
 //! release build; the corpus sizes are the `CASES_*` constants (README, "Reliability").
 
 use std::panic::{catch_unwind, AssertUnwindSafe};
@@ -24,6 +24,7 @@ use bandcast::Error;
 const CASES_XYZ: usize = 6000;
 const CASES_BASIS: usize = 3000;
 const CASES_TRACE: usize = 6000;
+const CASES_MOLFILE: usize = 4000;
 
 /// xorshift64*: deterministic, no dependency.
 struct Rng(u64);
@@ -442,6 +443,90 @@ fn trace_reader_survives_generated_and_mutated_files() {
     }
     assert!(
         valid > 1000 && invalid > 1000,
+        "{valid} valid, {invalid} invalid"
+    );
+}
+
+/// A V2000 record in the fixed columns of the CTfile specification (4 decimals, Å).
+fn write_v2000(m: &Molecule, title: &str, charge: i32) -> String {
+    let a = 1.0 / bandcast::units::ANGSTROM_TO_BOHR;
+    let mut t = format!(
+        "{title}\n     fuzz           3D\n\n{:3}  0  0  0  0  0  0  0  0  0999 V2000\n",
+        m.atoms.len()
+    );
+    for at in &m.atoms {
+        let [x, y, z] = at.position.map(|c| c * a);
+        t.push_str(&format!(
+            "{x:10.4}{y:10.4}{z:10.4} {:<3} 0  0  0  0  0  0  0  0  0  0  0  0\n",
+            at.symbol()
+        ));
+    }
+    if charge != 0 {
+        t.push_str(&format!("M  CHG  1   1 {charge:3}\n"));
+    }
+    t.push_str("M  END\n");
+    t
+}
+
+#[test]
+fn molfile_reader_survives_generated_and_mutated_files() {
+    use bandcast::chem::sdf::parse_sdf;
+    let file = Path::new("fuzz.sdf");
+    let mut rng = Rng::new(0x5EED_0004);
+    let (mut valid, mut invalid) = (0, 0);
+    for case in 0..CASES_MOLFILE {
+        // one to three records; a charge of ±1 where the electron count allows a closed shell
+        let n_rec = 1 + rng.below(3);
+        let mut text = String::new();
+        let mut mols = Vec::new();
+        for r in 0..n_rec {
+            let m = random_molecule(&mut rng);
+            let q = if m.nuclear_charge() % 2 == 1 { 1 } else { 0 };
+            text.push_str(&write_v2000(&m, &format!("record {r}"), q));
+            if r + 1 < n_rec {
+                text.push_str("> <note>\nfuzz\n\n$$$$\n");
+            }
+            mols.push((m, q));
+        }
+        let recs = parse_sdf(&text)
+            .unwrap_or_else(|e| panic!("case {case}: generated file rejected: {e}\n{text}"));
+        assert_eq!(recs.len(), n_rec, "case {case}: record count");
+        for (r, (m, q)) in recs.iter().zip(&mols) {
+            // four decimals in Å: each coordinate within half a unit of the last place
+            assert_eq!(
+                m.atoms.len(),
+                r.molecule.atoms.len(),
+                "case {case}: atom count"
+            );
+            for (x, y) in m.atoms.iter().zip(&r.molecule.atoms) {
+                assert_eq!(x.z, y.z, "case {case}: element");
+                for k in 0..3 {
+                    let d =
+                        (x.position[k] - y.position[k]).abs() / bandcast::units::ANGSTROM_TO_BOHR;
+                    assert!(d <= 0.51e-4, "case {case}: coordinate off by {d} Å");
+                }
+            }
+            assert_eq!(r.molecule.charge, *q, "case {case}: charge");
+        }
+        for _ in 0..1 + rng.below(3) {
+            text = mutate(&mut rng, &text);
+        }
+        let label = format!("molfile case {case} (seed 0x5EED0004)\n{text}");
+        match catch_unwind(AssertUnwindSafe(|| parse_sdf(&text)))
+            .unwrap_or_else(|_| panic!("{label}: the reader panicked"))
+        {
+            Ok(recs) => {
+                valid += 1;
+                assert!(!recs.is_empty(), "{label}: no records but no error");
+            }
+            Err(e) => {
+                invalid += 1;
+                check_input_error(&e, file, &text, &label);
+            }
+        }
+    }
+    assert!(
+        valid > 200 && invalid > 1000,
         "{valid} valid, {invalid} invalid"
     );
 }

@@ -141,12 +141,23 @@ pub fn parse_xyz(text: &str, unit: LengthUnit) -> Result<Molecule> {
             ),
         ));
     }
+    check_separation(&atoms).map_err(|(line, msg)| err(line, msg))?;
+    let mut m = Molecule::new(atoms.into_iter().map(|(_, a)| a).collect());
+    m.name = comment;
+    Ok(m)
+}
+
+/// Refuse nuclei closer than `MIN_SEPARATION_ANGSTROM`: (1-based line of the later atom,
+/// message). Shared by every structure reader.
+pub(crate) fn check_separation(
+    atoms: &[(usize, Atom)],
+) -> std::result::Result<(), (usize, String)> {
     let min_sep = MIN_SEPARATION_ANGSTROM * ANGSTROM_TO_BOHR;
     for i in 0..atoms.len() {
         for j in 0..i {
             let d = distance(&atoms[i].1.position, &atoms[j].1.position);
             if d < min_sep {
-                return Err(err(
+                return Err((
                     atoms[i].0,
                     format!(
                         "atom {} lies {:.4} Å from atom {} (closer than {MIN_SEPARATION_ANGSTROM} Å): check the coordinates and the unit",
@@ -158,9 +169,7 @@ pub fn parse_xyz(text: &str, unit: LengthUnit) -> Result<Molecule> {
             }
         }
     }
-    let mut m = Molecule::new(atoms.into_iter().map(|(_, a)| a).collect());
-    m.name = comment;
-    Ok(m)
+    Ok(())
 }
 
 /// The molecule as XYZ text that `parse_xyz` reads back to the same atoms: the atom count,
