@@ -6,6 +6,7 @@
 
 pub mod analysis;
 pub mod basis;
+pub mod batch;
 pub mod chem;
 pub mod correlation;
 pub mod error;

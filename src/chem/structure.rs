@@ -46,9 +46,8 @@ pub fn read_structures(path: &Path, unit: LengthUnit) -> Result<Vec<Record>> {
     match format_of(path, &text) {
         Format::Xyz => {
             let mut molecule = parse_xyz(&text, unit).map_err(with_file)?;
-            if molecule.name.is_empty() {
-                molecule.name = stem;
-            }
+            // the comment line is free text (often a citation): the file names the molecule
+            molecule.name = stem;
             Ok(vec![Record {
                 molecule,
                 charge: None,
@@ -77,5 +76,46 @@ pub fn read_structures(path: &Path, unit: LengthUnit) -> Result<Vec<Record>> {
             }
             Ok(records)
         }
+    }
+}
+
+/// Split `FILE#K` (record K, from 1, of an SD file) into the path and the record number; a
+/// name that merely contains `#` but exists as a file is taken whole.
+pub fn split_record_spec(spec: &Path) -> (std::path::PathBuf, Option<usize>) {
+    let text = spec.to_string_lossy();
+    if !spec.exists() {
+        if let Some((file, k)) = text.rsplit_once('#') {
+            if let Ok(k) = k.parse::<usize>() {
+                return (std::path::PathBuf::from(file), Some(k));
+            }
+        }
+    }
+    (spec.to_path_buf(), None)
+}
+
+/// The one structure a single-molecule command works on: the file's only structure, or record
+/// K of an SD file named as `FILE#K`. A file with several records and no `#K` is an input
+/// error that says how many it holds.
+pub fn read_one(spec: &Path, unit: LengthUnit) -> Result<Record> {
+    let (path, k) = split_record_spec(spec);
+    let mut records = read_structures(&path, unit)?;
+    let n = records.len();
+    match k {
+        Some(0) => Err(Error::input_at(&path, None, "records are numbered from 1")),
+        Some(k) if k > n => Err(Error::input_at(
+            &path,
+            None,
+            format!("record {k} asked for, but the file holds {n}"),
+        )),
+        Some(k) => Ok(records.swap_remove(k - 1)),
+        None if n > 1 => Err(Error::input_at(
+            &path,
+            None,
+            format!(
+                "the file holds {n} structures; name one as {}#K (K from 1 to {n}), or run them all with `bandcast batch`",
+                path.display()
+            ),
+        )),
+        None => Ok(records.remove(0)),
     }
 }

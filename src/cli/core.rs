@@ -86,7 +86,7 @@ pub fn options(args: &Args) -> Result<CoreOptions> {
         (Some(path), _) => {
             let state = StateArgs {
                 bohr: args.molecule.state.bohr,
-                charge: 0,
+                charge: Some(0),
                 multiplicity: None,
             };
             ShiftReference::Molecule(Box::new(state.load(path)?))
