@@ -7,6 +7,7 @@
 
 pub mod analysis;
 pub mod basis;
+pub mod batch;
 pub mod bench;
 pub mod chem;
 pub mod core_level;

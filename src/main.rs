@@ -46,6 +46,8 @@ enum Command {
     Basis(cli::basis::Args),
     /// Performance workloads (integrals, SCF, correlated methods).
     Bench(cli::bench::Args),
+    /// Run ionize, core or spectrum over many molecules (a manifest or an SD file), in shards.
+    Batch(cli::batch::Args),
 }
 
 fn main() {
@@ -67,6 +69,7 @@ fn main() {
         Command::Assign(a) => cli::assign::run(a),
         Command::Basis(a) => cli::basis::run(a),
         Command::Bench(a) => cli::bench::run(a),
+        Command::Batch(a) => cli::batch::run(a),
     };
     if let Err(e) = result {
         eprintln!("error: {e}");

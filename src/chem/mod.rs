@@ -1,7 +1,10 @@
-//! Chemistry basics: elements, molecules, the XYZ reader, the frozen-core rule.
+//! Chemistry basics: elements, molecules, the structure readers (XYZ, MOL/SDF), the
+//! frozen-core rule.
 pub mod elements;
 pub mod frozen_core;
 pub mod molecule;
+pub mod sdf;
+pub mod structure;
 pub mod xyz;
 
 pub use molecule::{Atom, Molecule};

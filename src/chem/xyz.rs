@@ -70,7 +70,8 @@ pub fn parse_xyz(text: &str, unit: LengthUnit) -> Result<Molecule> {
         LengthUnit::Angstrom => ANGSTROM_TO_BOHR,
         LengthUnit::Bohr => 1.0,
     };
-    let mut atoms = Vec::with_capacity(n);
+    // The count comes from the file: never trust it for an allocation.
+    let mut atoms = Vec::with_capacity(n.min(lines.len()));
     let mut idx = 2;
     while atoms.len() < n {
         let lineno = idx + 1;
@@ -139,12 +140,23 @@ pub fn parse_xyz(text: &str, unit: LengthUnit) -> Result<Molecule> {
             ),
         ));
     }
+    check_separation(&atoms).map_err(|(line, msg)| err(line, msg))?;
+    let mut m = Molecule::new(atoms.into_iter().map(|(_, a)| a).collect());
+    m.name = comment;
+    Ok(m)
+}
+
+/// Refuse nuclei closer than `MIN_SEPARATION_ANGSTROM`: (1-based line of the later atom,
+/// message). Shared by every structure reader.
+pub(crate) fn check_separation(
+    atoms: &[(usize, Atom)],
+) -> std::result::Result<(), (usize, String)> {
     let min_sep = MIN_SEPARATION_ANGSTROM * ANGSTROM_TO_BOHR;
     for i in 0..atoms.len() {
         for j in 0..i {
             let d = distance(&atoms[i].1.position, &atoms[j].1.position);
             if d < min_sep {
-                return Err(err(
+                return Err((
                     atoms[i].0,
                     format!(
                         "atom {} lies {:.4} Å from atom {} (closer than {MIN_SEPARATION_ANGSTROM} Å): check the coordinates and the unit",
@@ -156,9 +168,29 @@ pub fn parse_xyz(text: &str, unit: LengthUnit) -> Result<Molecule> {
             }
         }
     }
-    let mut m = Molecule::new(atoms.into_iter().map(|(_, a)| a).collect());
-    m.name = comment;
-    Ok(m)
+    Ok(())
+}
+
+/// The molecule as XYZ text that `parse_xyz` reads back to the same atoms: the atom count,
+/// the name as the comment line (line breaks replaced by spaces), then one `Symbol x y z`
+/// line per atom in `unit`. Coordinates use the shortest decimal that reads back to the same
+/// f64, so with `LengthUnit::Bohr` the round trip is exact; in Å it is exact to the last bit
+/// or two of the Å ↔ bohr conversion.
+pub fn write_xyz(mol: &Molecule, unit: LengthUnit) -> String {
+    let scale = match unit {
+        LengthUnit::Angstrom => 1.0 / ANGSTROM_TO_BOHR,
+        LengthUnit::Bohr => 1.0,
+    };
+    let mut out = format!(
+        "{}\n{}\n",
+        mol.atoms.len(),
+        mol.name.replace(['\n', '\r'], " ")
+    );
+    for a in &mol.atoms {
+        let [x, y, z] = a.position.map(|c| c * scale);
+        out.push_str(&format!("{} {x:?} {y:?} {z:?}\n", a.symbol()));
+    }
+    out
 }
 
 #[cfg(test)]

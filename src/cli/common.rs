@@ -2,7 +2,8 @@
 
 use std::path::{Path, PathBuf};
 
-use bandcast::chem::xyz::{read_xyz, LengthUnit};
+use bandcast::chem::structure::read_one;
+use bandcast::chem::xyz::LengthUnit;
 use bandcast::chem::Molecule;
 use bandcast::ionization::Region;
 use bandcast::predict::{predict, MethodChoice, Prediction, Progress, Request, RequestOptions};
@@ -12,8 +13,8 @@ use bandcast::{Error, Result};
 /// The molecule: an XYZ file plus charge and multiplicity.
 #[derive(clap::Args, Debug, Clone)]
 pub struct MoleculeArgs {
-    /// Geometry in XYZ format (Å unless --bohr).
-    #[arg(value_name = "FILE.xyz")]
+    /// Structure: XYZ (Å unless --bohr), MOL or SD file (record K of an SD file as FILE#K).
+    #[arg(value_name = "FILE")]
     pub file: PathBuf,
     #[command(flatten)]
     pub state: StateArgs,
@@ -25,10 +26,11 @@ pub struct StateArgs {
     /// Coordinates in the file are in bohr, not Å.
     #[arg(long)]
     pub bohr: bool,
-    /// Total charge of the molecule.
-    #[arg(long, default_value_t = 0, allow_hyphen_values = true)]
-    pub charge: i32,
-    /// Spin multiplicity 2S+1 (default: 1 for an even electron count, 2 for odd).
+    /// Total charge of the molecule (default: the charge a MOL/SD file writes, else 0).
+    #[arg(long, allow_hyphen_values = true)]
+    pub charge: Option<i32>,
+    /// Spin multiplicity 2S+1 (default: from a MOL/SD file's radical marks, else 1 for an
+    /// even electron count and 2 for odd).
     #[arg(long, value_name = "M")]
     pub multiplicity: Option<u32>,
 }
@@ -40,12 +42,27 @@ impl StateArgs {
         } else {
             LengthUnit::Angstrom
         };
-        let m = read_xyz(path, unit)?;
-        let nel = m.nuclear_charge() - self.charge as i64;
+        let record = read_one(path, unit)?;
+        let charge = self.charge.or(record.charge).unwrap_or(0);
+        let m = record.molecule;
+        let nel = m.nuclear_charge() - charge as i64;
+        // the file's radical marks describe the file's charge state only
+        let from_file = record
+            .multiplicity
+            .filter(|_| self.charge.is_none() || self.charge == record.charge);
         let mult = self
             .multiplicity
+            .or(from_file)
             .unwrap_or(if nel.rem_euclid(2) == 0 { 1 } else { 2 });
-        m.with_charge_multiplicity(self.charge, mult)
+        m.with_charge_multiplicity(charge, mult)
+            .map_err(|e| match e {
+                bandcast::Error::Input {
+                    file: None,
+                    line: None,
+                    message,
+                } => bandcast::Error::input_at(path, None, message),
+                other => other,
+            })
     }
 }
 

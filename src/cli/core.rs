@@ -131,7 +131,7 @@ pub fn options(args: &Args) -> Result<CoreOptions> {
         (Some(path), _) => {
             let state = StateArgs {
                 bohr: args.molecule.state.bohr,
-                charge: 0,
+                charge: Some(0),
                 multiplicity: None,
             };
             let molecule = state.load(path)?;

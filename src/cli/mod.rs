@@ -1,6 +1,7 @@
 //! One file per subcommand; shared argument groups in `common`.
 pub mod assign;
 pub mod basis;
+pub mod batch;
 pub mod bench;
 pub mod common;
 pub mod core;
