@@ -14,6 +14,7 @@ pub mod bench;
 pub mod boys;
 pub mod cartesian;
 pub mod density_fitting;
+pub mod derivative;
 pub mod dipole;
 pub mod eri;
 pub mod family_cache;
