@@ -9,6 +9,7 @@ pub mod basis;
 pub mod chem;
 pub mod correlation;
 pub mod error;
+pub mod geometry;
 pub mod gradient;
 pub mod integrals;
 pub mod ionization;
