@@ -42,6 +42,8 @@ enum Command {
     Spectrum(cli::spectrum::Args),
     /// Align a prediction with a measured spectrum and say which band is which.
     Assign(cli::assign::Args),
+    /// Minimum-energy structure of a molecule or of an ion state (analytic HF gradients).
+    Optimize(cli::optimize::Args),
     /// List the bundled basis sets and the elements each defines.
     Basis(cli::basis::Args),
     /// Performance workloads (integrals, SCF, correlated methods).
@@ -65,6 +67,7 @@ fn main() {
         Command::Core(a) => cli::core::run(a),
         Command::Spectrum(a) => cli::spectrum::run(a),
         Command::Assign(a) => cli::assign::run(a),
+        Command::Optimize(a) => cli::optimize::run(a),
         Command::Basis(a) => cli::basis::run(a),
         Command::Bench(a) => cli::bench::run(a),
     };

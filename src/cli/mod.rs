@@ -5,6 +5,8 @@ pub mod bench;
 pub mod common;
 pub mod core;
 pub mod eom_bench;
+pub mod geometry_common;
 pub mod ionize;
+pub mod optimize;
 pub mod scf;
 pub mod spectrum;

@@ -209,3 +209,68 @@ fn run_scf(mol: &Molecule, basis: &BasisSet, opts: &ScfOptions) -> Result<Wavefu
     }
     Ok(wf)
 }
+
+/// Labels are assigned with orbitals within this energy (hartree) treated as degenerate,
+/// as `bandcast ionize` does (`ionization::annotate`).
+const LABEL_DEGENERACY_EH: f64 = 1e-5;
+
+/// The 0-based parent MO emptied for `hole`: a 1-based number ("5") or an irrep label as
+/// `bandcast ionize` prints it ("1b1", "3σg"; for a degenerate set the first of its
+/// orbitals), resolved on the closed-shell parent of `spec` at the geometry of `mol`.
+pub fn resolve_hole(mol: &Molecule, spec: &StateSpec, hole: &str) -> Result<usize> {
+    let t = hole.trim();
+    if let Ok(n) = t.parse::<usize>() {
+        if n == 0 {
+            return Err(Error::input("--hole counts orbitals from 1"));
+        }
+        return Ok(n - 1);
+    }
+    let parent_mol = mol
+        .clone()
+        .with_charge_multiplicity(spec.charge, spec.multiplicity)?;
+    let basis = basis::load(&spec.basis, &parent_mol, None)?;
+    let opts = ScfOptions {
+        reference: Reference::Rhf,
+        ..spec.scf.clone()
+    };
+    let wf = run_scf(&parent_mol, &basis, &opts)?;
+    let s = integrals::overlap(&basis);
+    let pg = crate::analysis::symmetry::detect_point_group(
+        &parent_mol,
+        crate::analysis::symmetry::DEFAULT_TOLERANCE,
+    );
+    let n_occ = wf.n_beta();
+    let labels = crate::analysis::symmetry::label_orbitals(
+        &pg,
+        &parent_mol,
+        &basis,
+        &s,
+        &wf.c_alpha,
+        &wf.eps_alpha,
+        LABEL_DEGENERACY_EH,
+    );
+    let want = t.to_lowercase();
+    let found = labels
+        .iter()
+        .filter(|l| l.mo < n_occ)
+        .find(|l| l.label.as_deref().map(|x| x.to_lowercase()) == Some(want.clone()));
+    match found {
+        Some(l) => Ok(l.mo),
+        None => {
+            let known: Vec<String> = labels
+                .iter()
+                .filter(|l| l.mo < n_occ)
+                .filter_map(|l| l.label.clone())
+                .collect();
+            Err(Error::input(format!(
+                "no occupied orbital is labelled '{t}' ({}): occupied labels are {}",
+                pg.name,
+                if known.is_empty() {
+                    "none".to_string()
+                } else {
+                    known.join(", ")
+                }
+            )))
+        }
+    }
+}
