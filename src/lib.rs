@@ -17,5 +17,6 @@ pub mod report;
 pub mod scf;
 pub mod spectrum;
 pub mod units;
+pub mod vibrations;
 
 pub use error::{Error, Result};

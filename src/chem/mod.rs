@@ -1,5 +1,6 @@
 //! Chemistry basics: elements, molecules, the XYZ reader.
 pub mod elements;
+pub mod masses;
 pub mod molecule;
 pub mod xyz;
 
