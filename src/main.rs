@@ -44,6 +44,8 @@ enum Command {
     Assign(cli::assign::Args),
     /// Minimum-energy structure of a molecule or of an ion state (analytic HF gradients).
     Optimize(cli::optimize::Args),
+    /// Harmonic wavenumbers, normal modes and zero-point energy (HF Hessian).
+    Vibrations(cli::vibrations::Args),
     /// List the bundled basis sets and the elements each defines.
     Basis(cli::basis::Args),
     /// Performance workloads (integrals, SCF, correlated methods).
@@ -68,6 +70,7 @@ fn main() {
         Command::Spectrum(a) => cli::spectrum::run(a),
         Command::Assign(a) => cli::assign::run(a),
         Command::Optimize(a) => cli::optimize::run(a),
+        Command::Vibrations(a) => cli::vibrations::run(a),
         Command::Basis(a) => cli::basis::run(a),
         Command::Bench(a) => cli::bench::run(a),
     };

@@ -10,3 +10,4 @@ pub mod ionize;
 pub mod optimize;
 pub mod scf;
 pub mod spectrum;
+pub mod vibrations;
