@@ -13,6 +13,8 @@ pub mod chem;
 pub mod core_level;
 pub mod correlation;
 pub mod error;
+pub mod geometry;
+pub mod gradient;
 pub mod integrals;
 pub mod ionization;
 pub mod predict;
@@ -21,5 +23,6 @@ pub mod scf;
 pub mod spectrum;
 pub mod system;
 pub mod units;
+pub mod vibrations;
 
 pub use error::{Error, Result};

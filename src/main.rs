@@ -42,6 +42,10 @@ enum Command {
     Spectrum(cli::spectrum::Args),
     /// Align a prediction with a measured spectrum and say which band is which.
     Assign(cli::assign::Args),
+    /// Minimum-energy structure of a molecule or of an ion state (analytic HF gradients).
+    Optimize(cli::optimize::Args),
+    /// Harmonic wavenumbers, normal modes and zero-point energy (HF Hessian).
+    Vibrations(cli::vibrations::Args),
     /// List the bundled basis sets and the elements each defines.
     Basis(cli::basis::Args),
     /// Performance workloads (integrals, SCF, correlated methods).
@@ -67,6 +71,8 @@ fn main() {
         Command::Core(a) => cli::core::run(a),
         Command::Spectrum(a) => cli::spectrum::run(a),
         Command::Assign(a) => cli::assign::run(a),
+        Command::Optimize(a) => cli::optimize::run(a),
+        Command::Vibrations(a) => cli::vibrations::run(a),
         Command::Basis(a) => cli::basis::run(a),
         Command::Bench(a) => cli::bench::run(a),
         Command::Batch(a) => cli::batch::run(a),

@@ -34,3 +34,7 @@ mod tests {
         assert!((ANGSTROM_TO_BOHR * BOHR_TO_ANGSTROM - 1.0).abs() < 1e-15);
     }
 }
+/// Atomic mass constant m_u in electron masses (CODATA 2018: m_u/m_e = 1822.888486209).
+pub const DALTON_TO_ELECTRON_MASS: f64 = 1822.888486209;
+/// 1 hartree in wavenumbers, cm⁻¹ (CODATA 2018: 2.1947463136320e5).
+pub const HARTREE_TO_WAVENUMBER: f64 = 219474.63136320;

@@ -2,6 +2,7 @@
 //! frozen-core rule.
 pub mod elements;
 pub mod frozen_core;
+pub mod masses;
 pub mod molecule;
 pub mod sdf;
 pub mod structure;

@@ -10,6 +10,7 @@
 //! - `density_fitting`: (P|Q) and (P|μν) for density fitting.
 pub mod boys;
 pub mod density_fitting;
+pub mod derivative;
 pub mod dipole;
 pub mod eri;
 pub mod family_cache;

@@ -1,0 +1,169 @@
+//! `bandcast vibrations`: harmonic wavenumbers, normal modes and zero-point energy at the
+//! geometry given.
+
+use std::io::IsTerminal;
+
+use bandcast::analysis::symmetry::{detect_point_group, DEFAULT_TOLERANCE};
+use bandcast::gradient::{scf_gradient, GradientOptions};
+use bandcast::vibrations::{harmonic_analysis, hessian_by_gradients, Mode, HESSIAN_STEP};
+use bandcast::{Error, Result};
+
+use super::geometry_common::GeometryStateArgs;
+
+/// Largest gradient component (Eh/bohr) above which the geometry is called not stationary.
+const STATIONARY_GRADIENT: f64 = 1e-3;
+
+/// Harmonic vibrational analysis (Hartree–Fock) at the geometry given.
+///
+/// The Hessian comes from central differences (±0.005 bohr) of analytic gradients, 6N
+/// gradients in all; rigid translations and rotations are projected out and the masses are
+/// those of the most abundant isotopes. Prints harmonic wavenumbers (cm⁻¹; imaginary ones
+/// as negative numbers), the irrep of each mode, the normal-mode displacements and the
+/// zero-point energy.
+///
+/// Run it on an optimised structure (`bandcast optimize`): away from a stationary point
+/// the numbers have no meaning, and the command says so. Hartree–Fock harmonic wavenumbers
+/// are typically 10 % above measured fundamentals; the common scale factor for
+/// HF/6-31G* is 0.8953 (Scott & Radom 1996). The numbers guide an assignment; they are not
+/// measurements.
+///
+/// Examples:
+///
+///   bandcast vibrations water-opt.xyz --basis 6-31G*
+///
+///   bandcast vibrations ion.xyz --basis 6-31G* --hole 1b1 --json
+#[derive(clap::Args, Debug)]
+#[command(verbatim_doc_comment)]
+pub struct Args {
+    #[command(flatten)]
+    pub state: GeometryStateArgs,
+    /// Print JSON instead of text.
+    #[arg(long)]
+    pub json: bool,
+}
+
+#[derive(serde::Serialize)]
+struct JsonOut<'a> {
+    molecule: &'a str,
+    basis: &'a str,
+    point_group: &'a str,
+    energy_hartree: f64,
+    largest_gradient_hartree_per_bohr: f64,
+    frequencies_cm1: Vec<f64>,
+    modes: &'a [Mode],
+    zero_point_ev: f64,
+    imaginary: bool,
+}
+
+pub fn run(a: Args) -> Result<()> {
+    let (mol, spec) = a.state.state()?;
+    let st = spec.solve(&mol, None)?;
+    if let Some(reason) = st
+        .hole
+        .as_ref()
+        .and_then(bandcast::geometry::state::hole_lost)
+    {
+        return Err(Error::computation(format!(
+            "the hole state could not be made: {reason}"
+        )));
+    }
+    let g = scf_gradient(
+        &st.molecule,
+        &st.basis,
+        &st.wavefunction,
+        &GradientOptions::default(),
+    )?;
+    let gmax = g.total.iter().flatten().fold(0.0f64, |m, x| m.max(x.abs()));
+    let total = 6 * mol.atoms.len();
+    let bar = std::io::stderr().is_terminal().then(|| {
+        let b = indicatif::ProgressBar::new(total as u64);
+        b.set_style(
+            indicatif::ProgressStyle::with_template(
+                "Hessian [{bar:30}] {pos}/{len} gradients, {eta} left",
+            )
+            .unwrap_or_else(|_| indicatif::ProgressStyle::default_bar()),
+        );
+        b
+    });
+    let h = hessian_by_gradients(&st, &spec, &mut |done, _| {
+        if let Some(b) = &bar {
+            b.set_position(done as u64);
+        }
+    });
+    if let Some(b) = &bar {
+        b.finish_and_clear();
+    }
+    let h = h?;
+    let pg = detect_point_group(&st.molecule, DEFAULT_TOLERANCE);
+    let an = harmonic_analysis(&st.molecule, &h, Some(&pg));
+    let name = mol.name.clone();
+    if a.json {
+        let j = JsonOut {
+            molecule: &name,
+            basis: &spec.basis,
+            point_group: &pg.name,
+            energy_hartree: st.wavefunction.energy,
+            largest_gradient_hartree_per_bohr: gmax,
+            frequencies_cm1: an.modes.iter().map(|m| m.wavenumber_cm1).collect(),
+            modes: &an.modes,
+            zero_point_ev: an.zero_point_ev,
+            imaginary: an.n_imaginary > 0,
+        };
+        println!(
+            "{}",
+            serde_json::to_string_pretty(&j).map_err(|e| Error::computation(e.to_string()))?
+        );
+    } else {
+        println!(
+            "{name}: HF/{} harmonic analysis, point group {}, {} gradients (±{HESSIAN_STEP} bohr)",
+            spec.basis, pg.name, total
+        );
+        println!();
+        println!(" mode   irrep   wavenumber (cm⁻¹)");
+        for (i, m) in an.modes.iter().enumerate() {
+            let w = if m.wavenumber_cm1 < 0.0 {
+                format!("{:.1}i", -m.wavenumber_cm1)
+            } else {
+                format!("{:.1}", m.wavenumber_cm1)
+            };
+            println!("{:5}   {:<6} {:>14}", i + 1, m.irrep, w);
+        }
+        println!();
+        println!(
+            "zero-point energy: {:.4} eV (harmonic, unscaled)",
+            an.zero_point_ev
+        );
+        println!();
+        println!("normal modes (Cartesian displacements, unit length):");
+        for (i, m) in an.modes.iter().enumerate() {
+            println!(
+                "  mode {} ({:.1} cm⁻¹, {})",
+                i + 1,
+                m.wavenumber_cm1,
+                m.irrep
+            );
+            for (at, d) in st.molecule.atoms.iter().zip(&m.displacement) {
+                println!(
+                    "    {:<2} {:9.5} {:9.5} {:9.5}",
+                    at.symbol(),
+                    d[0],
+                    d[1],
+                    d[2]
+                );
+            }
+        }
+    }
+    if gmax > STATIONARY_GRADIENT {
+        eprintln!(
+            "warning: the largest gradient component is {gmax:.1e} Eh/bohr: this is not a \
+             stationary point and the wavenumbers have no meaning; optimise the structure first"
+        );
+    }
+    if an.n_imaginary > 0 {
+        eprintln!(
+            "warning: {} imaginary mode(s): the structure is not a minimum",
+            an.n_imaginary
+        );
+    }
+    Ok(())
+}

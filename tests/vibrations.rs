@@ -1,0 +1,124 @@
+//! Harmonic wavenumbers at HF/6-31G* minima, scaled by 0.8953 (A. P. Scott & L. Radom,
+//! J. Phys. Chem. 100 (1996) 16502), against experimental fundamentals (NIST / Herzberg,
+//! from memory) within 5 %; the number of zero modes after projection (6, linear 5: exact
+//! condition).
+
+use bandcast::analysis::symmetry::{detect_point_group, DEFAULT_TOLERANCE};
+use bandcast::chem::{Atom, Molecule};
+use bandcast::geometry::{optimize, OptimizeOptions, StateSpec};
+use bandcast::scf::{Reference, ScfOptions};
+use bandcast::units::ANGSTROM_TO_BOHR;
+use bandcast::vibrations::{harmonic_analysis, hessian_by_gradients};
+
+const SCALE: f64 = 0.8953; // Scott & Radom 1996, HF/6-31G*
+
+fn mol_angstrom(list: &[(u32, [f64; 3])]) -> Molecule {
+    Molecule::new(
+        list.iter()
+            .map(|&(z, p)| Atom {
+                z,
+                position: p.map(|x| x * ANGSTROM_TO_BOHR),
+            })
+            .collect(),
+    )
+}
+
+fn spec() -> StateSpec {
+    StateSpec {
+        basis: "6-31G*".into(),
+        charge: 0,
+        multiplicity: 1,
+        reference: Reference::Rhf,
+        hole: None,
+        scf: ScfOptions {
+            e_tol: 1e-11,
+            commutator_tol: 1e-9,
+            ..ScfOptions::default()
+        },
+    }
+}
+
+/// Optimise tightly, then the harmonic analysis: (wavenumbers, irreps, rigid count).
+fn analyse(start: &Molecule) -> (Vec<f64>, Vec<String>, usize, bool) {
+    let s = spec();
+    let opts = OptimizeOptions {
+        max_force: 1e-5,
+        rms_force: 1e-5,
+        max_step: 1e-4,
+        rms_step: 1e-4,
+        ..OptimizeOptions::default()
+    };
+    let r = optimize(start, &s, &opts, &mut |_| {}).unwrap();
+    assert!(r.converged);
+    let h = hessian_by_gradients(&r.state, &s, &mut |_, _| {}).unwrap();
+    let pg = detect_point_group(&r.molecule, DEFAULT_TOLERANCE);
+    let a = harmonic_analysis(&r.molecule, &h, Some(&pg));
+    eprintln!(
+        "{}: rigid {:?} cm-1, modes {:?}, ZPE {:.4} eV",
+        pg.name,
+        a.rigid_cm1,
+        a.modes
+            .iter()
+            .map(|m| (m.wavenumber_cm1, m.irrep.clone()))
+            .collect::<Vec<_>>(),
+        a.zero_point_ev
+    );
+    for c in &a.rigid_cm1 {
+        assert!(c.abs() < 1.0, "rigid motion at {c} cm-1");
+    }
+    assert_eq!(a.n_imaginary, 0);
+    (
+        a.modes.iter().map(|m| m.wavenumber_cm1).collect(),
+        a.modes.iter().map(|m| m.irrep.clone()).collect(),
+        a.rigid_cm1.len(),
+        a.linear,
+    )
+}
+
+#[test]
+fn water_fundamentals() {
+    let start = mol_angstrom(&[
+        (8, [0.0, 0.0, 0.12]),
+        (1, [0.0, 0.76, -0.47]),
+        (1, [0.0, -0.76, -0.47]),
+    ]);
+    let (nu, irreps, rigid, linear) = analyse(&start);
+    assert_eq!((rigid, linear), (6, false)); // exact condition: 3 translations + 3 rotations
+    assert_eq!(nu.len(), 3);
+    // experimental fundamentals of H2O (NIST / Herzberg, from memory): bend 1595 (a1),
+    // symmetric stretch 3657 (a1), antisymmetric stretch 3756 (b2)
+    for (k, (exp, irrep)) in [(1595.0, "a1"), (3657.0, "a1"), (3756.0, "b2")]
+        .iter()
+        .enumerate()
+    {
+        let scaled = SCALE * nu[k];
+        assert!(
+            (scaled / exp - 1.0).abs() < 0.05,
+            "mode {k}: {scaled} vs {exp}"
+        );
+        assert_eq!(irreps[k].to_lowercase(), *irrep, "mode {k}");
+    }
+}
+
+#[test]
+fn carbon_dioxide_fundamentals() {
+    let start = mol_angstrom(&[
+        (6, [0.0, 0.0, 0.0]),
+        (8, [0.0, 0.0, 1.17]),
+        (8, [0.0, 0.0, -1.17]),
+    ]);
+    let (nu, irreps, rigid, linear) = analyse(&start);
+    // symmetry species of the CO2 modes (fact of the trade): πu bend, σg and σu stretches
+    assert_eq!(irreps, ["πu", "πu", "σg", "σu"]);
+    assert_eq!((rigid, linear), (5, true)); // exact condition: linear, 2 rotations
+    assert_eq!(nu.len(), 4);
+    // experimental fundamentals of CO2 (NIST / Herzberg, from memory): bend 667 (twice),
+    // symmetric stretch 1333 (Fermi-resonance mean), antisymmetric stretch 2349
+    for (k, exp) in [667.0, 667.0, 1333.0, 2349.0].iter().enumerate() {
+        let scaled = SCALE * nu[k];
+        assert!(
+            (scaled / exp - 1.0).abs() < 0.05,
+            "mode {k}: {scaled} vs {exp}"
+        );
+    }
+}
