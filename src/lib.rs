@@ -15,5 +15,6 @@ pub mod report;
 pub mod scf;
 pub mod spectrum;
 pub mod units;
+pub mod vibronic;
 
 pub use error::{Error, Result};
