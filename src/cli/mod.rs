@@ -8,3 +8,4 @@ pub mod eom_bench;
 pub mod ionize;
 pub mod scf;
 pub mod spectrum;
+pub mod vibronic_bench;

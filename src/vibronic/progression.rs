@@ -19,6 +19,12 @@
 //!    weak: a screening assumption, its effect shows in the captured fraction),
 //!    strongest estimated first, at most `max_combinations_per_class` per class.
 //!
+//! In a set of class m ≥ 2 with estimated weight I_s (pairs: I₀₀ r_k r_l with r_k the
+//! mode's one-mode lines relative to the 0–0 line; larger sets: the strongest of
+//! I_t r_k over their (m−1)-subsets t), mode k takes quanta 1..n_k(s) ≤ n_k, cut where
+//! I_s × (its one-mode tail fraction) falls below `tail_threshold`: weak combinations get
+//! short ranges, strong ones the full range.
+//!
 //! Each mode set is one `recursion::Block` (exact overlaps; memory Π(n_k+1) numbers, at
 //! most `max_block_points`). Generation stops as soon as the captured fraction reaches
 //! `target_fraction` (checked after every block), when no mode set survives the screen,
@@ -50,7 +56,7 @@ pub struct FcOptions {
     /// and Duschinsky combinations of modes without displacement).
     pub min_quanta_per_mode: u32,
     /// A mode set of class m ≥ 2 opens class m+1 only when its lines hold at least this
-    /// intensity (absolute, the band's total being 1; default 1e-6).
+    /// intensity (absolute, the band's total being 1; default 1e-7).
     pub subset_threshold: f64,
     /// Most simultaneously excited ion modes (default 12).
     pub max_class: usize,
@@ -58,8 +64,11 @@ pub struct FcOptions {
     pub max_lines: usize,
     /// Lines weaker than this are counted but not kept (default 1e-10).
     pub line_floor: f64,
-    /// Most overlaps evaluated in all (default 4e8, a few CPU-seconds per 1e8).
+    /// Most overlaps evaluated in all (default 1e9, about 2–3 CPU-seconds per 1e8).
     pub max_overlaps: u64,
+    /// Within a mode set of estimated weight I_s, each mode's quanta stop where I_s times
+    /// its one-mode tail fraction falls below this (default 1e-9).
+    pub tail_threshold: f64,
     /// Most lattice points in one block (default 2²², 32 MiB).
     pub max_block_points: usize,
     /// Most mode sets computed per class (default 200 000).
@@ -79,11 +88,12 @@ impl Default for FcOptions {
             max_quanta_per_mode: 40,
             mode_tail: 1e-4,
             min_quanta_per_mode: 2,
-            subset_threshold: 1e-6,
+            subset_threshold: 1e-7,
             max_class: 12,
             max_lines: 50_000,
             line_floor: 1e-10,
-            max_overlaps: 400_000_000,
+            max_overlaps: 1_000_000_000,
+            tail_threshold: 1e-9,
             max_block_points: 1 << 22,
             max_combinations_per_class: 200_000,
             thermal_energy: None,
@@ -249,6 +259,7 @@ impl Run<'_> {
         }
         // class 1: one block per mode up to the cap; per-mode bounds from the tails
         let mut single = vec![0.0; n];
+        let mut progs: Vec<Vec<f64>> = Vec::with_capacity(n);
         self.highest_class = self.highest_class.max(1);
         for k in 0..n {
             let mut blk = Block::new(init, &[(k, cap)]);
@@ -270,6 +281,7 @@ impl Run<'_> {
                 self.note(VibronicNote::QuantaCap { mode: k, cap });
             }
             bounds[k] = nk.max(bounds[k]).min(cap);
+            progs.push(progression);
             // lines of this mode (all computed quanta)
             let s = self.block_lines_from(&blk, init, pop, e0);
             single[k] = s;
@@ -342,8 +354,20 @@ impl Run<'_> {
             }
             self.highest_class = self.highest_class.max(m);
             let mut current: HashMap<Vec<usize>, f64> = HashMap::new();
-            for (s, _) in cands {
-                let fin: Vec<(usize, u32)> = s.iter().map(|&k| (k, bounds[k])).collect();
+            for (s, est) in cands {
+                // each mode's quanta: its own bound, cut further where the set's
+                // estimated weight times the mode's one-mode tail fraction falls below
+                // `tail_threshold` (pairs keep at least `min_quanta_per_mode`)
+                let frac = if est > 0.0 {
+                    (self.opt.tail_threshold / est).clamp(self.opt.mode_tail, 1.0)
+                } else {
+                    1.0
+                };
+                let least = if m == 2 { self.opt.min_quanta_per_mode } else { 1 };
+                let fin: Vec<(usize, u32)> = s
+                    .iter()
+                    .map(|&k| (k, tail_bound(&progs[k], frac).max(least).clamp(1, bounds[k])))
+                    .collect();
                 let got = self.block(init, &fin, pop, e0);
                 captured += got;
                 current.insert(s, got);
@@ -387,6 +411,23 @@ impl Run<'_> {
         }
         total
     }
+}
+
+/// Smallest n with Σ_{q>n} I(q) ≤ fraction × Σ_{q≥1} I(q) for a one-mode progression
+/// I(0..=cap).
+fn tail_bound(progression: &[f64], fraction: f64) -> u32 {
+    let sum: f64 = progression[1..].iter().sum();
+    let cap = progression.len() - 1;
+    let mut tail = 0.0;
+    let mut n = cap;
+    for q in (1..=cap).rev() {
+        if tail + progression[q] > fraction * sum {
+            break;
+        }
+        tail += progression[q];
+        n = q - 1;
+    }
+    n as u32
 }
 
 /// Thermally populated levels of the neutral: (excited modes with quanta, population),
@@ -571,6 +612,7 @@ mod tests {
             max_quanta_per_mode: 40,
             mode_tail: 1e-12,
             subset_threshold: 0.0,
+            tail_threshold: 0.0,
             line_floor: 0.0,
             ..FcOptions::default()
         };
@@ -621,6 +663,7 @@ mod tests {
             target_fraction: 1.0,
             mode_tail: 1e-13,
             subset_threshold: 0.0,
+            tail_threshold: 0.0,
             line_floor: 0.0,
             thermal_energy: Some(0.00095), // about 300 K
             min_population: 1e-4,

@@ -192,6 +192,7 @@ mod tests {
             target_fraction: 1.0,
             mode_tail: 1e-14,
             subset_threshold: 0.0,
+            tail_threshold: 0.0,
             line_floor: 0.0,
             ..FcOptions::default()
         };
