@@ -24,5 +24,6 @@ pub mod spectrum;
 pub mod system;
 pub mod units;
 pub mod vibrations;
+pub mod vibronic;
 
 pub use error::{Error, Result};

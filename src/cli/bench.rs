@@ -26,6 +26,8 @@ pub enum Workload {
     Core(super::core::BenchArgs),
     /// EOM-IP-CCSD (benzene) and EOM-IP-MBPT2 (guanine) in def2-TZVPP: time per stage, memory.
     Eom(super::eom_bench::BenchArgs),
+    /// Franck–Condon lines of seeded random many-mode Duschinsky relations: captured fraction, lines, time.
+    FranckCondon(super::vibronic_bench::BenchArgs),
 }
 
 #[derive(clap::Args, Debug)]
@@ -62,6 +64,7 @@ pub fn run(args: Args) -> Result<()> {
         Workload::Scf(a) => super::scf::bench(a),
         Workload::Core(a) => super::core::bench(a),
         Workload::Eom(a) => super::eom_bench::bench(a),
+        Workload::FranckCondon(a) => super::vibronic_bench::bench(a),
     }
 }
 

@@ -12,3 +12,4 @@ pub mod optimize;
 pub mod scf;
 pub mod spectrum;
 pub mod vibrations;
+pub mod vibronic_bench;
