@@ -10,7 +10,8 @@
 //! Roots are chosen either as the lowest real parts or by homing: each target keeps the
 //! Ritz vector of largest overlap with its own guess (for EOM-IP: the one-hole vector of the
 //! target orbital), so a state started from a chosen orbital cannot drift away into the
-//! satellites around it. Where a followed root is weak in its guess's character (the caller
+//! satellites around it; once converged, a root is followed by its own vector (locked).
+//! Where a followed root is weak in its guess's character (the caller
 //! marks it "loose", e.g. an inner-valence band sharing its intensity with satellites), the
 //! next `companions` Ritz vectors by overlap are refined beside it so that the competing
 //! states converge together and the homing settles; such roots are held to the looser
@@ -210,7 +211,7 @@ pub fn solve_with(
     // the orthonormalised guesses and their images, kept through every collapse
     let (g0, ag0) = (v.clone(), av.clone());
     // homing references of followed roots (in full space)
-    let homes: Vec<Vec<f64>> = match selection {
+    let mut homes: Vec<Vec<f64>> = match selection {
         Selection::Follow => guesses.into_iter().take(nroots).collect(),
         Selection::Lowest => Vec::new(),
     };
@@ -334,6 +335,12 @@ pub fn solve_with(
                 if done_at[r] == 0 {
                     done_at[r] = iter;
                 }
+                // Lock: a converged followed root is from now on followed by its own vector,
+                // so a spurious Ritz vector with a larger overlap with the guess cannot take
+                // its place.
+                if selection == Selection::Follow {
+                    homes[r] = x.clone();
+                }
             } else {
                 done_at[r] = 0;
                 corrections.push(correction(&res, theta));
@@ -375,6 +382,7 @@ pub fn solve_with(
             "Davidson iter {iter:3}: subspace {m:3}, max residual {:.2e}",
             pairs.iter().map(|p| p.residual).fold(0.0, f64::max)
         ));
+        if std::env::var_os("EOMDBG2").is_some() { log(&format!("  {}", pairs.iter().enumerate().map(|(r,p)| format!("[{} {:.4} {:.1e} {:.3} {:?}]", chosen[r], p.value*27.211386, p.residual, scores.get(r).map(|s| s[chosen[r]]).unwrap_or(0.0), p.status)).collect::<Vec<_>>().join(" "))); }
         if all_conv {
             return Ok(pairs);
         }
