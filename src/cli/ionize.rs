@@ -5,7 +5,7 @@
 use std::fmt::Write as _;
 
 use bandcast::ionization::method::Method;
-use bandcast::ionization::valence::{default_method, predict, ValenceOptions, ValenceResult};
+use bandcast::ionization::valence::{predict, ValenceOptions, ValenceResult};
 use bandcast::scf::Reference;
 use bandcast::{Error, Result};
 use serde_json::{json, Value};
@@ -66,14 +66,8 @@ pub fn run(args: Args) -> Result<()> {
     let defaulted = args.method.is_none();
     let method = match &args.method {
         Some(m) => Method::parse(m)?,
-        None if mol.multiplicity == 1 => {
-            bandcast::correlation::method_choice::default_ionization_method(
-                &mol,
-                &basis,
-                Some(memory_gb * 1e9),
-            )
-        }
-        None => default_method(&mol),
+        // the chain's first choice; predict_default falls back from it (ionization::fallback)
+        None => bandcast::ionization::fallback::choose(&mol, &basis, memory_gb * 1e9).method,
     };
     use bandcast::correlation::two_electron::TwoElectron;
     let eom_integrals = match args.integrals.as_deref() {
@@ -106,10 +100,14 @@ pub fn run(args: Args) -> Result<()> {
         eom_integrals,
         ..Default::default()
     };
-    let mut result = predict(&mol, &basis, &opts)?;
+    let mut result = if defaulted {
+        bandcast::ionization::fallback::predict_default(&mol, &basis, &opts)?.0
+    } else {
+        predict(&mol, &basis, &opts)?
+    };
     if defaulted {
         result.notes.push(format!(
-            "{} — chose {method} for {} basis functions",
+            "{} — {} basis functions",
             bandcast::correlation::method_choice::rule_text(),
             basis.n_basis
         ));

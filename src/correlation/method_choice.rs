@@ -50,18 +50,13 @@ pub fn choose(
     }
 }
 
-/// The default `bandcast ionize` method for a molecule in a basis: for closed shells the
-/// rule above with the correlated space of the frozen-core default; open shells get ΔSCF
-/// (the EOM and EP2 code here is closed-shell only).
-pub fn default_ionization_method(
+/// The correlated space of the frozen-core default for a closed-shell molecule: (correlated
+/// occupied, virtual, factor route). Shared with the fallback chain
+/// (`ionization::fallback`).
+pub fn correlated_space(
     mol: &crate::chem::Molecule,
     basis: &crate::basis::BasisSet,
-    budget_bytes: Option<f64>,
-) -> crate::ionization::method::Method {
-    use crate::ionization::method::Method;
-    if mol.multiplicity != 1 {
-        return Method::Dscf;
-    }
+) -> (usize, usize, FactorRoute) {
     let nocc = mol.n_electrons() / 2;
     let core: usize = mol
         .atoms
@@ -79,7 +74,23 @@ pub fn default_ionization_method(
         Ok(super::two_electron::Resolved::Fitted(aux)) => FactorRoute::Fitted(aux.n_basis),
         _ => FactorRoute::Cholesky(memory::expected_cholesky_vectors(basis.n_basis, 1e-5)),
     };
-    match choose(basis.n_basis, nocc - core, nvir, route, budget_bytes) {
+    (nocc - core, nvir, route)
+}
+
+/// The default `bandcast ionize` method for a molecule in a basis: for closed shells the
+/// rule above with the correlated space of the frozen-core default; open shells get ΔSCF
+/// (the EOM and EP2 code here is closed-shell only).
+pub fn default_ionization_method(
+    mol: &crate::chem::Molecule,
+    basis: &crate::basis::BasisSet,
+    budget_bytes: Option<f64>,
+) -> crate::ionization::method::Method {
+    use crate::ionization::method::Method;
+    if mol.multiplicity != 1 {
+        return Method::Dscf;
+    }
+    let (ncorr, nvir, route) = correlated_space(mol, basis);
+    match choose(basis.n_basis, ncorr, nvir, route, budget_bytes) {
         DefaultMethod::EomCcsd => Method::EomCcsd,
         DefaultMethod::EomMbpt2 => Method::EomMp2,
         DefaultMethod::Ep2 => Method::Ep2,
