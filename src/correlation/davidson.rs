@@ -382,7 +382,6 @@ pub fn solve_with(
             "Davidson iter {iter:3}: subspace {m:3}, max residual {:.2e}",
             pairs.iter().map(|p| p.residual).fold(0.0, f64::max)
         ));
-        if std::env::var_os("EOMDBG2").is_some() { log(&format!("  {}", pairs.iter().enumerate().map(|(r,p)| format!("[{} {:.4} {:.1e} {:.3} {:?}]", chosen[r], p.value*27.211386, p.residual, scores.get(r).map(|s| s[chosen[r]]).unwrap_or(0.0), p.status)).collect::<Vec<_>>().join(" "))); }
         if all_conv {
             return Ok(pairs);
         }

@@ -194,7 +194,7 @@ pub fn band_energies(
         two_electron: two_electron.clone(),
         ..Default::default()
     };
-    let rep = ionize_report(mol, basis, wfn, &opts, &mut |l| if std::env::var_os("EOMDBG").is_some() { eprintln!("{l}") })?;
+    let rep = ionize_report(mol, basis, wfn, &opts, &mut |_| {})?;
     let mut notes = rep.notes.clone();
     if let Some(e) = rep.e_ccsd_corr {
         notes.push(format!(
