@@ -221,3 +221,36 @@ pub fn warnings(
     }
     w
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// An unconverged root gives a warning carrying its residual and a stable code; a
+    /// loosely converged one states the looser threshold (regression: wording and codes).
+    #[test]
+    fn warnings_carry_residuals_and_codes() {
+        let w = RootWarning::RootNotConverged {
+            method: "eom-ccsd",
+            orbital: 4,
+            residual: 3.2e-2,
+            iterations: 120,
+            last_ie_ev: 41.8,
+        };
+        assert_eq!(w.code(), "root-not-converged");
+        let text = w.to_string();
+        assert!(text.contains("MO 4") && text.contains("3.2e-2") && text.contains("left out"));
+        let j = serde_json::to_value(&w).unwrap();
+        assert_eq!(j["code"], "root-not-converged");
+        let l = RootWarning::RootConvergedLoosely {
+            method: "eom-mp2",
+            orbital: 3,
+            residual: 4e-4,
+            threshold: 1e-3,
+            strict: 1e-5,
+            one_hole_weight: 0.55,
+        };
+        assert!(l.to_string().contains("looser residual threshold 1e-3"));
+        assert_eq!(serde_json::to_value(&l).unwrap()["code"], l.code());
+    }
+}
