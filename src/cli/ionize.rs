@@ -65,14 +65,11 @@ pub fn run(args: Args) -> Result<()> {
         None => bandcast::system::default_memory_budget() as f64,
     };
     let basis = bandcast::basis::load(&args.basis, &mol, None)?;
-    let choice = match &args.method {
-        Some(_) => None,
-        None => Some(default_method::choose(&mol, &basis, Some(memory_bytes))),
-    };
-    let method = match (&args.method, &choice) {
-        (Some(m), _) => Method::parse(m)?,
-        (None, Some(c)) => c.method,
-        (None, None) => unreachable!("a default is chosen when no method is given"),
+    let defaulted = args.method.is_none();
+    let method = match &args.method {
+        Some(m) => Method::parse(m)?,
+        // the chain's first choice; predict_default falls back from it when it fails
+        None => default_method::choose(&mol, &basis, memory_bytes).method,
     };
     use bandcast::correlation::two_electron::TwoElectron;
     let eom_integrals = match args.integrals.as_deref() {
@@ -105,12 +102,11 @@ pub fn run(args: Args) -> Result<()> {
         eom_integrals,
         ..Default::default()
     };
-    let mut result = predict(&mol, &basis, &opts)?;
-    if let Some(c) = &choice {
-        if !matches!(c.reason, default_method::DefaultReason::OpenShell) {
-            result.notes.push(c.to_string());
-        }
-    }
+    let result = if defaulted {
+        default_method::predict_default(&mol, &basis, &opts)?.0
+    } else {
+        predict(&mol, &basis, &opts)?
+    };
     let name = if mol.name.is_empty() {
         args.molecule.file.display().to_string()
     } else {

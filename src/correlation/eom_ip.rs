@@ -24,7 +24,8 @@ use crate::units::HARTREE_TO_EV;
 use crate::{Error, Result};
 
 use super::ccsd::{self, CcsdOptions};
-use super::davidson::{self, DavidsonOptions, Selection};
+use super::davidson::{self, DavidsonOptions};
+use super::eom_roots::{self, RootOutcome, RootWarning};
 use super::eom_ip_intermediates::IpHbar;
 use super::eom_ip_sigma::{self, IpSpace};
 use super::integrals::MoIntegrals;
@@ -116,6 +117,8 @@ pub struct IonizedState {
     pub method: &'static str,
     pub converged: bool,
     pub residual: f64,
+    /// How the Davidson root ended (eom_roots.rs).
+    pub outcome: RootOutcome,
 }
 
 /// Everything the run produced besides the states.
@@ -156,8 +159,9 @@ impl EomReport {
 }
 
 /// Energies for chosen orbitals (one targeted EOM root per orbital, in the given order) as
-/// (IE hartree, one-hole weight), plus notes on how the job was run and warnings about
-/// roots that did not converge or ended on another orbital. Used by
+/// (IE hartree, one-hole weight) — None for a root that did not converge —, plus notes on
+/// how the job was run and warnings about roots that did not converge, converged only to the
+/// inner-valence threshold or ended on another orbital (eom_roots::RootWarning). Used by
 /// `ionization::valence` for `--method eom-ccsd|eom-mp2`.
 #[allow(clippy::type_complexity, clippy::too_many_arguments)]
 pub fn band_energies(
@@ -169,7 +173,7 @@ pub fn band_energies(
     frozen_core: bool,
     memory_bytes: Option<f64>,
     two_electron: &TwoElectron,
-) -> Result<(Vec<(f64, f64)>, Vec<String>, Vec<String>)> {
+) -> Result<(Vec<Option<(f64, f64)>>, Vec<String>, Vec<String>)> {
     let opts = EomOptions {
         method,
         roots: RootSpec::Orbitals(orbitals.to_vec()),
@@ -188,32 +192,24 @@ pub fn band_energies(
     } else {
         notes.push(format!("MP2 correlation energy {:.8} Eh", rep.e_mp2_corr));
     }
-    let mut warnings = Vec::new();
-    for (s, &m) in rep.states.iter().zip(orbitals) {
-        if !s.converged {
-            warnings.push(format!(
-                "{}: the EOM root started from MO {} did not converge (residual {:.1e})",
-                method.name(),
-                m + 1,
-                s.residual
-            ));
-        }
-        if s.dominant_orbital != m {
-            warnings.push(format!(
-                "{}: the root started from MO {} ended dominated by MO {}",
-                method.name(),
-                m + 1,
-                s.dominant_orbital + 1
-            ));
-        }
-    }
+    // --- per-root outcomes (eom_roots.rs) ---
+    let warnings: Vec<RootWarning> = rep
+        .states
+        .iter()
+        .zip(orbitals)
+        .flat_map(|(s, &m)| eom_roots::warnings(s, m, &opts.davidson))
+        .collect();
     Ok((
         rep.states
             .iter()
-            .map(|s| (s.ie_hartree, s.one_hole_weight))
+            .map(|s| {
+                s.outcome
+                    .usable()
+                    .then_some((s.ie_hartree, s.one_hole_weight))
+            })
             .collect(),
         notes,
-        warnings,
+        warnings.iter().map(|w| w.to_string()).collect(),
     ))
 }
 
@@ -403,45 +399,32 @@ pub fn ionize_report(
     let space = IpSpace { nocc: o, nvir: v };
     let diag = eom_ip_sigma::diagonal(&hbar, &space);
     let dim = space.dim();
-    let unit = |i: usize| -> Vec<f64> {
-        let mut x = vec![0.0; dim];
-        x[i] = 1.0;
-        x
+    let _ = dim;
+    // --- roots: guesses, homing and inner-valence thresholds (eom_roots.rs) ---
+    let lowest = match opts.roots {
+        RootSpec::Lowest(k) => k,
+        RootSpec::Orbitals(_) => 0,
     };
-    let (guesses, nroots, selection) = match &targets {
-        None => {
-            let k = match opts.roots {
-                RootSpec::Lowest(k) => k.min(o),
-                _ => unreachable!(),
-            };
-            // highest occupied first; a couple of extra guesses help degenerate sets
-            let ng = (k + 2).min(o);
-            let g: Vec<Vec<f64>> = (0..ng).map(|x| unit(o - 1 - x)).collect();
-            (g, k, Selection::Lowest)
-        }
-        Some(t) => (
-            t.iter().map(|&i| unit(i)).collect(),
-            t.len(),
-            Selection::Follow,
-        ),
-    };
+    let (guesses, nroots, selection) = eom_roots::guesses(&space, targets.as_deref(), lowest);
     let mut apply = |xs: &[Vec<f64>]| -> Vec<Vec<f64>> {
         xs.iter()
             .map(|x| eom_ip_sigma::sigma(&hbar, &space, x))
             .collect()
     };
-    let pairs = davidson::solve(
+    let pairs = davidson::solve_with(
         &mut apply,
         &diag,
         guesses,
         nroots,
         selection,
         &opts.davidson,
+        &|_, x| eom_roots::is_inner_valence(&space, x),
         log,
     )?;
     let mut states: Vec<IonizedState> = pairs
         .into_iter()
         .map(|p| {
+            let outcome = RootOutcome::of(&p, &space, &opts.davidson);
             let (n1, n2) = space.metric_norms(&p.vector);
             let mut r1 = vec![0.0; nocc];
             let nr1 = n1.sqrt().max(1e-300);
@@ -465,6 +448,7 @@ pub fn ionize_report(
                 method: opts.method.name(),
                 converged: p.converged,
                 residual: p.residual,
+                outcome,
             }
         })
         .collect();

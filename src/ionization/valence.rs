@@ -218,15 +218,18 @@ pub fn predict_with(
         &mut warnings,
     )?;
 
+    // A set without an energy (an EOM root that did not converge) is left out; the method
+    // said so in a warning.
     let mut rows: Vec<(Band, f64)> = candidates
         .iter()
         .zip(&energies)
-        .map(|(set, e)| {
+        .filter_map(|(set, e)| {
+            let e = (*e)?;
             let n = notes.notes(set);
-            (
-                make_band(set, *e, &n, opts.method.name()),
+            Some((
+                make_band(set, e, &n, opts.method.name()),
                 ev(set.koopmans_ie()),
-            )
+            ))
         })
         .collect();
     rows.sort_by(|a, b| a.0.ie_ev.total_cmp(&b.0.ie_ev));
@@ -272,7 +275,8 @@ pub fn predict_with(
     })
 }
 
-/// The chosen method's energy for each orbital set (one representative per degenerate set).
+/// The chosen method's energy for each orbital set (one representative per degenerate set);
+/// None where the method gave none (an unconverged EOM root).
 fn method_energies(
     mol: &Molecule,
     basis: &BasisSet,
@@ -283,15 +287,16 @@ fn method_energies(
     n_core: usize,
     notes: &mut Vec<String>,
     warnings: &mut Vec<String>,
-) -> Result<Vec<BandEnergy>> {
+) -> Result<Vec<Option<BandEnergy>>> {
+    let all = |v: Vec<BandEnergy>| v.into_iter().map(Some).collect();
     match opts.method {
-        Method::Koopmans => Ok(sets
+        Method::Koopmans => Ok(all(sets
             .iter()
             .map(|s| BandEnergy {
                 ie: s.koopmans_ie(),
                 ..Default::default()
             })
-            .collect()),
+            .collect())),
         Method::Ep2 => {
             let engine = EriEngine::new(basis);
             let targets: Vec<usize> = sets.iter().map(|s| s.representative()).collect();
@@ -301,14 +306,14 @@ fn method_energies(
                 ..Default::default()
             };
             let poles = ep2(&engine, basis, wf, &targets, &ep)?;
-            Ok(poles
+            Ok(all(poles
                 .iter()
                 .map(|p| BandEnergy {
                     ie: p.ie,
                     pole_strength: Some(p.pole_strength),
                     one_hole_weight: None,
                 })
-                .collect())
+                .collect()))
         }
         Method::Dscf => {
             let holes: Vec<(Spin, usize)> =
@@ -332,13 +337,13 @@ fn method_energies(
                     ));
                 }
             }
-            Ok(res
+            Ok(all(res
                 .iter()
                 .map(|h| BandEnergy {
                     ie: h.ie,
                     ..Default::default()
                 })
-                .collect())
+                .collect()))
         }
         // bandcast::correlation::eom_ip: one EOM root started from each set's representative.
         Method::EomCcsd | Method::EomMp2 => {
@@ -364,10 +369,12 @@ fn method_energies(
             warnings.extend(run_warnings);
             Ok(res
                 .into_iter()
-                .map(|(ie, w)| BandEnergy {
-                    ie,
-                    pole_strength: None,
-                    one_hole_weight: Some(w),
+                .map(|r| {
+                    r.map(|(ie, w)| BandEnergy {
+                        ie,
+                        pole_strength: None,
+                        one_hole_weight: Some(w),
+                    })
                 })
                 .collect())
         }

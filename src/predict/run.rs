@@ -28,7 +28,7 @@ pub fn predict(request: &Request, progress: &(dyn Fn(Progress) + Sync)) -> Resul
 /// rule `bandcast ionize` uses too (closed shells: the most accurate method that fits;
 /// open shells: ΔSCF).
 pub fn default_valence_method(mol: &Molecule, basis: &BasisSet, budget_bytes: usize) -> Method {
-    crate::ionization::default_method::choose(mol, basis, Some(budget_bytes as f64)).method
+    crate::ionization::default_method::choose(mol, basis, budget_bytes as f64).method
 }
 
 /// The default rule in words, for the note that says which method it chose.
