@@ -10,6 +10,7 @@ pub mod basis;
 pub mod batch;
 pub mod bench;
 pub mod chem;
+pub mod cli;
 pub mod core_level;
 pub mod correlation;
 pub mod error;
@@ -27,3 +28,6 @@ pub mod vibrations;
 pub mod vibronic;
 
 pub use error::{Error, Result};
+
+// The command-line code in `cli` names the library by its crate name, as the binary does.
+extern crate self as bandcast;

@@ -1,58 +1,9 @@
-//! The `bandcast` command: argument parsing and printing only; the work is in the library.
+//! The `bandcast` command: the command line is parsed and run by the library
+//! (`bandcast::cli`); this file sets the thread count and maps errors to exit codes.
 
-mod cli;
+use clap::Parser;
 
-use clap::{Parser, Subcommand};
-
-/// Predict photoelectron spectra (UPS valence bands, XPS core levels) from first principles,
-/// and assign measured ones.
-///
-/// Typical flow: `bandcast scf` to check the Hartree–Fock reference, `bandcast ionize` for
-/// valence bands with labels, `bandcast core` for 1s binding energies and shifts,
-/// `bandcast spectrum` for a broadened spectrum for a photon source, `bandcast assign` to
-/// match a measured trace. Energies are printed in eV; geometries are read in Å.
-///
-/// Predictions guide a measurement; they do not replace it. Instrument and radiation
-/// safety follow your local rules, whatever a number here suggests.
-#[derive(Parser)]
-#[command(
-    name = "bandcast",
-    version,
-    about,
-    long_about,
-    propagate_version = true
-)]
-struct Cli {
-    /// Worker threads (default: all cores).
-    #[arg(long, global = true, value_name = "N")]
-    threads: Option<usize>,
-    #[command(subcommand)]
-    command: Command,
-}
-
-#[derive(Subcommand)]
-enum Command {
-    /// Hartree–Fock ground state: energy, its parts, orbital table, dipole.
-    Scf(cli::scf::Args),
-    /// Valence ionization energies, labelled bands (Koopmans, ΔSCF, EP2, EOM-IP).
-    Ionize(cli::ionize::Args),
-    /// Core-level (1s) binding energies and chemical shifts by ΔSCF with a localised hole.
-    Core(cli::core::Args),
-    /// A broadened photoelectron spectrum for a photon source (SVG, CSV, JSON).
-    Spectrum(cli::spectrum::Args),
-    /// Align a prediction with a measured spectrum and say which band is which.
-    Assign(cli::assign::Args),
-    /// Minimum-energy structure of a molecule or of an ion state (analytic HF gradients).
-    Optimize(cli::optimize::Args),
-    /// Harmonic wavenumbers, normal modes and zero-point energy (HF Hessian).
-    Vibrations(cli::vibrations::Args),
-    /// List the bundled basis sets and the elements each defines.
-    Basis(cli::basis::Args),
-    /// Performance workloads (integrals, SCF, correlated methods).
-    Bench(cli::bench::Args),
-    /// Run ionize, core or spectrum over many molecules (a manifest or an SD file), in shards.
-    Batch(cli::batch::Args),
-}
+use bandcast::cli::{self, Cli};
 
 fn main() {
     let cli = Cli::parse();
@@ -65,19 +16,7 @@ fn main() {
             .num_threads(n)
             .build_global();
     }
-    let result = match cli.command {
-        Command::Scf(a) => cli::scf::run(a),
-        Command::Ionize(a) => cli::ionize::run(a),
-        Command::Core(a) => cli::core::run(a),
-        Command::Spectrum(a) => cli::spectrum::run(a),
-        Command::Assign(a) => cli::assign::run(a),
-        Command::Optimize(a) => cli::optimize::run(a),
-        Command::Vibrations(a) => cli::vibrations::run(a),
-        Command::Basis(a) => cli::basis::run(a),
-        Command::Bench(a) => cli::bench::run(a),
-        Command::Batch(a) => cli::batch::run(a),
-    };
-    if let Err(e) = result {
+    if let Err(e) = cli::run(cli) {
         eprintln!("error: {e}");
         std::process::exit(e.exit_code());
     }

@@ -95,7 +95,7 @@ pub fn run(a: Args) -> Result<()> {
         let mut argv = vec!["bandcast".to_string(), cmd.clone(), e.spec.clone()];
         argv.extend(options.iter().cloned());
         argv.extend(e.options.iter().cloned());
-        if let Err(err) = <crate::Cli as clap::Parser>::try_parse_from(&argv) {
+        if let Err(err) = <super::Cli as clap::Parser>::try_parse_from(&argv) {
             let msg = err.to_string();
             let first = msg
                 .lines()

@@ -234,7 +234,7 @@ pub fn check_output_dir(path: Option<&Path>) -> Result<()> {
 
 /// Print a printer's JSON text on stdout.
 pub fn print_json<T: serde::Serialize>(value: &T) -> Result<()> {
-    println!("{}", bandcast::report::json::to_pretty(value)?);
+    super::output::emit_json(&bandcast::report::json::to_pretty(value)?);
     Ok(())
 }
 

@@ -191,7 +191,7 @@ pub fn run(args: Args) -> Result<()> {
     if args.json {
         let text = serde_json::to_string_pretty(&result)
             .map_err(|e| Error::computation(format!("JSON output: {e}")))?;
-        println!("{text}");
+        super::output::emit_json(&text);
     } else {
         print!("{}", table(&result));
     }

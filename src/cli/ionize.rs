@@ -4,8 +4,8 @@
 
 use std::fmt::Write as _;
 
-use bandcast::ionization::method::Method;
 use bandcast::ionization::default_method;
+use bandcast::ionization::method::Method;
 use bandcast::ionization::valence::{predict, ValenceOptions, ValenceResult};
 use bandcast::scf::Reference;
 use bandcast::{Error, Result};
@@ -113,9 +113,8 @@ pub fn run(args: Args) -> Result<()> {
         mol.name.clone()
     };
     if args.json {
-        println!(
-            "{}",
-            serde_json::to_string_pretty(&to_json(&result, &name)).expect("JSON of plain data")
+        super::output::emit_json(
+            &serde_json::to_string_pretty(&to_json(&result, &name)).expect("JSON of plain data"),
         );
     } else {
         print!("{}", table(&result, &name));

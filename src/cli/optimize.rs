@@ -127,9 +127,8 @@ pub fn run(a: Args) -> Result<()> {
             hole_orbital: spec.hole.map(|h| h + 1),
             output: out.display().to_string(),
         };
-        println!(
-            "{}",
-            serde_json::to_string_pretty(&j).map_err(|e| Error::computation(e.to_string()))?
+        super::output::emit_json(
+            &serde_json::to_string_pretty(&j).map_err(|e| Error::computation(e.to_string()))?,
         );
         return Ok(());
     }

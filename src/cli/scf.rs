@@ -215,7 +215,7 @@ pub fn run(args: Args) -> Result<()> {
         jk_fitting: args.jk_fitting.clone(),
     };
     if args.json {
-        println!("{}", to_json(&mol, &wf, &info));
+        super::output::emit_json(&to_json(&mol, &wf, &info));
     } else {
         print!("{}", to_text(&mol, &wf, &info, args.all_orbitals));
     }

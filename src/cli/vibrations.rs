@@ -109,9 +109,8 @@ pub fn run(a: Args) -> Result<()> {
             zero_point_ev: an.zero_point_ev,
             imaginary: an.n_imaginary > 0,
         };
-        println!(
-            "{}",
-            serde_json::to_string_pretty(&j).map_err(|e| Error::computation(e.to_string()))?
+        super::output::emit_json(
+            &serde_json::to_string_pretty(&j).map_err(|e| Error::computation(e.to_string()))?,
         );
     } else {
         println!(
