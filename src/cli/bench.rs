@@ -5,7 +5,7 @@
 use std::path::{Path, PathBuf};
 
 use bandcast::chem::xyz::{read_xyz, LengthUnit};
-use bandcast::bench::integrals::{all_eris, class_throughput};
+use bandcast::bench::integrals::{all_eris, class_throughput, ClassTiming, MoleculeTiming};
 use bandcast::vibronic::FcOptions;
 use bandcast::{Error, Result};
 
@@ -75,6 +75,21 @@ pub const QUICK_NOTE: &str =
 
 const DEFAULT_DIR: &str = "tests/data/gw100";
 
+/// `bandcast bench integrals --json` (keys in alphabetical order).
+#[derive(serde::Serialize)]
+struct IntegralsJson<'a> {
+    classes: &'a [ClassTiming],
+    molecules: Vec<MoleculeRunJson<'a>>,
+    workload: &'static str,
+}
+
+#[derive(serde::Serialize)]
+struct MoleculeRunJson<'a> {
+    basis: &'a str,
+    file: &'a str,
+    timing: &'a MoleculeTiming,
+}
+
 fn integrals(a: IntegralsArgs) -> Result<()> {
     let mut runs: Vec<(PathBuf, String)> = Vec::new();
     for r in &a.runs {
@@ -131,11 +146,18 @@ fn integrals(a: IntegralsArgs) -> Result<()> {
         mols.push((file.display().to_string(), basis_name.clone(), t));
     }
     if a.json {
-        let j = serde_json::json!({
-            "workload": "integrals",
-            "classes": classes,
-            "molecules": mols.iter().map(|(f, b, t)| serde_json::json!({"file": f, "basis": b, "timing": t})).collect::<Vec<_>>(),
-        });
+        let j = IntegralsJson {
+            classes: &classes,
+            molecules: mols
+                .iter()
+                .map(|(f, b, t)| MoleculeRunJson {
+                    basis: b,
+                    file: f,
+                    timing: t,
+                })
+                .collect(),
+            workload: "integrals",
+        };
         println!(
             "{}",
             serde_json::to_string_pretty(&j).map_err(|e| Error::computation(e.to_string()))?

@@ -248,3 +248,120 @@ impl<'a> IonizeJson<'a> {
         }
     }
 }
+
+/// Everything `bandcast scf --json` prints (keys in alphabetical order).
+#[derive(Serialize)]
+pub struct ScfJson<'a> {
+    pub basis: &'a str,
+    pub charge: i32,
+    pub converged: bool,
+    pub density_fitted: bool,
+    pub density_fitted_start: Option<DfStartJson>,
+    pub dipole_debye: DipoleJson,
+    pub dipole_origin: &'static str,
+    pub energy_hartree: f64,
+    pub fock_builder: &'a str,
+    pub harmonics: &'a str,
+    pub iterations: usize,
+    pub jk_fitting_basis: Option<&'a str>,
+    pub molecule: &'a str,
+    pub multiplicity: u32,
+    pub n_atoms: usize,
+    pub n_basis: usize,
+    pub n_dropped_linear_dependencies: usize,
+    pub n_electrons: usize,
+    pub n_independent: usize,
+    pub nuclear_repulsion_hartree: f64,
+    pub one_electron_hartree: f64,
+    pub orbitals: Vec<OrbitalJson>,
+    pub reference: &'static str,
+    pub s2: f64,
+    pub two_electron_hartree: f64,
+}
+
+/// The density-fitted start of an SCF.
+#[derive(Serialize)]
+pub struct DfStartJson {
+    pub corrected_iterations: usize,
+    pub energy_hartree: f64,
+    pub iterations: usize,
+}
+
+/// A dipole moment in debye.
+#[derive(Serialize)]
+pub struct DipoleJson {
+    pub total: f64,
+    pub x: f64,
+    pub y: f64,
+    pub z: f64,
+}
+
+/// One orbital (index from 1 within its spin channel).
+#[derive(Serialize)]
+pub struct OrbitalJson {
+    pub energy_ev: f64,
+    pub energy_hartree: f64,
+    pub index: usize,
+    pub occupation: f64,
+    pub spin: &'static str,
+}
+
+impl<'a> ScfJson<'a> {
+    pub fn new(
+        mol: &'a crate::chem::Molecule,
+        wf: &'a crate::scf::Wavefunction,
+        info: &'a super::runs::ScfRun,
+    ) -> Self {
+        use crate::units::HARTREE_TO_EV;
+        let mut orbitals = Vec::new();
+        for (spin, eps, occ) in super::runs::scf_channels(wf) {
+            for (i, (&e, &o)) in eps.iter().zip(&occ).enumerate() {
+                orbitals.push(OrbitalJson {
+                    energy_ev: e * HARTREE_TO_EV,
+                    energy_hartree: e,
+                    index: i + 1,
+                    occupation: o,
+                    spin,
+                });
+            }
+        }
+        let d = super::runs::dipole_debye(wf);
+        ScfJson {
+            basis: &info.basis_name,
+            charge: mol.charge,
+            converged: wf.converged,
+            density_fitted: info.density_fitted,
+            density_fitted_start: info.df_start.as_ref().map(|d| DfStartJson {
+                corrected_iterations: d.corrected_iterations,
+                energy_hartree: d.energy,
+                iterations: d.iterations,
+            }),
+            dipole_debye: DipoleJson {
+                total: d[3],
+                x: d[0],
+                y: d[1],
+                z: d[2],
+            },
+            dipole_origin: "origin of the input coordinates",
+            energy_hartree: wf.energy,
+            fock_builder: &info.builder,
+            harmonics: info.harmonics,
+            iterations: wf.iterations,
+            jk_fitting_basis: (info.density_fitted || info.df_start.is_some())
+                .then_some(info.jk_fitting.as_str()),
+            molecule: &mol.name,
+            multiplicity: mol.multiplicity,
+            n_atoms: mol.atoms.len(),
+            n_basis: wf.n_basis,
+            n_dropped_linear_dependencies: info.n_dropped,
+            n_electrons: mol.n_electrons(),
+            n_independent: wf.n_independent,
+            nuclear_repulsion_hartree: wf.nuclear_repulsion,
+            one_electron_hartree: wf.one_electron,
+            orbitals,
+            reference: reference_name(wf.reference),
+            s2: wf.s2,
+            two_electron_hartree: wf.two_electron,
+        }
+    }
+}
