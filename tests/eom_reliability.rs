@@ -41,7 +41,7 @@ fn helium_default_method_falls_back_and_runs() {
         .skipped
         .iter()
         .all(|s| s.reason.code() == "no-virtual-orbitals"));
-    assert!(r.notes.iter().any(|n| n.contains("no virtual orbital")));
+    assert!(r.notes.iter().any(|n| n.to_string().contains("no virtual orbital")));
     assert_eq!(r.bands.len(), 1);
 
     let b = bandcast::basis::load("def2-svp", &he, None).unwrap();

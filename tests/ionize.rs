@@ -317,6 +317,54 @@ fn count_and_window_select_lowest_bands() {
     assert!(win.bands.iter().all(|b| b.ie_ev <= cut));
 }
 
+/// Exact condition: a window LO:HI keeps exactly the bands of the unrestricted run whose
+/// IE lies between LO and HI, with the same energies (the lower bound only removes bands).
+#[test]
+fn window_with_lower_bound_keeps_the_bands_in_range() {
+    let m = mol(NITROGEN);
+    let b = basis(&m, "sto-3g");
+    let all = run(NITROGEN, "sto-3g", Method::Ep2);
+    assert!(all.bands.len() >= 3);
+    let lo = 0.5 * (all.bands[0].ie_ev + all.bands[1].ie_ev);
+    let hi = all.bands[2].ie_ev + 0.01;
+    let win = predict(
+        &m,
+        &b,
+        &ValenceOptions {
+            method: Method::Ep2,
+            window_ev: Some(hi),
+            window_min_ev: Some(lo),
+            ..Default::default()
+        },
+    )
+    .unwrap();
+    let expected: Vec<(&str, f64)> = all
+        .bands
+        .iter()
+        .filter(|x| x.ie_ev >= lo && x.ie_ev <= hi)
+        .map(|x| (x.label.as_str(), x.ie_ev))
+        .collect();
+    let got: Vec<(&str, f64)> = win.bands.iter().map(|x| (x.label.as_str(), x.ie_ev)).collect();
+    assert_eq!(got.len(), 2);
+    assert_eq!(got.len(), expected.len());
+    for (g, e) in got.iter().zip(&expected) {
+        assert_eq!(g.0, e.0);
+        assert!((g.1 - e.1).abs() < 1e-9, "{g:?} vs {e:?}");
+    }
+    // a lower bound at or above the upper one is refused as an input error
+    let bad = predict(
+        &m,
+        &b,
+        &ValenceOptions {
+            method: Method::Ep2,
+            window_ev: Some(lo),
+            window_min_ev: Some(hi),
+            ..Default::default()
+        },
+    );
+    assert!(matches!(bad, Err(Error::Input { .. })));
+}
+
 #[test]
 fn cli_json_has_the_documented_fields() {
     let dir = std::env::temp_dir().join(format!("bandcast-ionize-{}", std::process::id()));

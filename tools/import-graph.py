@@ -8,12 +8,15 @@ order below. Cycles = elementary cycles among the rooms (Johnson-style DFS, smal
 """
 import os, re, sys
 
-ORDER = ["units", "error", "system", "chem", "basis", "integrals", "scf", "analysis",
-         "correlation", "ionization", "core_level", "request", "spectrum", "report",
-         "bench", "cli", "main", "lib"]
+ORDER = ["units", "error", "system", "chem", "basis", "integrals", "scf", "gradient",
+         "analysis", "correlation", "ionization", "core_level", "geometry", "vibrations",
+         "vibronic", "request", "predict", "spectrum", "batch", "report", "bench", "cli",
+         "main", "lib"]
 RANK = {r: i for i, r in enumerate(ORDER)}
 # units and error are on the same level (both leaves)
 RANK["error"] = RANK["units"]
+# the request path: src/request.rs or src/predict/
+RANK["predict"] = RANK["request"]
 
 src = sys.argv[1] if len(sys.argv) > 1 else "src"
 edges = {}

@@ -1,5 +1,6 @@
 //! Chemistry basics: elements, molecules, the structure readers (XYZ, MOL/SDF), the
-//! frozen-core rule.
+//! frozen-core rule, and a standard-geometry alkane builder (`alkane`).
+pub mod alkane;
 pub mod elements;
 pub mod frozen_core;
 pub mod masses;

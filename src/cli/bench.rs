@@ -5,7 +5,8 @@
 use std::path::{Path, PathBuf};
 
 use bandcast::chem::xyz::{read_xyz, LengthUnit};
-use bandcast::bench::integrals::{all_eris, class_throughput};
+use bandcast::bench::integrals::{all_eris, class_throughput, ClassTiming, MoleculeTiming};
+use bandcast::vibronic::FcOptions;
 use bandcast::{Error, Result};
 
 #[derive(clap::Args, Debug)]
@@ -25,9 +26,9 @@ pub enum Workload {
     /// Carbon 1s levels (ΔSCF) of an all-trans n-alkane built from standard geometry.
     Core(super::core::BenchArgs),
     /// EOM-IP-CCSD (benzene) and EOM-IP-MBPT2 (guanine) in def2-TZVPP: time per stage, memory.
-    Eom(super::eom_bench::BenchArgs),
+    Eom(EomArgs),
     /// Franck–Condon lines of seeded random many-mode Duschinsky relations: captured fraction, lines, time.
-    FranckCondon(super::vibronic_bench::BenchArgs),
+    FranckCondon(FranckCondonArgs),
 }
 
 #[derive(clap::Args, Debug)]
@@ -63,8 +64,8 @@ pub fn run(args: Args) -> Result<()> {
         Workload::Ep2(a) => super::ionize::ep2_bench(a),
         Workload::Scf(a) => super::scf::bench(a),
         Workload::Core(a) => super::core::bench(a),
-        Workload::Eom(a) => super::eom_bench::bench(a),
-        Workload::FranckCondon(a) => super::vibronic_bench::bench(a),
+        Workload::Eom(a) => eom(a),
+        Workload::FranckCondon(a) => franck_condon(a),
     }
 }
 
@@ -73,6 +74,21 @@ pub const QUICK_NOTE: &str =
     "note: bench's --quick is now --small (the old spelling is accepted for one release)";
 
 const DEFAULT_DIR: &str = "tests/data/gw100";
+
+/// `bandcast bench integrals --json` (keys in alphabetical order).
+#[derive(serde::Serialize)]
+struct IntegralsJson<'a> {
+    classes: &'a [ClassTiming],
+    molecules: Vec<MoleculeRunJson<'a>>,
+    workload: &'static str,
+}
+
+#[derive(serde::Serialize)]
+struct MoleculeRunJson<'a> {
+    basis: &'a str,
+    file: &'a str,
+    timing: &'a MoleculeTiming,
+}
 
 fn integrals(a: IntegralsArgs) -> Result<()> {
     let mut runs: Vec<(PathBuf, String)> = Vec::new();
@@ -130,11 +146,18 @@ fn integrals(a: IntegralsArgs) -> Result<()> {
         mols.push((file.display().to_string(), basis_name.clone(), t));
     }
     if a.json {
-        let j = serde_json::json!({
-            "workload": "integrals",
-            "classes": classes,
-            "molecules": mols.iter().map(|(f, b, t)| serde_json::json!({"file": f, "basis": b, "timing": t})).collect::<Vec<_>>(),
-        });
+        let j = IntegralsJson {
+            classes: &classes,
+            molecules: mols
+                .iter()
+                .map(|(f, b, t)| MoleculeRunJson {
+                    basis: b,
+                    file: f,
+                    timing: t,
+                })
+                .collect(),
+            workload: "integrals",
+        };
         println!(
             "{}",
             serde_json::to_string_pretty(&j).map_err(|e| Error::computation(e.to_string()))?
@@ -191,6 +214,127 @@ fn integrals(a: IntegralsArgs) -> Result<()> {
         if let Some(c) = t.cpu_seconds {
             println!("  CPU time of all threads during the run: {c:.2} s");
         }
+    }
+    Ok(())
+}
+
+/// `bandcast bench eom`: the EOM-IP workload (library: `bandcast::bench::eom`).
+#[derive(clap::Args, Debug)]
+pub struct EomArgs {
+    /// Small stand-ins only (water/def2-TZVPP and benzene/def2-SVP).
+    #[arg(long)]
+    pub small: bool,
+    /// Old spelling of --small, kept for one release.
+    #[arg(long, hide = true)]
+    pub quick: bool,
+    /// Run only the cases of these molecules (e.g. --only benzene).
+    #[arg(long, value_name = "NAME")]
+    pub only: Vec<String>,
+    /// Memory budget in GiB for the correlated stages.
+    #[arg(long, value_name = "GIB", default_value_t = 14.0)]
+    pub memory: f64,
+    /// Directory holding benzene.xyz and guanine.xyz (GW100 structures, Å).
+    #[arg(long, value_name = "DIR", default_value = "tests/data/gw100")]
+    pub dir: std::path::PathBuf,
+}
+
+fn eom(a: EomArgs) -> Result<()> {
+    if a.quick {
+        eprintln!("{}", QUICK_NOTE);
+    }
+    if !(a.memory > 0.0) {
+        return Err(Error::input("--memory must be a positive number of GiB"));
+    }
+    println!(
+        "EOM-IP benchmark ({} threads): EOM-IP-CCSD benzene/def2-TZVPP (5 states), \
+         EOM-IP-MBPT2 guanine/def2-TZVPP (5 states); per stage: wall time, CPU time of \
+         all threads, peak resident memory (VmHWM) within the stage",
+        rayon::current_num_threads()
+    );
+    bandcast::bench::eom::run_eom_bench(
+        &a.dir,
+        a.small || a.quick,
+        &a.only,
+        a.memory * 1024.0 * 1024.0 * 1024.0,
+        &mut |l| eprintln!("{l}"),
+        &mut |r| print!("{}", bandcast::bench::eom::format_result(r)),
+    )?;
+    Ok(())
+}
+
+/// `bandcast bench franck-condon`: Franck–Condon lines of seeded random Duschinsky relations
+/// (library: `bandcast::bench::franck_condon`).
+#[derive(clap::Args, Debug)]
+pub struct FranckCondonArgs {
+    /// Number of vibrational modes of each seeded relation.
+    #[arg(long, default_value_t = 30, value_name = "N")]
+    pub modes: usize,
+    /// Seeds of the random relations, one run each.
+    #[arg(long, value_delimiter = ',', default_values_t = vec![1u64, 2, 3, 7], value_name = "S,S,…")]
+    pub seeds: Vec<u64>,
+    /// Fraction of the band's intensity to capture.
+    #[arg(long, default_value_t = 0.95, value_name = "F")]
+    pub target: f64,
+    /// Most lines kept per band.
+    #[arg(long, default_value_t = 50_000, value_name = "N")]
+    pub max_lines: usize,
+    /// Screening threshold: a combination of excited modes opens larger ones only when its
+    /// lines hold at least this intensity (band total 1).
+    #[arg(long, value_name = "I")]
+    pub subset_threshold: Option<f64>,
+    /// Work bound: most recursion steps per band.
+    #[arg(long, value_name = "N")]
+    pub max_overlaps: Option<u64>,
+    /// Print one JSON document instead of a table.
+    #[arg(long)]
+    pub json: bool,
+}
+
+fn franck_condon(a: FranckCondonArgs) -> Result<()> {
+    if a.modes == 0 || !(a.target > 0.0 && a.target <= 1.0) {
+        return Err(Error::input("--modes must be ≥ 1 and --target in (0, 1]"));
+    }
+    let mut opt = FcOptions {
+        target_fraction: a.target,
+        max_lines: a.max_lines,
+        ..FcOptions::default()
+    };
+    if let Some(t) = a.subset_threshold {
+        opt.subset_threshold = t;
+    }
+    if let Some(m) = a.max_overlaps {
+        opt.max_overlaps = m;
+    }
+    let rows = bandcast::bench::franck_condon::run(a.modes, &a.seeds, &opt)?;
+    if a.json {
+        println!(
+            "{}",
+            serde_json::to_string_pretty(&rows).map_err(|e| Error::computation(e.to_string()))?
+        );
+        return Ok(());
+    }
+    println!(
+        "Franck–Condon lines from v = 0, {} modes, seeded random Duschinsky relations \
+         (one thread; wall time)",
+        a.modes
+    );
+    println!(
+        "{:>6} {:>8} {:>9} {:>7} {:>8} {:>6} {:>12} {:>9}  notes",
+        "seed", "ΣS", "captured", "target", "lines", "class", "overlaps", "wall s"
+    );
+    for r in rows {
+        println!(
+            "{:>6} {:>8.2} {:>9.4} {:>7} {:>8} {:>6} {:>12} {:>9.2}  {}",
+            r.seed,
+            r.total_huang_rhys,
+            r.captured_fraction,
+            if r.target_reached { "yes" } else { "no" },
+            r.lines_kept,
+            r.highest_class,
+            r.overlaps_evaluated,
+            r.wall_seconds,
+            r.notes.join(",")
+        );
     }
     Ok(())
 }

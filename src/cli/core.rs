@@ -6,10 +6,12 @@ use std::path::PathBuf;
 use bandcast::basis;
 use bandcast::chem::elements::parse_element;
 use bandcast::core_level::{
-    predict_with_progress, CoreBasis, CoreOptions, CoreResult, CoreTimings, ReferenceMolecule,
+    predict_with_progress, CoreBasis, CoreOptions, ReferenceMolecule,
     ShiftReference, TargetSelection,
 };
 use bandcast::{Error, Result};
+
+use bandcast::report::text::{core_table, core_timings_text};
 
 use super::common::{MoleculeArgs, StateArgs};
 
@@ -186,116 +188,16 @@ pub fn run(args: Args) -> Result<()> {
     }
     let result = result?;
     if args.verbose {
-        eprint!("{}", timings_text(&result.timings));
+        eprint!("{}", core_timings_text(&result.timings));
     }
     if args.json {
         let text = serde_json::to_string_pretty(&result)
             .map_err(|e| Error::computation(format!("JSON output: {e}")))?;
         super::output::emit_json(&text);
     } else {
-        print!("{}", table(&result));
+        print!("{}", core_table(&result));
     }
     Ok(())
-}
-
-fn opt(v: Option<f64>, width: usize, digits: usize) -> String {
-    match v {
-        // No "-0.00" for a shift that is zero to print precision.
-        Some(x) if x.abs() < 0.5 * 10f64.powi(-(digits as i32)) => {
-            format!("{:>width$.digits$}", 0.0)
-        }
-        Some(x) => format!("{x:>width$.digits$}"),
-        None => format!("{:>width$}", "–"),
-    }
-}
-
-/// Human-readable table of a result.
-pub fn table(r: &CoreResult) -> String {
-    let mut s = String::new();
-    s.push_str(&format!(
-        "Core levels of {} — {} basis, {} ({} functions)\n",
-        if r.molecule.is_empty() {
-            "molecule"
-        } else {
-            &r.molecule
-        },
-        r.basis,
-        r.core_basis,
-        r.n_basis
-    ));
-    match r.neutral_energy_hartree {
-        Some(e) => s.push_str(&format!("Neutral Hartree–Fock energy {e:.8} Eh\n")),
-        None => s.push_str(
-            "Neutral Hartree–Fock energy: one per hole (each hole's basis has the core \
-             flexibility on its own atom; see JSON)\n",
-        ),
-    }
-    for rf in &r.references {
-        s.push_str(&format!(
-            "Shift reference: {} 1s of {} (atom {}) at {:.2} eV\n",
-            rf.element, rf.molecule, rf.atom, rf.dscf_ev
-        ));
-    }
-    s.push('\n');
-    let has_mp2 = r.core_levels.iter().any(|l| l.dmp2_ev.is_some());
-    let has_rel = r
-        .core_levels
-        .iter()
-        .any(|l| l.relativistic_correction_ev.is_some());
-    s.push_str("level      Koopmans/eV  ΔSCF/eV");
-    if has_rel {
-        s.push_str("  rel./eV  ΔSCF+rel/eV");
-    }
-    if has_mp2 {
-        s.push_str("  ΔMP2/eV");
-    }
-    s.push_str("  shift/eV   ⟨S²⟩   hole  localised  kept start\n");
-    for l in &r.core_levels {
-        s.push_str(&format!(
-            "{:<10} {:>11.2} {:>8.2}",
-            l.label, l.koopmans_ev, l.dscf_ev
-        ));
-        if has_rel {
-            s.push_str(&format!(
-                " {} {}",
-                opt(l.relativistic_correction_ev, 8, 2),
-                opt(l.dscf_relativistic_ev, 12, 2)
-            ));
-        }
-        if has_mp2 {
-            s.push_str(&format!(" {}", opt(l.dmp2_ev, 8, 2)));
-        }
-        s.push_str(&format!(
-            " {}  {:>6.3}  {:>4.2}  {:<9}  {}\n",
-            opt(l.shift_ev, 8, 2),
-            l.s2,
-            l.hole_population,
-            if l.localised { "yes" } else { "no" },
-            l.start
-        ));
-    }
-    let mut notes: Vec<String> = r.notes.iter().map(|n| n.to_string()).collect();
-    for l in &r.core_levels {
-        for n in l.notes.iter() {
-            notes.push(format!("{}: {n}", l.label));
-        }
-        if let (Some(a), Some(b)) = (l.shift_ev, l.shift_dmp2_ev) {
-            notes.push(format!(
-                "{}: shift {a:.2} eV (ΔSCF), {b:.2} eV (ΔMP2)",
-                l.label
-            ));
-        }
-    }
-    notes.push(
-        "hole = Löwdin population of the final vacancy on the atom; predictions guide a \
-         measurement, they do not replace it"
-            .into(),
-    );
-    s.push('\n');
-    for n in notes {
-        s.push_str(&format!("note: {n}\n"));
-    }
-    s
 }
 
 /// `bandcast bench core`: all carbon 1s levels of CnH2n+2.
@@ -318,40 +220,6 @@ pub struct BenchArgs {
     pub core_basis: String,
 }
 
-fn secs(cpu: Option<f64>) -> String {
-    cpu.map(|c| format!("{c:.1}")).unwrap_or_else(|| "?".into())
-}
-
-/// Stage timings of a run, one line per stage (for `--verbose` and `bandcast bench core`).
-fn timings_text(t: &CoreTimings) -> String {
-    let mut s = format!(
-        "  total {:.2} s wall, {} CPU-s; Fock builds: {}\n",
-        t.total_s,
-        secs(t.total_cpu_s),
-        t.fock_builder
-    );
-    if t.shared_bytes > 0 {
-        s.push_str(&format!(
-            "  shared quartets (no shell on a hole atom): {:.2} s wall, {} CPU-s, {:.1} MiB\n",
-            t.shared_s,
-            secs(t.shared_cpu_s),
-            t.shared_bytes as f64 / (1u64 << 20) as f64
-        ));
-    }
-    for (kind, list) in [("neutral", &t.neutrals), ("hole", &t.holes)] {
-        for h in list {
-            s.push_str(&format!(
-                "  {kind:<7} {:<12} {:>4} fn {:>8.2} s wall {:>8} CPU-s {:>4} iterations\n",
-                h.label,
-                h.n_basis,
-                h.seconds,
-                secs(h.cpu_seconds),
-                h.iterations
-            ));
-        }
-    }
-    s
-}
 
 pub fn bench(a: BenchArgs) -> Result<()> {
     if a.carbons == 0 {
@@ -376,7 +244,7 @@ pub fn bench(a: BenchArgs) -> Result<()> {
         if a.thorough { "all" } else { "first clean" },
         rayon::current_num_threads()
     );
-    print!("{}", timings_text(t));
+    print!("{}", core_timings_text(t));
     for l in &r.result.core_levels {
         println!(
             "  {:<8} ΔSCF {:>8.3} eV  ⟨S²⟩ {:.3}  start {}{}",

@@ -2,16 +2,14 @@
 //!
 //! Parsing and printing only; the work is `bandcast::ionization::valence::predict`.
 
-use std::fmt::Write as _;
-
-use bandcast::ionization::default_method;
 use bandcast::ionization::method::Method;
-use bandcast::ionization::valence::{predict, ValenceOptions, ValenceResult};
-use bandcast::scf::Reference;
+use bandcast::ionization::default_method;
+use bandcast::ionization::valence::{predict, ValenceOptions};
+use bandcast::report::json::{to_pretty, IonizeJson};
+use bandcast::report::text::ionize_table;
 use bandcast::{Error, Result};
-use serde_json::{json, Value};
 
-use super::common::MoleculeArgs;
+use super::common::{parse_window, MoleculeArgs};
 
 /// Valence ionization energies with band labels, degeneracies, make-up and bonding character.
 #[derive(clap::Args, Debug)]
@@ -29,9 +27,10 @@ pub struct Args {
     /// Report the N bands of lowest ionization energy.
     #[arg(long, value_name = "N", conflicts_with = "window")]
     pub count: Option<usize>,
-    /// Report the bands with ionization energy up to EV electronvolts (e.g. 21.2 for He I).
-    #[arg(long, value_name = "EV")]
-    pub window: Option<f64>,
+    /// Report the bands with ionization energy in this range in eV: `LO:HI` (e.g. `12:21.2`)
+    /// or `HI` (= 0:HI, e.g. 21.2 for He I).
+    #[arg(long, value_name = "LO:HI|HI", value_parser = parse_window)]
+    pub window: Option<(f64, f64)>,
     /// Correlate the core electrons too in EP2 and EOM (default: frozen core).
     #[arg(long, alias = "all-electron")]
     pub correlate_core: bool,
@@ -48,13 +47,14 @@ pub struct Args {
     /// One JSON object on stdout instead of the table.
     #[arg(long)]
     pub json: bool,
+    /// Say on stderr which method runs (and, by default, why), its notes, and the time of
+    /// each stage.
+    #[arg(long)]
+    pub verbose: bool,
 }
 
-/// Printed under every table: the numbers are predictions.
-pub const GUIDANCE: &str = "These are computed predictions to guide a measurement, not a \
-substitute for one; check assignments against a measured spectrum before relying on them.";
-
 pub fn run(args: Args) -> Result<()> {
+    let started = std::time::Instant::now();
     let mol = args.molecule.load()?;
     const GIB: f64 = (1u64 << 30) as f64;
     let memory_bytes = match args.memory {
@@ -65,6 +65,7 @@ pub fn run(args: Args) -> Result<()> {
         None => bandcast::system::default_memory_budget() as f64,
     };
     let basis = bandcast::basis::load(&args.basis, &mol, None)?;
+    let loaded_s = started.elapsed().as_secs_f64();
     let defaulted = args.method.is_none();
     let method = match &args.method {
         Some(m) => Method::parse(m)?,
@@ -96,195 +97,54 @@ pub fn run(args: Args) -> Result<()> {
     let opts = ValenceOptions {
         method,
         count: args.count,
-        window_ev: args.window,
+        window_ev: args.window.map(|w| w.1),
+        window_min_ev: args.window.map(|w| w.0).filter(|&lo| lo > 0.0),
         frozen_core: !args.correlate_core,
         memory_bytes: memory_bytes as usize,
         eom_integrals,
         ..Default::default()
     };
+    if args.verbose {
+        eprintln!(
+            "{}: {} / {} ({} basis functions){}",
+            mol.name,
+            method,
+            basis.name,
+            basis.n_basis,
+            if defaulted { ", first choice of the default rule" } else { "" }
+        );
+        eprintln!("  molecule and basis: {loaded_s:.2} s");
+    }
+    let predict_started = std::time::Instant::now();
     let result = if defaulted {
         default_method::predict_default(&mol, &basis, &opts)?.0
     } else {
         predict(&mol, &basis, &opts)?
     };
+    if args.verbose {
+        eprintln!(
+            "  SCF and {}: {:.2} s",
+            result.method,
+            predict_started.elapsed().as_secs_f64()
+        );
+        for n in &result.notes {
+            eprintln!("  note [{}]: {n}", n.code());
+        }
+        for w in &result.warnings {
+            eprintln!("  warning [{}]: {w}", w.code());
+        }
+    }
     let name = if mol.name.is_empty() {
         args.molecule.file.display().to_string()
     } else {
         mol.name.clone()
     };
     if args.json {
-        super::output::emit_json(
-            &serde_json::to_string_pretty(&to_json(&result, &name)).expect("JSON of plain data"),
-        );
+        super::output::emit_json(&to_pretty(&IonizeJson::new(&result, &name))?);
     } else {
-        print!("{}", table(&result, &name));
+        print!("{}", ionize_table(&result, &name));
     }
     Ok(())
-}
-
-fn reference_name(r: Reference) -> &'static str {
-    match r {
-        Reference::Rhf => "rhf",
-        Reference::Uhf => "uhf",
-        Reference::Rohf => "rohf",
-    }
-}
-
-/// The `--json` document (schema in README.md, "bandcast ionize").
-pub fn to_json(r: &ValenceResult, molecule: &str) -> Value {
-    let bands: Vec<Value> = r
-        .bands
-        .iter()
-        .enumerate()
-        .map(|(k, b)| {
-            let with: Vec<&str> = r
-                .uncertain_pairs
-                .iter()
-                .filter_map(|p| {
-                    if p.first == k {
-                        Some(p.labels[1].as_str())
-                    } else if p.second == k {
-                        Some(p.labels[0].as_str())
-                    } else {
-                        None
-                    }
-                })
-                .collect();
-            json!({
-                "label": b.label,
-                "symmetry": b.symmetry,
-                "ie_ev": b.ie_ev,
-                "degeneracy": b.degeneracy,
-                "occupation": b.occupation,
-                "pole_strength": b.pole_strength,
-                "one_hole_weight": b.one_hole_weight,
-                "method": b.method,
-                "character": b.character,
-                "character_note": b.character_note,
-                "makeup": b.makeup.iter().map(|m| json!({
-                    "atom": m.atom, "shell": m.shell, "fraction": m.fraction
-                })).collect::<Vec<_>>(),
-                "koopmans_ie_ev": r.koopmans_ev[k],
-                "order_uncertain_with": with,
-            })
-        })
-        .collect();
-    let pairs: Vec<Value> = r
-        .uncertain_pairs
-        .iter()
-        .map(|p| {
-            json!({
-                "bands": p.labels,
-                "gap_ev": p.gap_ev,
-                "doubt": p.doubt,
-                "reason": p.reason,
-            })
-        })
-        .collect();
-    json!({
-        "molecule": molecule,
-        "method": r.method.name(),
-        "basis": r.basis,
-        "point_group": r.point_group,
-        "reference": { "kind": reference_name(r.reference), "energy_hartree": r.reference_energy },
-        "bands": bands,
-        "order_uncertain": pairs,
-        "notes": r.notes,
-        "warnings": r.warnings,
-        "note": GUIDANCE,
-    })
-}
-
-/// The human-readable table.
-pub fn table(r: &ValenceResult, molecule: &str) -> String {
-    let mut s = String::new();
-    let _ = writeln!(
-        s,
-        "{molecule}: valence ionization by {} in {}{}",
-        r.method,
-        r.basis,
-        r.point_group
-            .as_ref()
-            .map(|g| format!(", point group {g}"))
-            .unwrap_or_default()
-    );
-    let _ = writeln!(
-        s,
-        "reference {} energy {:.8} Eh",
-        reference_name(r.reference).to_uppercase(),
-        r.reference_energy
-    );
-    let _ = writeln!(s);
-    let _ = writeln!(
-        s,
-        "  {:<8} {:>8} {:>4} {:>6} {:>8}  {:<12} make-up",
-        "band", "IE (eV)", "deg", "weight", "Koopmans", "character"
-    );
-    for (k, b) in r.bands.iter().enumerate() {
-        let flag = if r
-            .uncertain_pairs
-            .iter()
-            .any(|p| p.first == k || p.second == k)
-        {
-            " ?"
-        } else {
-            ""
-        };
-        let pole = b
-            .pole_strength
-            .or(b.one_hole_weight)
-            .map(|p| format!("{p:.3}"))
-            .unwrap_or_else(|| "-".into());
-        let makeup: Vec<String> = b
-            .makeup
-            .iter()
-            .filter(|m| m.fraction >= 0.05)
-            .take(4)
-            .map(|m| format!("{} {} {:.0}%", m.atom, m.shell, 100.0 * m.fraction))
-            .collect();
-        let _ = writeln!(
-            s,
-            "  {:<8} {:>8.3} {:>4} {:>6} {:>8.3}  {:<12} {}{}",
-            b.label,
-            b.ie_ev,
-            b.degeneracy,
-            pole,
-            r.koopmans_ev[k],
-            b.character.as_deref().unwrap_or("-"),
-            if makeup.is_empty() {
-                "-".to_string()
-            } else {
-                makeup.join(", ")
-            },
-            flag
-        );
-        if let Some(note) = &b.character_note {
-            let _ = writeln!(
-                s,
-                "  {:<8} {:>8} {:>4} {:>6} {:>8}  ↳ {note}",
-                "", "", "", "", ""
-            );
-        }
-    }
-    if !r.uncertain_pairs.is_empty() {
-        let _ = writeln!(s);
-        let _ = writeln!(s, "order uncertain (marked ?):");
-        for p in &r.uncertain_pairs {
-            let _ = writeln!(s, "  {} / {}: {}", p.labels[0], p.labels[1], p.reason);
-        }
-    }
-    if !r.notes.is_empty() || !r.warnings.is_empty() {
-        let _ = writeln!(s);
-        for n in &r.notes {
-            let _ = writeln!(s, "note: {n}");
-        }
-        for w in &r.warnings {
-            let _ = writeln!(s, "warning: {w}");
-        }
-    }
-    let _ = writeln!(s);
-    let _ = writeln!(s, "{GUIDANCE}");
-    s
 }
 
 /// `bandcast bench ep2 FILE.xyz --basis NAME`: time the SCF and EP2 for all valence bands.

@@ -8,7 +8,6 @@ pub mod batch;
 pub mod bench;
 pub mod common;
 pub mod core;
-pub mod eom_bench;
 pub mod geometry_common;
 pub mod ionize;
 pub mod optimize;
@@ -16,7 +15,6 @@ pub mod output;
 pub mod scf;
 pub mod spectrum;
 pub mod vibrations;
-pub mod vibronic_bench;
 
 use clap::{Parser, Subcommand};
 

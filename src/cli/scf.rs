@@ -8,8 +8,11 @@ use bandcast::scf::context::BuilderChoice;
 use bandcast::scf::{
     self, DfStart, FockMethod, Guess, IterationInfo, Reference, ScfOptions, Wavefunction,
 };
-use bandcast::units::{AU_TO_DEBYE, HARTREE_TO_EV};
+use bandcast::units::HARTREE_TO_EV;
 use bandcast::{Error, Result};
+
+use bandcast::report::json::{reference_name, to_pretty, ScfJson};
+use bandcast::report::runs::{dipole_debye, scf_channels, ScfRun};
 
 use super::common::MoleculeArgs;
 
@@ -204,7 +207,7 @@ pub fn run(args: Args) -> Result<()> {
             eprintln!("scf: no density-fitted start: {why}");
         }
     }
-    let info = RunInfo {
+    let info = ScfRun {
         basis_name: basis.name.clone(),
         harmonics: describe_harmonics(&basis),
         n_dropped: ctx.ortho.n_dropped,
@@ -215,7 +218,7 @@ pub fn run(args: Args) -> Result<()> {
         jk_fitting: args.jk_fitting.clone(),
     };
     if args.json {
-        super::output::emit_json(&to_json(&mol, &wf, &info));
+        super::output::emit_json(&to_pretty(&ScfJson::new(&mol, &wf, &info))?);
     } else {
         print!("{}", to_text(&mol, &wf, &info, args.all_orbitals));
     }
@@ -246,16 +249,6 @@ fn progress_line(i: &IterationInfo) -> String {
     )
 }
 
-struct RunInfo {
-    basis_name: String,
-    harmonics: &'static str,
-    n_dropped: usize,
-    smallest_kept: f64,
-    builder: String,
-    density_fitted: bool,
-    df_start: Option<bandcast::scf::context::DfStartRecord>,
-    jk_fitting: String,
-}
 
 fn describe_harmonics(b: &bandcast::basis::BasisSet) -> &'static str {
     let high: Vec<bool> = b
@@ -275,90 +268,9 @@ fn describe_harmonics(b: &bandcast::basis::BasisSet) -> &'static str {
     }
 }
 
-fn reference_name(r: Reference) -> &'static str {
-    match r {
-        Reference::Rhf => "rhf",
-        Reference::Uhf => "uhf",
-        Reference::Rohf => "rohf",
-    }
-}
 
-/// (spin label, energies, occupations) per channel as printed.
-fn channels(wf: &Wavefunction) -> Vec<(&'static str, &[f64], Vec<f64>)> {
-    match wf.reference {
-        Reference::Rhf => vec![(
-            "restricted",
-            &wf.eps_alpha[..],
-            wf.occ_alpha.iter().map(|o| 2.0 * o).collect(),
-        )],
-        _ => vec![
-            ("alpha", &wf.eps_alpha[..], wf.occ_alpha.clone()),
-            ("beta", &wf.eps_beta[..], wf.occ_beta.clone()),
-        ],
-    }
-}
 
-fn dipole_debye(wf: &Wavefunction) -> [f64; 4] {
-    let d = wf.dipole.map(|v| v * AU_TO_DEBYE);
-    [
-        d[0],
-        d[1],
-        d[2],
-        (d[0] * d[0] + d[1] * d[1] + d[2] * d[2]).sqrt(),
-    ]
-}
 
-fn to_json(mol: &Molecule, wf: &Wavefunction, info: &RunInfo) -> String {
-    let mut orbitals = Vec::new();
-    for (spin, eps, occ) in channels(wf) {
-        for (i, (&e, &o)) in eps.iter().zip(&occ).enumerate() {
-            orbitals.push(serde_json::json!({
-                "index": i + 1,
-                "spin": spin,
-                "energy_hartree": e,
-                "energy_ev": e * HARTREE_TO_EV,
-                "occupation": o,
-            }));
-        }
-    }
-    let d = dipole_debye(wf);
-    let v = serde_json::json!({
-        "molecule": mol.name,
-        "n_atoms": mol.atoms.len(),
-        "charge": mol.charge,
-        "multiplicity": mol.multiplicity,
-        "n_electrons": mol.n_electrons(),
-        "basis": info.basis_name,
-        "harmonics": info.harmonics,
-        "reference": reference_name(wf.reference),
-        "converged": wf.converged,
-        "iterations": wf.iterations,
-        "energy_hartree": wf.energy,
-        "nuclear_repulsion_hartree": wf.nuclear_repulsion,
-        "one_electron_hartree": wf.one_electron,
-        "two_electron_hartree": wf.two_electron,
-        "s2": wf.s2,
-        "n_basis": wf.n_basis,
-        "n_independent": wf.n_independent,
-        "n_dropped_linear_dependencies": info.n_dropped,
-        "fock_builder": info.builder,
-        "density_fitted": info.density_fitted,
-        "jk_fitting_basis": if info.density_fitted || info.df_start.is_some() {
-            serde_json::Value::from(info.jk_fitting.clone())
-        } else {
-            serde_json::Value::Null
-        },
-        "density_fitted_start": info.df_start.as_ref().map(|d| serde_json::json!({
-            "iterations": d.iterations,
-            "corrected_iterations": d.corrected_iterations,
-            "energy_hartree": d.energy,
-        })),
-        "dipole_debye": { "x": d[0], "y": d[1], "z": d[2], "total": d[3] },
-        "dipole_origin": "origin of the input coordinates",
-        "orbitals": orbitals,
-    });
-    serde_json::to_string_pretty(&v).expect("JSON of plain values")
-}
 
 /// The molecule's name (XYZ comment line) cut to 40 characters for the header.
 fn short_name(name: &str) -> String {
@@ -372,7 +284,7 @@ fn short_name(name: &str) -> String {
     n
 }
 
-fn to_text(mol: &Molecule, wf: &Wavefunction, info: &RunInfo, all: bool) -> String {
+fn to_text(mol: &Molecule, wf: &Wavefunction, info: &ScfRun, all: bool) -> String {
     use std::fmt::Write;
     let mut s = String::new();
     let spin_word = match mol.multiplicity {
@@ -440,7 +352,7 @@ fn to_text(mol: &Molecule, wf: &Wavefunction, info: &RunInfo, all: bool) -> Stri
         );
     }
     let _ = writeln!(s);
-    for (spin, eps, occ) in channels(wf) {
+    for (spin, eps, occ) in scf_channels(wf) {
         let title = match spin {
             "restricted" => "Orbitals".to_string(),
             other => format!("Orbitals, {other} spin"),

@@ -152,7 +152,7 @@ mod tests {
     #[test]
     fn butane_end_and_middle_carbons_pair_up() {
         // All-trans butane (C2h): C1 ≡ C4 and C2 ≡ C3.
-        let m = crate::bench::core_level::alkane(4);
+        let m = crate::chem::alkane::alkane(4);
         let e = equivalent_holes(&m, &[0, 1, 2, 3]);
         assert_eq!(e.representative, vec![0, 1, 1, 0]);
         assert_eq!(e.group, "C2h");

@@ -23,6 +23,7 @@ use crate::correlation::memory::{self, FactorRoute, Stage};
 use crate::correlation::two_electron::{self, Resolved, TwoElectron};
 use crate::error::{Error, Result};
 use crate::ionization::method::Method;
+use crate::ionization::notice::ValenceNotice;
 use crate::ionization::valence::{predict_with, ValenceOptions, ValenceResult};
 use crate::scf::Reference;
 
@@ -248,12 +249,12 @@ pub fn predict_default(
                     method: m,
                     skipped,
                 };
-                r.notes.push(choice.to_string());
+                r.notes.push(ValenceNotice::DefaultMethodChosen(choice.clone()));
                 for s in &failures {
-                    r.warnings.push(format!(
-                        "the default method fell back from {}: {}",
-                        s.method, s.reason
-                    ));
+                    r.warnings.push(ValenceNotice::DefaultFellBack {
+                        method: s.method,
+                        reason: s.reason.clone(),
+                    });
                 }
                 return Ok((r, choice));
             }

@@ -4,6 +4,7 @@
 //!   electron propagator). `method`: their names and typical errors.
 //! - `bands`: degenerate orbitals → bands; `annotate`: labels and make-up from `analysis`;
 //!   `uncertainty`: which band pairs may be in the wrong order.
+//! - `notice`: the typed notes and warnings of a prediction.
 //! - `valence`: the entry point, `valence::predict`. `default_method`: THE default-method rule.
 //!
 //! Core levels (1s holes) live in `crate::core_level`.
@@ -15,6 +16,7 @@ pub mod ep2;
 pub mod default_method;
 pub mod koopmans;
 pub mod method;
+pub mod notice;
 pub mod uncertainty;
 pub mod valence;
 

@@ -21,6 +21,7 @@ use crate::ionization::ep2::{ep2, Ep2Options};
 use crate::chem::frozen_core::core_orbitals;
 use crate::ionization::koopmans::{koopmans, Spin};
 use crate::ionization::method::Method;
+use crate::ionization::notice::ValenceNotice;
 use crate::ionization::uncertainty::{disagreements, merge, within_error, UncertainPair};
 use crate::scf::{Reference, ScfOptions, Wavefunction};
 use crate::units::ev;
@@ -44,6 +45,8 @@ pub struct ValenceOptions {
     pub count: Option<usize>,
     /// Keep bands with IE up to this value (eV), e.g. 21.2 for a He I lamp.
     pub window_ev: Option<f64>,
+    /// Keep bands with IE from this value (eV) on; used only together with `window_ev`.
+    pub window_min_ev: Option<f64>,
     /// Leave core orbitals out of the EP2 sums (common practice; they are never listed as
     /// valence bands anyway).
     pub frozen_core: bool,
@@ -65,6 +68,7 @@ impl Default for ValenceOptions {
             method: Method::Ep2,
             count: None,
             window_ev: None,
+            window_min_ev: None,
             frozen_core: true,
             compare_with_koopmans: true,
             degeneracy_tol: DEGENERACY_TOL,
@@ -98,10 +102,10 @@ pub struct ValenceResult {
     pub koopmans_ev: Vec<f64>,
     /// How the job was run (integral factorisation, frozen core, correlation energies,
     /// the default-method rule): information, not a problem.
-    pub notes: Vec<String>,
+    pub notes: Vec<ValenceNotice>,
     /// Something the user should look at (low pole strength, a hole that moved, a root
     /// that did not converge, spin contamination, …).
-    pub warnings: Vec<String>,
+    pub warnings: Vec<ValenceNotice>,
     pub uncertain_pairs: Vec<UncertainPair>,
     /// Total SCF energy of the neutral (hartree).
     pub reference_energy: f64,
@@ -128,11 +132,20 @@ pub fn predict_with(
     opts: &ValenceOptions,
 ) -> Result<ValenceResult> {
     if let Some(0) = opts.count {
-        return Err(Error::input("--count must be at least 1"));
+        return Err(Error::input("the band count must be at least 1"));
     }
     if let Some(w) = opts.window_ev {
         if !(w > 0.0) {
-            return Err(Error::input("--window must be a positive energy in eV"));
+            return Err(Error::input(
+                "the upper end of the energy window must be a positive energy in eV",
+            ));
+        }
+        if let Some(lo) = opts.window_min_ev {
+            if !(lo.is_finite() && lo < w) {
+                return Err(Error::input(
+                    "the lower end of the energy window must lie below its upper end",
+                ));
+            }
         }
     }
     let mut warnings = Vec::new();
@@ -145,11 +158,7 @@ pub fn predict_with(
         let s = (mol.multiplicity as f64 - 1.0) / 2.0;
         let exact = s * (s + 1.0);
         if wf.s2 - exact > 0.1 {
-            warnings.push(format!(
-                "the UHF reference is spin-contaminated (<S²> = {:.3}, exact {:.3}): IEs are less \
-                 reliable",
-                wf.s2, exact
-            ));
+            warnings.push(ValenceNotice::SpinContaminated { s2: wf.s2, exact });
         }
     }
 
@@ -181,7 +190,9 @@ pub fn predict_with(
     }
 
     let s: Mat<f64> = crate::integrals::overlap(basis);
-    let notes = Annotator::new(mol, basis, wf, &s, &mut warnings);
+    let mut analysis_warnings = Vec::new();
+    let notes = Annotator::new(mol, basis, wf, &s, &mut analysis_warnings);
+    warnings.extend(analysis_warnings.into_iter().map(ValenceNotice::Analysis));
     let sets = group_degenerate(
         &valence,
         |spin, i| notes.set_key(spin, i),
@@ -194,6 +205,11 @@ pub fn predict_with(
         candidates.retain(|s| ev(s.koopmans_ie()) <= w + WINDOW_MARGIN_EV);
         if opts.method == Method::Koopmans {
             candidates.retain(|s| ev(s.koopmans_ie()) <= w);
+        }
+        if let Some(lo) = opts.window_min_ev {
+            // correlated methods move IEs by a few eV either way of Koopmans'
+            let margin = if opts.method == Method::Koopmans { 0.0 } else { WINDOW_MARGIN_EV };
+            candidates.retain(|s| ev(s.koopmans_ie()) >= lo - margin);
         }
     }
     if let Some(c) = opts.count {
@@ -235,6 +251,9 @@ pub fn predict_with(
     rows.sort_by(|a, b| a.0.ie_ev.total_cmp(&b.0.ie_ev));
     if let Some(w) = opts.window_ev {
         rows.retain(|r| r.0.ie_ev <= w);
+        if let Some(lo) = opts.window_min_ev {
+            rows.retain(|r| r.0.ie_ev >= lo);
+        }
     }
     if let Some(c) = opts.count {
         rows.truncate(c);
@@ -244,11 +263,10 @@ pub fn predict_with(
     for b in &bands {
         if let Some(p) = b.pole_strength {
             if p < LOW_POLE_STRENGTH {
-                warnings.push(format!(
-                    "{}: pole strength {p:.2} — the one-hole picture is breaking down here \
-                     (satellites share the intensity; expect a larger error)",
-                    b.label
-                ));
+                warnings.push(ValenceNotice::LowPoleStrength {
+                    band: b.label.clone(),
+                    pole_strength: p,
+                });
             }
         }
     }
@@ -285,8 +303,8 @@ fn method_energies(
     sets: &[OrbitalSet],
     opts: &ValenceOptions,
     n_core: usize,
-    notes: &mut Vec<String>,
-    warnings: &mut Vec<String>,
+    notes: &mut Vec<ValenceNotice>,
+    warnings: &mut Vec<ValenceNotice>,
 ) -> Result<Vec<Option<BandEnergy>>> {
     let all = |v: Vec<BandEnergy>| v.into_iter().map(Some).collect();
     match opts.method {
@@ -321,20 +339,16 @@ fn method_energies(
             let res = dscf(mol, basis, wf, s, &holes, &opts.scf)?;
             for (set, h) in sets.iter().zip(&res) {
                 if h.hole_moved {
-                    warnings.push(format!(
-                        "ΔSCF for MO {}: the hole moved to another orbital (only {:.0} % of the \
-                         target orbital is empty in the cation); that band's IE belongs to a \
-                         different cation state",
-                        set.representative() + 1,
-                        100.0 * h.hole_overlap
-                    ));
+                    warnings.push(ValenceNotice::HoleMoved {
+                        mo: set.representative() + 1,
+                        percent: 100.0 * h.hole_overlap,
+                    });
                 }
                 if h.ie <= 0.0 {
-                    warnings.push(format!(
-                        "ΔSCF for MO {}: the cation lies below the neutral ({:.2} eV)",
-                        set.representative() + 1,
-                        ev(h.ie)
-                    ));
+                    warnings.push(ValenceNotice::CationBelowNeutral {
+                        mo: set.representative() + 1,
+                        ie_ev: ev(h.ie),
+                    });
                 }
             }
             Ok(all(res
@@ -365,8 +379,8 @@ fn method_energies(
                 Some(opts.memory_bytes as f64),
                 &opts.eom_integrals,
             )?;
-            notes.extend(run_notes);
-            warnings.extend(run_warnings);
+            notes.extend(run_notes.into_iter().map(ValenceNotice::MethodNote));
+            warnings.extend(run_warnings.into_iter().map(ValenceNotice::MethodWarning));
             Ok(res
                 .into_iter()
                 .map(|r| {

@@ -64,7 +64,7 @@ fn predict_valence(req: &Request) -> Result<Prediction> {
         ..ValenceOptions::default()
     };
     let r = valence::predict(mol, req.basis, &opts)?;
-    let mut notes: Vec<Notice> = r.notes.into_iter().map(Notice::MethodNote).collect();
+    let mut notes: Vec<Notice> = r.notes.iter().map(|n| Notice::MethodNote(n.to_string())).collect();
     if defaulted {
         notes.push(Notice::DefaultMethodChosen {
             method: method.name().into(),
@@ -80,7 +80,7 @@ fn predict_valence(req: &Request) -> Result<Prediction> {
         n_basis: req.basis.n_basis,
         bands: r.bands,
         notes,
-        warnings: r.warnings.into_iter().map(Notice::MethodWarning).collect(),
+        warnings: r.warnings.iter().map(|w| Notice::MethodWarning(w.to_string())).collect(),
     })
 }
 

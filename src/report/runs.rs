@@ -1,9 +1,10 @@
-//! What the printers of `spectrum` and `assign` are given: the plain result plus how it was
-//! asked for (method, basis, inputs), with the titles every format shares.
+//! What the printers of `spectrum`, `assign` and `scf` are given: the plain result plus how
+//! it was asked for (method, basis, inputs), with the titles every format shares.
 
 use serde::Serialize;
 
 use crate::ionization::Region;
+use crate::scf::{Reference, Wavefunction};
 use crate::spectrum::assignment::Assignment;
 use crate::spectrum::build::Spectrum;
 use crate::spectrum::photon::{Axis, Photon};
@@ -82,4 +83,43 @@ pub fn region_name(r: Region) -> &'static str {
         Region::Valence => "valence",
         Region::Core => "core",
     }
+}
+
+/// What `bandcast scf` prints besides the wavefunction: the basis and how the Fock
+/// matrices were built.
+pub struct ScfRun {
+    pub basis_name: String,
+    pub harmonics: &'static str,
+    pub n_dropped: usize,
+    pub smallest_kept: f64,
+    pub builder: String,
+    pub density_fitted: bool,
+    pub df_start: Option<crate::scf::context::DfStartRecord>,
+    pub jk_fitting: String,
+}
+
+/// (spin label, energies, occupations) per channel as printed.
+pub fn scf_channels(wf: &Wavefunction) -> Vec<(&'static str, &[f64], Vec<f64>)> {
+    match wf.reference {
+        Reference::Rhf => vec![(
+            "restricted",
+            &wf.eps_alpha[..],
+            wf.occ_alpha.iter().map(|o| 2.0 * o).collect(),
+        )],
+        _ => vec![
+            ("alpha", &wf.eps_alpha[..], wf.occ_alpha.clone()),
+            ("beta", &wf.eps_beta[..], wf.occ_beta.clone()),
+        ],
+    }
+}
+
+/// Dipole moment in debye: x, y, z and the length.
+pub fn dipole_debye(wf: &Wavefunction) -> [f64; 4] {
+    let d = wf.dipole.map(|v| v * crate::units::AU_TO_DEBYE);
+    [
+        d[0],
+        d[1],
+        d[2],
+        (d[0] * d[0] + d[1] * d[1] + d[2] * d[2]).sqrt(),
+    ]
 }

@@ -1,10 +1,13 @@
-//! Text printers of `spectrum` and `assign` (the tables on stdout).
+//! Text printers of `spectrum`, `assign`, `ionize` and `core` (the tables on stdout).
 
 use std::fmt::Write;
 use std::path::Path;
 
 use super::html::tidy;
+use super::json::{reference_name, GUIDANCE};
 use super::runs::{region_name, AssignRun, SpectrumRun};
+use crate::core_level::{CoreResult, CoreTimings};
+use crate::ionization::valence::ValenceResult;
 use crate::spectrum::note::Note;
 use crate::spectrum::predicted::Stick;
 
@@ -158,4 +161,232 @@ pub fn assignment_table(run: &AssignRun, hint: NoteHint) -> String {
     note_lines(&mut o, &cmp.notes, hint);
     o.push_str("Predictions guide a measurement; they do not replace it.\n");
     o
+}
+
+/// The `bandcast ionize` table: title, reference, bands (? where the order is in doubt),
+/// the doubtful pairs, notes and warnings, and the guidance sentence.
+pub fn ionize_table(r: &ValenceResult, molecule: &str) -> String {
+    let mut s = String::new();
+    let _ = writeln!(
+        s,
+        "{molecule}: valence ionization by {} in {}{}",
+        r.method,
+        r.basis,
+        r.point_group
+            .as_ref()
+            .map(|g| format!(", point group {g}"))
+            .unwrap_or_default()
+    );
+    let _ = writeln!(
+        s,
+        "reference {} energy {:.8} Eh",
+        reference_name(r.reference).to_uppercase(),
+        r.reference_energy
+    );
+    let _ = writeln!(s);
+    let _ = writeln!(
+        s,
+        "  {:<8} {:>8} {:>4} {:>6} {:>8}  {:<12} make-up",
+        "band", "IE (eV)", "deg", "weight", "Koopmans", "character"
+    );
+    for (k, b) in r.bands.iter().enumerate() {
+        let flag = if r
+            .uncertain_pairs
+            .iter()
+            .any(|p| p.first == k || p.second == k)
+        {
+            " ?"
+        } else {
+            ""
+        };
+        let pole = b
+            .pole_strength
+            .or(b.one_hole_weight)
+            .map(|p| format!("{p:.3}"))
+            .unwrap_or_else(|| "-".into());
+        let makeup: Vec<String> = b
+            .makeup
+            .iter()
+            .filter(|m| m.fraction >= 0.05)
+            .take(4)
+            .map(|m| format!("{} {} {:.0}%", m.atom, m.shell, 100.0 * m.fraction))
+            .collect();
+        let _ = writeln!(
+            s,
+            "  {:<8} {:>8.3} {:>4} {:>6} {:>8.3}  {:<12} {}{}",
+            b.label,
+            b.ie_ev,
+            b.degeneracy,
+            pole,
+            r.koopmans_ev[k],
+            b.character.as_deref().unwrap_or("-"),
+            if makeup.is_empty() {
+                "-".to_string()
+            } else {
+                makeup.join(", ")
+            },
+            flag
+        );
+        if let Some(note) = &b.character_note {
+            let _ = writeln!(
+                s,
+                "  {:<8} {:>8} {:>4} {:>6} {:>8}  ↳ {note}",
+                "", "", "", "", ""
+            );
+        }
+    }
+    if !r.uncertain_pairs.is_empty() {
+        let _ = writeln!(s);
+        let _ = writeln!(s, "order uncertain (marked ?):");
+        for p in &r.uncertain_pairs {
+            let _ = writeln!(s, "  {} / {}: {}", p.labels[0], p.labels[1], p.reason);
+        }
+    }
+    if !r.notes.is_empty() || !r.warnings.is_empty() {
+        let _ = writeln!(s);
+        for n in &r.notes {
+            let _ = writeln!(s, "note: {n}");
+        }
+        for w in &r.warnings {
+            let _ = writeln!(s, "warning: {w}");
+        }
+    }
+    let _ = writeln!(s);
+    let _ = writeln!(s, "{GUIDANCE}");
+    s
+}
+
+fn opt(v: Option<f64>, width: usize, digits: usize) -> String {
+    match v {
+        // No "-0.00" for a shift that is zero to print precision.
+        Some(x) if x.abs() < 0.5 * 10f64.powi(-(digits as i32)) => {
+            format!("{:>width$.digits$}", 0.0)
+        }
+        Some(x) => format!("{x:>width$.digits$}"),
+        None => format!("{:>width$}", "–"),
+    }
+}
+
+/// The `bandcast core` table: title, reference energies, one line per core level, notes.
+pub fn core_table(r: &CoreResult) -> String {
+    let mut s = String::new();
+    s.push_str(&format!(
+        "Core levels of {} — {} basis, {} ({} functions)\n",
+        if r.molecule.is_empty() {
+            "molecule"
+        } else {
+            &r.molecule
+        },
+        r.basis,
+        r.core_basis,
+        r.n_basis
+    ));
+    match r.neutral_energy_hartree {
+        Some(e) => s.push_str(&format!("Neutral Hartree–Fock energy {e:.8} Eh\n")),
+        None => s.push_str(
+            "Neutral Hartree–Fock energy: one per hole (each hole's basis has the core \
+             flexibility on its own atom; see JSON)\n",
+        ),
+    }
+    for rf in &r.references {
+        s.push_str(&format!(
+            "Shift reference: {} 1s of {} (atom {}) at {:.2} eV\n",
+            rf.element, rf.molecule, rf.atom, rf.dscf_ev
+        ));
+    }
+    s.push('\n');
+    let has_mp2 = r.core_levels.iter().any(|l| l.dmp2_ev.is_some());
+    let has_rel = r
+        .core_levels
+        .iter()
+        .any(|l| l.relativistic_correction_ev.is_some());
+    s.push_str("level      Koopmans/eV  ΔSCF/eV");
+    if has_rel {
+        s.push_str("  rel./eV  ΔSCF+rel/eV");
+    }
+    if has_mp2 {
+        s.push_str("  ΔMP2/eV");
+    }
+    s.push_str("  shift/eV   ⟨S²⟩   hole  localised  kept start\n");
+    for l in &r.core_levels {
+        s.push_str(&format!(
+            "{:<10} {:>11.2} {:>8.2}",
+            l.label, l.koopmans_ev, l.dscf_ev
+        ));
+        if has_rel {
+            s.push_str(&format!(
+                " {} {}",
+                opt(l.relativistic_correction_ev, 8, 2),
+                opt(l.dscf_relativistic_ev, 12, 2)
+            ));
+        }
+        if has_mp2 {
+            s.push_str(&format!(" {}", opt(l.dmp2_ev, 8, 2)));
+        }
+        s.push_str(&format!(
+            " {}  {:>6.3}  {:>4.2}  {:<9}  {}\n",
+            opt(l.shift_ev, 8, 2),
+            l.s2,
+            l.hole_population,
+            if l.localised { "yes" } else { "no" },
+            l.start
+        ));
+    }
+    let mut notes: Vec<String> = r.notes.iter().map(|n| n.to_string()).collect();
+    for l in &r.core_levels {
+        for n in l.notes.iter() {
+            notes.push(format!("{}: {n}", l.label));
+        }
+        if let (Some(a), Some(b)) = (l.shift_ev, l.shift_dmp2_ev) {
+            notes.push(format!(
+                "{}: shift {a:.2} eV (ΔSCF), {b:.2} eV (ΔMP2)",
+                l.label
+            ));
+        }
+    }
+    notes.push(
+        "hole = Löwdin population of the final vacancy on the atom; predictions guide a \
+         measurement, they do not replace it"
+            .into(),
+    );
+    s.push('\n');
+    for n in notes {
+        s.push_str(&format!("note: {n}\n"));
+    }
+    s
+}
+
+fn secs(cpu: Option<f64>) -> String {
+    cpu.map(|c| format!("{c:.1}")).unwrap_or_else(|| "?".into())
+}
+
+/// Stage timings of a run, one line per stage (for `--verbose` and `bandcast bench core`).
+pub fn core_timings_text(t: &CoreTimings) -> String {
+    let mut s = format!(
+        "  total {:.2} s wall, {} CPU-s; Fock builds: {}\n",
+        t.total_s,
+        secs(t.total_cpu_s),
+        t.fock_builder
+    );
+    if t.shared_bytes > 0 {
+        s.push_str(&format!(
+            "  shared quartets (no shell on a hole atom): {:.2} s wall, {} CPU-s, {:.1} MiB\n",
+            t.shared_s,
+            secs(t.shared_cpu_s),
+            t.shared_bytes as f64 / (1u64 << 20) as f64
+        ));
+    }
+    for (kind, list) in [("neutral", &t.neutrals), ("hole", &t.holes)] {
+        for h in list {
+            s.push_str(&format!(
+                "  {kind:<7} {:<12} {:>4} fn {:>8.2} s wall {:>8} CPU-s {:>4} iterations\n",
+                h.label,
+                h.n_basis,
+                h.seconds,
+                secs(h.cpu_seconds),
+                h.iterations
+            ));
+        }
+    }
+    s
 }

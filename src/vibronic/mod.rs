@@ -12,12 +12,12 @@
 //! - `progression`: lines class by class with prescreening and bounded memory;
 //! - `summary`: strongest line, progression-forming modes, vertical vs adiabatic, envelope;
 //! - `linear_coupling`: the vertical-gradient model (J = 1, ω′ = ω);
-//! - `notes`: typed notes; `bench`: the seeded workload of `bandcast bench franck-condon`.
+//! - `notes`: typed notes. (The seeded workload of `bandcast bench franck-condon` is
+//!   `crate::bench::franck_condon`.)
 //!
 //! No I/O; hartree and bohr throughout (eV and cm⁻¹ at the edges).
 
 pub mod align;
-pub mod bench;
 pub mod duschinsky;
 pub mod linear_coupling;
 pub mod notes;

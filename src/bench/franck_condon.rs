@@ -11,8 +11,8 @@
 
 use std::time::Instant;
 
-use super::duschinsky::Duschinsky;
-use super::progression::{progression, FcOptions};
+use crate::vibronic::duschinsky::Duschinsky;
+use crate::vibronic::progression::{progression, FcOptions};
 use crate::Result;
 
 /// splitmix64: a small deterministic generator (Steele, Lea & Flood, OOPSLA 2014).

@@ -1,0 +1,112 @@
+//! Notes and warnings of a valence prediction as typed values: a stable `code` for programs
+//! and a `message` for people (the `Display` text). None of them names a command-line option.
+
+use std::fmt;
+
+use serde::ser::SerializeStruct;
+use serde::{Serialize, Serializer};
+
+use crate::ionization::default_method::{DefaultChoice, SkipReason};
+use crate::ionization::method::Method;
+
+#[derive(Debug, Clone, PartialEq)]
+pub enum ValenceNotice {
+    /// The UHF reference's ⟨S²⟩ exceeds the exact value by more than 0.1 (warning).
+    SpinContaminated { s2: f64, exact: f64 },
+    /// A note of the orbital analysis (labels, make-up), in its own words (warning).
+    Analysis(String),
+    /// A note of the method stage that ran (integrals, frozen core, correlation energies).
+    MethodNote(String),
+    /// A warning of the method stage that ran (an unconverged root, …), in its own words.
+    MethodWarning(String),
+    /// ΔSCF: the hole of MO `mo` (1-based) moved; only `percent` % of it is empty (warning).
+    HoleMoved { mo: usize, percent: f64 },
+    /// ΔSCF: the cation of MO `mo` (1-based) lies below the neutral by `ie_ev` ≤ 0 (warning).
+    CationBelowNeutral { mo: usize, ie_ev: f64 },
+    /// A band's pole strength is below `ionization::valence::LOW_POLE_STRENGTH` (warning).
+    LowPoleStrength { band: String, pole_strength: f64 },
+    /// The default rule chose the method (note).
+    DefaultMethodChosen(DefaultChoice),
+    /// The default chain tried `method`, which failed, and went on to the next (warning).
+    DefaultFellBack { method: Method, reason: SkipReason },
+}
+
+impl ValenceNotice {
+    /// Stable identifier for programs reading the JSON.
+    pub fn code(&self) -> &'static str {
+        match self {
+            ValenceNotice::SpinContaminated { .. } => "spin_contaminated",
+            ValenceNotice::Analysis(_) => "analysis",
+            ValenceNotice::MethodNote(_) => "method_note",
+            ValenceNotice::MethodWarning(_) => "method_warning",
+            ValenceNotice::HoleMoved { .. } => "hole_moved",
+            ValenceNotice::CationBelowNeutral { .. } => "cation_below_neutral",
+            ValenceNotice::LowPoleStrength { .. } => "low_pole_strength",
+            ValenceNotice::DefaultMethodChosen(_) => "default_method_chosen",
+            ValenceNotice::DefaultFellBack { .. } => "default_method_fell_back",
+        }
+    }
+}
+
+impl fmt::Display for ValenceNotice {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            ValenceNotice::SpinContaminated { s2, exact } => write!(
+                f,
+                "the UHF reference is spin-contaminated (<S²> = {s2:.3}, exact {exact:.3}): IEs \
+                 are less reliable"
+            ),
+            ValenceNotice::Analysis(m)
+            | ValenceNotice::MethodNote(m)
+            | ValenceNotice::MethodWarning(m) => f.write_str(m),
+            ValenceNotice::HoleMoved { mo, percent } => write!(
+                f,
+                "ΔSCF for MO {mo}: the hole moved to another orbital (only {percent:.0} % of the \
+                 target orbital is empty in the cation); that band's IE belongs to a different \
+                 cation state"
+            ),
+            ValenceNotice::CationBelowNeutral { mo, ie_ev } => write!(
+                f,
+                "ΔSCF for MO {mo}: the cation lies below the neutral ({ie_ev:.2} eV)"
+            ),
+            ValenceNotice::LowPoleStrength {
+                band,
+                pole_strength,
+            } => write!(
+                f,
+                "{band}: pole strength {pole_strength:.2} — the one-hole picture is breaking \
+                 down here (satellites share the intensity; expect a larger error)"
+            ),
+            ValenceNotice::DefaultMethodChosen(choice) => write!(f, "{choice}"),
+            ValenceNotice::DefaultFellBack { method, reason } => {
+                write!(f, "the default method fell back from {method}: {reason}")
+            }
+        }
+    }
+}
+
+impl Serialize for ValenceNotice {
+    fn serialize<S: Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        let mut st = s.serialize_struct("ValenceNotice", 2)?;
+        st.serialize_field("code", self.code())?;
+        st.serialize_field("message", &self.to_string())?;
+        st.end()
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// Regression test: the JSON form carries the stable code beside the printed message.
+    #[test]
+    fn regression_serialises_code_and_message() {
+        let n = ValenceNotice::CationBelowNeutral { mo: 3, ie_ev: -0.5 };
+        let v = serde_json::to_value(&n).unwrap();
+        assert_eq!(v["code"], "cation_below_neutral");
+        assert_eq!(
+            v["message"],
+            "ΔSCF for MO 3: the cation lies below the neutral (-0.50 eV)"
+        );
+    }
+}
