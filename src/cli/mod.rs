@@ -12,4 +12,5 @@ pub mod optimize;
 pub mod scf;
 pub mod spectrum;
 pub mod vibrations;
+pub mod vibronic;
 pub mod vibronic_bench;
