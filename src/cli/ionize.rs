@@ -51,11 +51,24 @@ pub struct Args {
     /// each stage.
     #[arg(long)]
     pub verbose: bool,
+    // --- vibronic bands (cli/vibronic.rs) ---
+    /// Vibrational structure of the --count (default 3) lowest bands: optimise the neutral
+    /// and each cation (hole held by the maximum overlap method), both harmonic analyses,
+    /// Franck–Condon progression with Duschinsky rotation; adiabatic, vertical and maximum
+    /// positions (HF ΔSCF energies) and the progression-forming modes.
+    #[arg(long, conflicts_with_all = ["method", "window", "integrals", "correlate_core"])]
+    pub vibronic: bool,
+    // --- end vibronic ---
 }
 
 pub fn run(args: Args) -> Result<()> {
     let started = std::time::Instant::now();
     let mol = args.molecule.load()?;
+    // --- vibronic bands (cli/vibronic.rs) ---
+    if args.vibronic {
+        return super::vibronic::ionize(&mol, &args.molecule.file, &args.basis, args.count, args.json);
+    }
+    // --- end vibronic ---
     const GIB: f64 = (1u64 << 30) as f64;
     let memory_bytes = match args.memory {
         Some(gib) if !(gib > 0.0) => {

@@ -15,6 +15,7 @@ pub mod output;
 pub mod scf;
 pub mod spectrum;
 pub mod vibrations;
+pub mod vibronic;
 
 use clap::{Parser, Subcommand};
 

@@ -64,6 +64,16 @@ pub struct Args {
     /// Print bands and curve as JSON on stdout.
     #[arg(long)]
     pub json: bool,
+    // --- vibronic bands (cli/vibronic.rs) ---
+    /// Draw the lowest bands (--vibronic-count, default 3) as broadened vibronic stick
+    /// spectra (harmonic Franck–Condon with Duschinsky rotation, HF ΔSCF positions); default
+    /// --fwhm 0.03 eV, a good He I spectrometer's resolution (common practice). One molecule.
+    #[arg(long)]
+    pub vibronic: bool,
+    /// Number of bands with --vibronic.
+    #[arg(long, value_name = "N", requires = "vibronic")]
+    pub vibronic_count: Option<usize>,
+    // --- end vibronic ---
 }
 
 fn parse_shape(s: &str) -> std::result::Result<Shape, String> {
@@ -91,6 +101,27 @@ pub fn run(args: Args) -> Result<()> {
     check_output_dir(args.csv.as_deref())?;
     args.predict.check()?;
     let inputs = parse_inputs(&args.files)?;
+    // --- vibronic bands (cli/vibronic.rs) ---
+    if args.vibronic {
+        if inputs.len() != 1 {
+            return Err(bandcast::Error::input(
+                "--vibronic draws one molecule: give one file",
+            ));
+        }
+        let mol = args.state.load(&inputs[0].path)?;
+        return super::vibronic::spectrum(
+            &mol,
+            &inputs[0].path,
+            &args.predict.basis,
+            args.vibronic_count,
+            fwhm,
+            args.window,
+            args.svg.as_deref(),
+            args.csv.as_deref(),
+            args.json,
+        );
+    }
+    // --- end vibronic ---
     let mut predictions = Vec::new();
     let mut infos = Vec::new();
     for inp in &inputs {

@@ -10,5 +10,6 @@ pub mod json;
 pub mod runs;
 pub mod svg;
 pub mod text;
+pub mod vibronic;
 
 pub use atomic_write::write_atomic;

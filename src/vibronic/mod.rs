@@ -12,12 +12,16 @@
 //! - `progression`: lines class by class with prescreening and bounded memory;
 //! - `summary`: strongest line, progression-forming modes, vertical vs adiabatic, envelope;
 //! - `linear_coupling`: the vertical-gradient model (J = 1, ω′ = ω);
+//! - `band`: the pipeline from a molecule to its bands (optimise, Hessians, progression);
+//! - `composite`: correlated vertical energies + HF relaxation for the band positions;
 //! - `notes`: typed notes. (The seeded workload of `bandcast bench franck-condon` is
 //!   `crate::bench::franck_condon`.)
 //!
 //! No I/O; hartree and bohr throughout (eV and cm⁻¹ at the edges).
 
 pub mod align;
+pub mod band;
+pub mod composite;
 pub mod duschinsky;
 pub mod linear_coupling;
 pub mod notes;
