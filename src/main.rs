@@ -65,6 +65,7 @@ fn main() {
             .num_threads(n)
             .build_global();
     }
+    let json = cli.command.wants_json();
     let result = match cli.command {
         Command::Scf(a) => cli::scf::run(a),
         Command::Ionize(a) => cli::ionize::run(a),
@@ -78,7 +79,33 @@ fn main() {
         Command::Batch(a) => cli::batch::run(a),
     };
     if let Err(e) = result {
-        eprintln!("error: {e}");
-        std::process::exit(e.exit_code());
+        fail(&e, json);
     }
+}
+
+impl Command {
+    /// Whether the subcommand was asked for JSON output (`--json`).
+    fn wants_json(&self) -> bool {
+        match self {
+            Command::Scf(a) => a.json,
+            Command::Ionize(a) => a.json,
+            Command::Core(a) => a.json,
+            Command::Spectrum(a) => a.json,
+            Command::Assign(a) => a.json,
+            Command::Optimize(a) => a.json,
+            Command::Vibrations(a) => a.json,
+            Command::Batch(a) => a.json,
+            Command::Basis(_) | Command::Bench(_) => false,
+        }
+    }
+}
+
+/// Report a failure: the message on stderr, and with `--json` also one JSON object on stdout;
+/// then exit with the error's code.
+fn fail(err: &bandcast::Error, json: bool) -> ! {
+    eprintln!("error: {err}");
+    if json {
+        println!("{}", err.to_json());
+    }
+    std::process::exit(err.exit_code());
 }
