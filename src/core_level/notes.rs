@@ -105,12 +105,19 @@ impl fmt::Display for CoreNote {
             CoreNote::Symmetrised {
                 group,
                 max_displacement_angstrom,
-            } => write!(
-                f,
-                "the structure is {group} within the symmetry tolerance; its atoms were moved \
-                 onto exact {group} positions (largest displacement {max_displacement_angstrom:.4} Å) \
-                 so that equivalent atoms get identical numbers"
-            ),
+            } => {
+                let d = if *max_displacement_angstrom >= 1e-3 {
+                    format!("{max_displacement_angstrom:.4}")
+                } else {
+                    format!("{max_displacement_angstrom:.1e}")
+                };
+                write!(
+                    f,
+                    "the structure is {group} within the symmetry tolerance; its atoms were \
+                     moved onto exact {group} positions (largest displacement {d} Å) so that \
+                     equivalent atoms get identical numbers"
+                )
+            }
             CoreNote::HolesLocalised => write!(
                 f,
                 "holes on atoms with symmetry-equivalent partners were localised on the chosen \
