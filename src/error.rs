@@ -52,6 +52,39 @@ impl Error {
     pub fn computation(message: impl Into<String>) -> Self {
         Error::Computation(message.into())
     }
+    /// Stable one-word kind for machine-readable failures: "input", "too_large", "computation".
+    pub fn kind(&self) -> &'static str {
+        match self {
+            Error::Input { .. } => "input",
+            Error::TooLarge(_) => "too_large",
+            Error::Computation(_) => "computation",
+        }
+    }
+    /// The file an input error is about, when known.
+    pub fn file(&self) -> Option<&std::path::Path> {
+        match self {
+            Error::Input { file, .. } => file.as_deref(),
+            _ => None,
+        }
+    }
+    /// The 1-based line an input error is about, when known.
+    pub fn line(&self) -> Option<usize> {
+        match self {
+            Error::Input { line, .. } => *line,
+            _ => None,
+        }
+    }
+    /// The failure as one JSON object (`error`, `kind`, `file`, `line`, `exit_code`), for
+    /// pipelines that read stdout of a `--json` run.
+    pub fn to_json(&self) -> serde_json::Value {
+        serde_json::json!({
+            "error": self.to_string(),
+            "kind": self.kind(),
+            "file": self.file().map(|f| f.display().to_string()),
+            "line": self.line(),
+            "exit_code": self.exit_code(),
+        })
+    }
     /// Process exit code for this error.
     pub fn exit_code(&self) -> i32 {
         match self {

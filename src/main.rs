@@ -16,8 +16,18 @@ fn main() {
             .num_threads(n)
             .build_global();
     }
+    let json = cli.command.wants_json();
     if let Err(e) = cli::run(cli) {
-        eprintln!("error: {e}");
-        std::process::exit(e.exit_code());
+        fail(&e, json);
     }
+}
+
+/// Report a failure: the message on stderr, and with `--json` also one JSON object on stdout;
+/// then exit with the error's code.
+fn fail(err: &bandcast::Error, json: bool) -> ! {
+    eprintln!("error: {err}");
+    if json {
+        println!("{}", err.to_json());
+    }
+    std::process::exit(err.exit_code());
 }

@@ -71,6 +71,23 @@ pub enum Command {
     Batch(batch::Args),
 }
 
+impl Command {
+    /// Whether the subcommand was asked for JSON output (`--json`).
+    pub fn wants_json(&self) -> bool {
+        match self {
+            Command::Scf(a) => a.json,
+            Command::Ionize(a) => a.json,
+            Command::Core(a) => a.json,
+            Command::Spectrum(a) => a.json,
+            Command::Assign(a) => a.json,
+            Command::Optimize(a) => a.json,
+            Command::Vibrations(a) => a.json,
+            Command::Batch(a) => a.json,
+            Command::Basis(_) | Command::Bench(_) => false,
+        }
+    }
+}
+
 /// Run a parsed command line (threads already set by the caller).
 pub fn run(cli: Cli) -> Result<()> {
     match cli.command {

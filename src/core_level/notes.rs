@@ -27,6 +27,12 @@ pub enum CoreNote {
         computed: usize,
         levels: usize,
     },
+    /// The input was symmetric within the tolerance and its atoms were moved onto exactly
+    /// symmetric positions (largest displacement in Å).
+    Symmetrised {
+        group: String,
+        max_displacement_angstrom: f64,
+    },
     // --- about one level ---
     /// This level copies the numbers of an equivalent atom.
     EquivalentTo { atom: String, group: String },
@@ -62,6 +68,7 @@ impl CoreNote {
         match self {
             CoreNote::ReferenceLacksElement { .. } => "reference_lacks_element",
             CoreNote::HolesLocalised => "holes_localised",
+            CoreNote::Symmetrised { .. } => "symmetrised",
             CoreNote::RelativisticAdded { .. } => "relativistic_added",
             CoreNote::EquivalentComputedOnce { .. } => "equivalent_computed_once",
             CoreNote::EquivalentTo { .. } => "equivalent_to",
@@ -95,6 +102,22 @@ impl fmt::Display for CoreNote {
                 f,
                 "the reference molecule has no {element}: no shift for {level}"
             ),
+            CoreNote::Symmetrised {
+                group,
+                max_displacement_angstrom,
+            } => {
+                let d = if *max_displacement_angstrom >= 1e-3 {
+                    format!("{max_displacement_angstrom:.4}")
+                } else {
+                    format!("{max_displacement_angstrom:.1e}")
+                };
+                write!(
+                    f,
+                    "the structure is {group} within the symmetry tolerance; its atoms were \
+                     moved onto exact {group} positions (largest displacement {d} Å) so that \
+                     equivalent atoms get identical numbers"
+                )
+            }
             CoreNote::HolesLocalised => write!(
                 f,
                 "holes on atoms with symmetry-equivalent partners were localised on the chosen \
@@ -238,6 +261,10 @@ mod tests {
                 level: "C1 1s".into(),
             },
             CoreNote::HolesLocalised,
+            CoreNote::Symmetrised {
+                group: "C2v".into(),
+                max_displacement_angstrom: 0.01,
+            },
             CoreNote::RelativisticAdded { source: "x".into() },
             CoreNote::EquivalentComputedOnce {
                 group: "C2v".into(),

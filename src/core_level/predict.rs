@@ -30,6 +30,9 @@ pub fn predict(mol: &Molecule, basis: &BasisSet, opts: &CoreOptions) -> Result<C
     predict_with_progress(mol, basis, opts, &|_, _| {})
 }
 
+/// Displacements below this (bohr) are rounding in the input: no note.
+const SYMMETRISED_NOTE_BOHR: f64 = 1e-6;
+
 /// As `predict`, calling `progress(done, total)` after each finished hole.
 pub fn predict_with_progress(
     mol: &Molecule,
@@ -37,7 +40,28 @@ pub fn predict_with_progress(
     opts: &CoreOptions,
     progress: &(dyn Fn(usize, usize) + Sync),
 ) -> Result<CoreResult> {
+    use crate::analysis::symmetry::{symmetrize, DEFAULT_TOLERANCE};
+    // Exactly symmetric positions first, so equivalent atoms are computed once.
+    let (symmetric, displacement, group) = symmetrize(mol, DEFAULT_TOLERANCE);
+    let moved = displacement > SYMMETRISED_NOTE_BOHR;
+    let mol = &symmetric;
+    let moved_basis;
+    let basis = if moved {
+        // the same functions on the moved atoms
+        let mut b = basis.clone();
+        for sh in &mut b.shells {
+            sh.center = mol.atoms[sh.atom].position;
+        }
+        moved_basis = b;
+        &moved_basis
+    } else {
+        basis
+    };
     let plan = plan(mol, opts)?;
+    if opts.mp2 {
+        // before the neutral SCF: refuse a transformation that cannot fit
+        crate::correlation::mp2::delta_mp2_preflight(basis, mol.n_electrons())?;
+    }
     let t_start = std::time::Instant::now();
     let cpu_start = cpu_seconds();
     let mut timings = CoreTimings::default();
@@ -47,6 +71,12 @@ pub fn predict_with_progress(
     timings.total_cpu_s = cpu_diff(cpu_start);
 
     let mut notes = Notes::default();
+    if moved {
+        notes.push(CoreNote::Symmetrised {
+            group: group.name.clone(),
+            max_displacement_angstrom: displacement * crate::units::BOHR_TO_ANGSTROM,
+        });
+    }
     let references = shift_references(mol, opts, &plan, &mut levels, &mut notes)?;
     apply_shifts(&mut levels, &references);
     note_localised(&levels, &mut notes);

@@ -290,14 +290,14 @@ pub fn ionize_report(
     )?;
     log(&format!(
         "{}: {} basis functions, {} frozen core, {} correlated occupied, {} virtual; \
-         memory estimate {:.2} GiB of {:.2} GiB",
+         memory estimate {} of {}",
         opts.method.name(),
         n,
         n_frozen,
         o,
         v,
-        plan.peak_bytes / 1073741824.0,
-        budget / 1073741824.0
+        crate::system::format_bytes(plan.peak_bytes),
+        crate::system::format_bytes(budget)
     ));
     // Roots.
     let targets: Option<Vec<usize>> = match &opts.roots {

@@ -59,7 +59,7 @@ pub fn expected_cholesky_vectors(n: usize, tau: f64) -> usize {
 }
 
 fn gib(b: f64) -> String {
-    format!("{:.2} GiB", b / (1024.0 * 1024.0 * 1024.0))
+    crate::system::format_bytes(b)
 }
 
 /// Largest (ov|vv) slice the passes over it hold at once (words).

@@ -62,6 +62,30 @@ pub fn mp2(ints: &MoIntegrals) -> (f64, Tensor) {
 /// Memory the (ia|jb) blocks and the transformation may use (bytes).
 pub const MP2_MEMORY_BYTES: usize = 2 << 30;
 
+/// The MO-transform memory of ΔMP2 on `mol` in `basis`, estimated before any SCF from the
+/// orbital counts (the peak is the cation's UMP2: three (ia|jb) blocks, all electrons
+/// correlated). Refuses with `Error::TooLarge` over `MP2_MEMORY_BYTES`, naming the cheaper
+/// option; returns the estimate (bytes) otherwise.
+pub fn delta_mp2_preflight(basis: &BasisSet, n_electrons: usize) -> Result<usize> {
+    use crate::integrals::mo_transform::{estimate_bytes_for, max_shell_functions};
+    let n = basis.n_basis;
+    // the cation of a closed shell: n/2 alpha and n/2 − 1 beta occupied (the larger side)
+    let oa = n_electrons.div_ceil(2).min(n);
+    let ob = (n_electrons / 2).saturating_sub(1).min(n);
+    let (va, vb) = (n - oa, n - ob);
+    let dims = [[oa, va, oa, va], [ob, vb, ob, vb], [oa, va, ob, vb]];
+    let need = estimate_bytes_for(n, max_shell_functions(basis), &dims, rayon::current_num_threads());
+    if need > MP2_MEMORY_BYTES {
+        return Err(Error::TooLarge(format!(
+            "ΔMP2 needs about {} for the MO integral transformation ({n} basis functions), over \
+             its budget of {}; use --method dscf or a smaller basis",
+            crate::system::format_bytes(need as f64),
+            crate::system::format_bytes(MP2_MEMORY_BYTES as f64)
+        )));
+    }
+    Ok(need)
+}
+
 /// Smallest |denominator| (hartree) accepted; smaller ones make the energy meaningless.
 const MIN_DENOMINATOR: f64 = 1e-4;
 

@@ -112,7 +112,7 @@ impl Plan {
 }
 
 /// Largest number of functions in any shell of the basis.
-fn max_shell_functions(basis: &BasisSet) -> usize {
+pub fn max_shell_functions(basis: &BasisSet) -> usize {
     basis
         .shells
         .iter()
@@ -163,10 +163,10 @@ pub fn check_budget(basis: &BasisSet, blocks: &[BlockSpec<'_>], budget_bytes: us
     let need = estimate_bytes(basis, blocks);
     if need > budget_bytes {
         return Err(Error::TooLarge(format!(
-            "the MO integral transformation needs about {:.2} GB but the memory budget is {:.2} GB \
+            "the MO integral transformation needs about {} but the memory budget is {} \
              (raise the budget, choose fewer orbitals, or a smaller basis set)",
-            need as f64 / 1e9,
-            budget_bytes as f64 / 1e9
+            crate::system::format_bytes(need as f64),
+            crate::system::format_bytes(budget_bytes as f64)
         )));
     }
     Ok(())

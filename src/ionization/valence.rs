@@ -120,6 +120,8 @@ pub fn predict(mol: &Molecule, basis: &BasisSet, opts: &ValenceOptions) -> Resul
     } else {
         Reference::Uhf
     };
+    scf.memory_budget_bytes = scf.memory_budget_bytes.min(opts.memory_bytes);
+    memory_preflight(mol, basis, opts, &scf)?;
     let wf = crate::scf::run(mol, basis, &scf)?;
     predict_with(mol, basis, &wf, opts)
 }
@@ -393,4 +395,78 @@ fn method_energies(
                 .collect())
         }
     }
+}
+
+/// The memory estimates of the stages of a valence prediction, made from the molecule and
+/// basis before any integral is computed: the SCF floor (direct Fock build), then for
+/// EOM-IP the correlated plan (`correlation::memory::plan`, with the frozen-core space
+/// unless the core is correlated). Refuses with `Error::TooLarge` naming the cheaper option
+/// when a stage cannot fit; returns (stage, bytes) estimates otherwise.
+pub fn memory_preflight(
+    mol: &Molecule,
+    basis: &BasisSet,
+    opts: &ValenceOptions,
+    scf: &ScfOptions,
+) -> Result<Vec<(&'static str, f64)>> {
+    use crate::correlation::memory::{self, FactorRoute, Stage};
+    use crate::correlation::two_electron::TwoElectron;
+    let mut out = vec![("scf", crate::scf::memory::check(basis.n_basis, scf)?)];
+    let nocc = mol.n_electrons() / 2;
+    if opts.method == Method::Ep2 && mol.multiplicity == 1 && basis.n_basis > nocc {
+        // one target orbital: the least the EP2 transformation can need
+        use crate::integrals::mo_transform::{estimate_bytes_for, max_shell_functions};
+        let no = if opts.frozen_core {
+            nocc - core_orbitals(mol).min(nocc)
+        } else {
+            nocc
+        };
+        let nv = basis.n_basis - nocc;
+        let need = estimate_bytes_for(
+            basis.n_basis,
+            max_shell_functions(basis),
+            &[[1, nv, no, nv], [1, no, nv, no]],
+            rayon::current_num_threads(),
+        );
+        if need > opts.memory_bytes {
+            return Err(Error::TooLarge(format!(
+                "EP2 needs at least {} for its MO integral transformation ({} basis functions), \
+                 over the memory budget of {}; use --method koopmans or dscf, or a smaller basis",
+                crate::system::format_bytes(need as f64),
+                basis.n_basis,
+                crate::system::format_bytes(opts.memory_bytes as f64)
+            )));
+        }
+        out.push(("ep2", need as f64));
+        return Ok(out);
+    }
+    let stage = match opts.method {
+        Method::EomCcsd => Stage::EomCcsd,
+        Method::EomMp2 => Stage::EomMbpt2,
+        _ => return Ok(out),
+    };
+    // Open shells and bases without virtual orbitals are refused by the method itself.
+    if mol.multiplicity != 1 || basis.n_basis <= nocc {
+        return Ok(out);
+    }
+    let (ncorr, nvir, route) = crate::ionization::default_method::correlated_space(mol, basis);
+    let ncorr = if opts.frozen_core { ncorr } else { nocc };
+    let route = match opts.eom_integrals {
+        TwoElectron::Cholesky => {
+            FactorRoute::Cholesky(memory::expected_cholesky_vectors(basis.n_basis, 1e-5))
+        }
+        _ => route,
+    };
+    // 8 DIIS vectors and a 60-vector Davidson space: the EOM code's defaults.
+    let plan = memory::plan(
+        stage,
+        basis.n_basis,
+        ncorr,
+        nvir,
+        route,
+        8,
+        60,
+        opts.memory_bytes as f64,
+    )?;
+    out.push((opts.method.name(), plan.peak_bytes));
+    Ok(out)
 }

@@ -221,6 +221,7 @@ fn timed<T>(rec: &mut RunRecord, f: impl FnOnce() -> T) -> T {
 
 /// SCF on `mol` in `basis` (see `ScfOptions` for what can be asked).
 pub fn run(mol: &Molecule, basis: &BasisSet, opts: &ScfOptions) -> Result<Wavefunction> {
+    super::memory::check(basis.n_basis, opts)?;
     ScfContext::new(mol, basis, opts.lindep_threshold)?.run(mol, opts, &mut |_| {})
 }
 
@@ -231,6 +232,7 @@ pub fn run_logged(
     opts: &ScfOptions,
     log: &mut dyn FnMut(&IterationInfo),
 ) -> Result<Wavefunction> {
+    super::memory::check(basis.n_basis, opts)?;
     ScfContext::new(mol, basis, opts.lindep_threshold)?.run(mol, opts, log)
 }
 
@@ -345,6 +347,7 @@ impl ScfContext {
                 "the molecule's nuclei differ from those the SCF integrals were built for",
             ));
         }
+        super::memory::check(self.basis.n_basis, opts)?;
         let (n_alpha, n_beta) = electron_counts(mol, opts)?;
         let m = self.ortho.n_independent();
         if n_alpha.max(n_beta) > m {

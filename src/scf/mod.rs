@@ -12,6 +12,7 @@ pub mod df_start;
 pub mod diis;
 pub mod driver;
 pub mod fock;
+pub mod memory;
 pub mod guess;
 pub mod occupation;
 pub mod options;

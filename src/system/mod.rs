@@ -2,9 +2,11 @@
 //! default memory budget. Measurement only: nothing here changes a computed number, except
 //! that the memory budget decides how integrals are stored and which default method runs.
 pub mod available_memory;
+pub mod bytes;
 pub mod cpu_time;
 pub mod peak_memory;
 
 pub use available_memory::{available_bytes, default_memory_budget};
+pub use bytes::format_bytes;
 pub use cpu_time::{process_cpu_seconds, thread_cpu_seconds};
 pub use peak_memory::{peak_memory_mib, reset_peak_memory, resident_memory_mib};

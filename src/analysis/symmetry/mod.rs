@@ -16,6 +16,7 @@ pub mod labels;
 pub mod ops;
 pub mod orient;
 pub mod subgroup;
+pub mod symmetrize;
 pub mod tables;
 
 pub use ao_action::{ao_actions, AoAction};
@@ -23,6 +24,7 @@ pub use detect::{detect_point_group, DEFAULT_TOLERANCE};
 pub use group::{PointGroup, SymOp};
 pub use labels::{degenerate_sets, label_orbitals, OrbitalLabel};
 pub use orient::Frame;
+pub use symmetrize::symmetrize;
 pub use tables::CharacterTable;
 
 /// The name used for the detected group in the shared interface plan.

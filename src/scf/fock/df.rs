@@ -69,11 +69,11 @@ impl DfFock {
         let need = Self::estimate_bytes(n, naux);
         if need > budget {
             return Err(Error::TooLarge(format!(
-                "density fitting with {} needs {:.2} GiB for the three-index integrals, over \
-                 the memory budget of {:.2} GiB",
+                "density fitting with {} needs {} for the three-index integrals, over \
+                 the memory budget of {}",
                 aux.name,
-                need as f64 / (1u64 << 30) as f64,
-                budget as f64 / (1u64 << 30) as f64
+                crate::system::format_bytes(need as f64),
+                crate::system::format_bytes(budget as f64)
             )));
         }
         let mut b = three_centre(basis, aux);

@@ -39,9 +39,9 @@ impl InCoreFock {
         let need = Self::estimate_bytes(plan);
         if need > budget {
             return Err(Error::TooLarge(format!(
-                "in-core ERIs need {:.2} GiB, over the memory budget of {:.2} GiB",
-                need as f64 / (1u64 << 30) as f64,
-                budget as f64 / (1u64 << 30) as f64
+                "in-core ERIs need {}, over the memory budget of {}",
+                crate::system::format_bytes(need as f64),
+                crate::system::format_bytes(budget as f64)
             )));
         }
         let sizes = src.shell_sizes().to_vec();
