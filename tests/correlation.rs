@@ -8,7 +8,7 @@ use common::crawford_water;
 
 use bandcast::basis;
 use bandcast::chem::xyz::{read_xyz, LengthUnit};
-use bandcast::chem::{Atom, Molecule};
+use bandcast::chem::Molecule;
 use bandcast::correlation::eom_ip::{
     ionize_report, EomMethod, EomOptions, EomReport, IonizedState, RootSpec,
 };
