@@ -28,10 +28,10 @@ pub struct Args {
     /// Basis set (name of a bundled set or a basis file).
     #[arg(long, value_name = "NAME")]
     pub basis: String,
-    /// Ionise every atom of this element (symbol or atomic number).
+    /// Ionize every atom of this element (symbol or atomic number).
     #[arg(long, value_name = "SYMBOL", conflicts_with = "atoms")]
     pub element: Option<String>,
-    /// Ionise these atoms, numbered from 1: "1,3,5" or "2-4".
+    /// Ionize these atoms, numbered from 1: "1,3,5" or "2-4".
     #[arg(long, value_name = "LIST")]
     pub atoms: Option<String>,
     /// Shifts against the same element's 1s in this molecule (its first atom of the element),
@@ -61,11 +61,11 @@ pub struct Args {
         default_value = "uncontract-sp"
     )]
     pub core_basis: String,
-    /// Keep the canonical (delocalised) 1s as the hole instead of localising it.
+    /// Keep the canonical (delocalized) 1s as the hole instead of localizing it.
     #[arg(long)]
     pub canonical_hole: bool,
-    /// Also compute the delocalised hole of atoms with symmetry-equivalent partners (the
-    /// cation SCF kept symmetric), reported beside the localised one.
+    /// Also compute the delocalized hole of atoms with symmetry-equivalent partners (the
+    /// cation SCF kept symmetric), reported beside the localized one.
     #[arg(long)]
     pub compare_delocalised: bool,
     /// Method: dscf (ΔSCF) or dmp2 (ΔSCF plus the second-order correlation change, ΔMP2,

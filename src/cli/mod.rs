@@ -53,7 +53,7 @@ pub enum Command {
     Scf(scf::Args),
     /// Valence ionization energies, labelled bands (Koopmans, ΔSCF, EP2, EOM-IP).
     Ionize(ionize::Args),
-    /// Core-level (1s) binding energies and chemical shifts by ΔSCF with a localised hole.
+    /// Core-level (1s) binding energies and chemical shifts by ΔSCF with a localized hole.
     Core(core::Args),
     /// A broadened photoelectron spectrum for a photon source (SVG, CSV, JSON).
     Spectrum(spectrum::Args),
