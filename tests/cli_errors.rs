@@ -27,7 +27,11 @@ fn bad_xyz_line_gives_json_with_file_and_line_and_exit_2() {
     let d = scratch("xyz");
     let f = d.join("broken.xyz");
     // Line 4 has a coordinate that is not a number.
-    std::fs::write(&f, "3\nwater\nO 0 0 0.117\nH 0 0.757 zz\nH 0 -0.757 -0.469\n").unwrap();
+    std::fs::write(
+        &f,
+        "3\nwater\nO 0 0 0.117\nH 0 0.757 zz\nH 0 -0.757 -0.469\n",
+    )
+    .unwrap();
     let out = bin()
         .args(["scf", f.to_str().unwrap(), "--basis", "sto-3g", "--json"])
         .output()
@@ -59,7 +63,12 @@ fn scf_that_cannot_converge_gives_json_kind_computation_and_exit_1() {
         ])
         .output()
         .unwrap();
-    assert_eq!(out.status.code(), Some(1), "{}", String::from_utf8_lossy(&out.stderr));
+    assert_eq!(
+        out.status.code(),
+        Some(1),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
     let v = only_json_object(&out.stdout);
     assert_eq!(v["kind"], "computation");
     assert_eq!(v["exit_code"], 1);

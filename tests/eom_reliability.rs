@@ -9,7 +9,8 @@ use bandcast::ionization::method::Method;
 use bandcast::ionization::valence::ValenceOptions;
 
 const HELIUM: &str = "1\nhelium; GW100\nHe 0.0 0.0 0.0\n";
-const CHLORINE: &str = "2\nchlorine; GW100\nCl 0.000000 0.000000 0.000000\nCl 0.000000 0.000000 1.987800\n";
+const CHLORINE: &str =
+    "2\nchlorine; GW100\nCl 0.000000 0.000000 0.000000\nCl 0.000000 0.000000 1.987800\n";
 const WATER: &str = "3\nwater; GW100\nO 0.000000 0.000000 0.000000\nH 0.757100 0.000000 0.586100\nH -0.757100 0.000000 0.586100\n";
 
 fn mol(xyz: &str) -> Molecule {
@@ -41,7 +42,10 @@ fn helium_default_method_falls_back_and_runs() {
         .skipped
         .iter()
         .all(|s| s.reason.code() == "no-virtual-orbitals"));
-    assert!(r.notes.iter().any(|n| n.to_string().contains("no virtual orbital")));
+    assert!(r
+        .notes
+        .iter()
+        .any(|n| n.to_string().contains("no virtual orbital")));
     assert_eq!(r.bands.len(), 1);
 
     let b = bandcast::basis::load("def2-svp", &he, None).unwrap();
@@ -49,7 +53,11 @@ fn helium_default_method_falls_back_and_runs() {
     assert_eq!(choice.method, Method::EomCcsd);
     assert!(choice.skipped.is_empty());
     assert!(r.warnings.is_empty(), "{:?}", r.warnings);
-    assert!((r.bands[0].ie_ev - 24.587).abs() < 0.35, "{}", r.bands[0].ie_ev);
+    assert!(
+        (r.bands[0].ie_ev - 24.587).abs() < 0.35,
+        "{}",
+        r.bands[0].ie_ev
+    );
 }
 
 /// An open-shell molecule (the water cation, a doublet) gets ΔSCF by default, and the
@@ -75,10 +83,7 @@ fn tiny_budget_falls_back_to_ep2_with_reason() {
     let b = bandcast::basis::load("cc-pvdz", &w, None).unwrap();
     let c = choose(&w, &b, 1e4);
     assert_eq!(c.method, Method::Ep2);
-    assert!(c
-        .skipped
-        .iter()
-        .all(|s| s.reason.code() == "does-not-fit"));
+    assert!(c.skipped.iter().all(|s| s.reason.code() == "does-not-fit"));
 }
 
 /// Chlorine, default settings, def2-SVP: EOM-IP-CCSD stopped with "Davidson did not

@@ -113,10 +113,10 @@ fn h2_sto3g_matches_szabo_ostlund() {
 // polynomial × Gaussian integrands. Only the normalised contraction coefficients and the
 // Cartesian → AO matrices are taken from the library (they are checked on a grid below).
 
+use bandcast::basis::cartesian::components;
 use bandcast::basis::evaluate::shell_values;
 use bandcast::basis::normalize::contracted_coefficients;
 use bandcast::basis::solid_harmonics::transform;
-use bandcast::basis::cartesian::components;
 use bandcast_linalg::Mat;
 
 /// Nodes and weights of the n-point Gauss–Hermite rule (weight exp(−x²)).

@@ -344,7 +344,11 @@ fn window_with_lower_bound_keeps_the_bands_in_range() {
         .filter(|x| x.ie_ev >= lo && x.ie_ev <= hi)
         .map(|x| (x.label.as_str(), x.ie_ev))
         .collect();
-    let got: Vec<(&str, f64)> = win.bands.iter().map(|x| (x.label.as_str(), x.ie_ev)).collect();
+    let got: Vec<(&str, f64)> = win
+        .bands
+        .iter()
+        .map(|x| (x.label.as_str(), x.ie_ev))
+        .collect();
     assert_eq!(got.len(), 2);
     assert_eq!(got.len(), expected.len());
     for (g, e) in got.iter().zip(&expected) {

@@ -62,7 +62,10 @@ fn water_cube_eom_ccsd_refused_by_the_plan_before_any_integral() {
         match memory_preflight(&m, &b, &opts(method, GIB), &scf) {
             Err(Error::TooLarge(msg)) => {
                 assert!(msg.contains("GiB"), "{msg}");
-                assert!(msg.contains("--method") || msg.contains("smaller basis"), "{msg}");
+                assert!(
+                    msg.contains("--method") || msg.contains("smaller basis"),
+                    "{msg}"
+                );
             }
             other => panic!("{}: expected a refusal, got {other:?}", method.name()),
         }
@@ -83,7 +86,10 @@ fn a_budget_below_the_direct_scf_floor_is_refused() {
         Err(Error::TooLarge(_))
     ));
     // and the SCF entry itself refuses before its integrals
-    assert!(matches!(bandcast::scf::run(&m, &b, &scf), Err(Error::TooLarge(_))));
+    assert!(matches!(
+        bandcast::scf::run(&m, &b, &scf),
+        Err(Error::TooLarge(_))
+    ));
 }
 
 fn refused_by_binary(args: &[&str]) -> String {
@@ -94,7 +100,11 @@ fn refused_by_binary(args: &[&str]) -> String {
     let err = String::from_utf8_lossy(&out.stderr).to_string();
     assert_eq!(out.status.code(), Some(2), "{err}");
     assert!(out.stdout.is_empty());
-    assert_eq!(err.trim().lines().count(), 1, "only the error line on stderr: {err}");
+    assert_eq!(
+        err.trim().lines().count(),
+        1,
+        "only the error line on stderr: {err}"
+    );
     assert!(err.starts_with("error:"), "{err}");
     err
 }

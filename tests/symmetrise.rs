@@ -23,7 +23,11 @@ fn pyridine_equivalent_carbons_get_identical_c1s() {
         ])
         .output()
         .unwrap();
-    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
     let j: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
     let levels = j["core_levels"].as_array().unwrap();
     assert_eq!(levels.len(), 5);

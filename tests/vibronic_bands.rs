@@ -7,7 +7,9 @@
 
 use bandcast::chem::{Atom, Molecule};
 use bandcast::units::ANGSTROM_TO_BOHR;
-use bandcast::vibronic::band::{band, hole_by_label, neutral, BandModel, BandOptions, VibronicBand};
+use bandcast::vibronic::band::{
+    band, hole_by_label, neutral, BandModel, BandOptions, VibronicBand,
+};
 use bandcast::vibronic::composite::apply_correlated_vertical;
 
 const MEMORY: usize = 2 << 30;
@@ -44,12 +46,18 @@ fn show(name: &str, b: &VibronicBand) {
         );
     }
     for c in &b.bond_changes {
-        eprintln!("   bond {:?}: {:.4} -> {:.4} Å", c.atoms, c.neutral_angstrom, c.ion_angstrom);
+        eprintln!(
+            "   bond {:?}: {:.4} -> {:.4} Å",
+            c.atoms, c.neutral_angstrom, c.ion_angstrom
+        );
     }
     let mut l = b.lines.clone();
     l.sort_by(|a, b| b.intensity.total_cmp(&a.intensity));
     for x in l.iter().take(6) {
-        eprintln!("   line {:.3} eV  {:.4}  {:?}", x.energy_ev, x.intensity, x.quanta);
+        eprintln!(
+            "   line {:.3} eV  {:.4}  {:?}",
+            x.energy_ev, x.intensity, x.quanta
+        );
     }
     for n in &b.notes {
         eprintln!("   note: {n}");
@@ -90,11 +98,18 @@ fn h2_n2_h2o_bands_against_measured_spectra() {
     assert!(b.captured_fraction >= 0.95);
     // Turner et al., Molecular Photoelectron Spectroscopy (1970); NIST: the H2⁺ band's
     // strongest line is v′ = 2.
-    assert_eq!(VibronicBand::line_quanta(strongest(&b), 1), 2, "H2 maximum not at v′ = 2");
+    assert_eq!(
+        VibronicBand::line_quanta(strongest(&b), 1),
+        2,
+        "H2 maximum not at v′ = 2"
+    );
     // NIST adiabatic IE 15.43 eV; HF ΔSCF bound widened by the correlation energy (above):
     // the corrected value must land within 0.15 eV.
     let corrected = b.adiabatic_ev + 1.11;
-    assert!((corrected - 15.43).abs() < 0.15, "H2 adiabatic + Ec = {corrected:.3}");
+    assert!(
+        (corrected - 15.43).abs() < 0.15,
+        "H2 adiabatic + Ec = {corrected:.3}"
+    );
     let h2_quanta = b.mean_total_quanta;
     // Composite (correlated vertical + HF relaxation): for two electrons EOM-IP-CCSD is exact
     // in the basis, so the adiabatic IE must reach NIST's 15.43 eV within 0.15 eV without
@@ -103,21 +118,41 @@ fn h2_n2_h2o_bands_against_measured_spectra() {
     let m = apply_correlated_vertical(&n, "cc-pVTZ", &mut c, MEMORY).unwrap();
     show(&format!("H2 1σg composite ({m})"), &c[0]);
     assert!(c[0].composite.is_some());
-    assert!((c[0].adiabatic_ev - 15.43).abs() < 0.15, "H2 composite adiabatic {:.3}", c[0].adiabatic_ev);
+    assert!(
+        (c[0].adiabatic_ev - 15.43).abs() < 0.15,
+        "H2 composite adiabatic {:.3}",
+        c[0].adiabatic_ev
+    );
 
     // N2 (cc-pVDZ). 3σg band: NIST adiabatic 15.58 eV, 0–0 dominant with v′=1/v′=0 about
     // 0.1 (Turner et al. 1970; from memory). 1πu band: adiabatic 16.69 eV (from memory), a
     // longer progression (maximum at v′ = 1, from memory).
     let n2 = mol_angstrom(&[(7, [0.0, 0.0, 0.0]), (7, [0.0, 0.0, 1.098])]);
     let n = neutral(&n2, "cc-pVDZ", &opts).unwrap();
-    let s = band(&n, hole_by_label(&n, "3σg").unwrap(), Some("3σg".into()), &opts).unwrap();
+    let s = band(
+        &n,
+        hole_by_label(&n, "3σg").unwrap(),
+        Some("3σg".into()),
+        &opts,
+    )
+    .unwrap();
     show("N2 3σg", &s);
-    let p = band(&n, hole_by_label(&n, "1πu").unwrap(), Some("1πu".into()), &opts).unwrap();
+    let p = band(
+        &n,
+        hole_by_label(&n, "1πu").unwrap(),
+        Some("1πu".into()),
+        &opts,
+    )
+    .unwrap();
     show("N2 1πu", &p);
     assert!(s.captured_fraction >= 0.95 && p.captured_fraction >= 0.95);
     let r10 = single(&s, 1, 1) / single(&s, 1, 0);
     eprintln!("N2 3σg v′=1/v′=0 = {r10:.3}");
-    assert_eq!(VibronicBand::line_quanta(strongest(&s), 1), 0, "3σg: 0–0 not strongest");
+    assert_eq!(
+        VibronicBand::line_quanta(strongest(&s), 1),
+        0,
+        "3σg: 0–0 not strongest"
+    );
     assert!(r10 < 0.3, "3σg v′=1/v′=0 = {r10:.3}, expected about 0.1");
     assert!(
         p.mean_total_quanta > 2.0 * s.mean_total_quanta,
@@ -138,8 +173,16 @@ fn h2_n2_h2o_bands_against_measured_spectra() {
     // Positions within 0.45 eV: EOM-IP-CCSD in a double-zeta basis without diffuse functions
     // lands a few tenths of an eV from measured IEs (common practice); measured here: 3σg
     // −0.39, 1πu +0.09 eV.
-    assert!((c[0].adiabatic_ev - 15.58).abs() < 0.45, "N2 3σg {:.3}", c[0].adiabatic_ev);
-    assert!((c[1].adiabatic_ev - 16.69).abs() < 0.45, "N2 1πu {:.3}", c[1].adiabatic_ev);
+    assert!(
+        (c[0].adiabatic_ev - 15.58).abs() < 0.45,
+        "N2 3σg {:.3}",
+        c[0].adiabatic_ev
+    );
+    assert!(
+        (c[1].adiabatic_ev - 16.69).abs() < 0.45,
+        "N2 1πu {:.3}",
+        c[1].adiabatic_ev
+    );
 
     // H2O 1b1 (cc-pVDZ): NIST adiabatic 12.62 eV; 0–0 strongest and a bending progression of
     // about 0.17 eV spacing (Turner et al. 1970; from memory). HF harmonic wavenumbers lie
@@ -151,10 +194,19 @@ fn h2_n2_h2o_bands_against_measured_spectra() {
         (1, [0.0, -0.7572, -0.4692]),
     ]);
     let n = neutral(&h2o, "cc-pVDZ", &opts).unwrap();
-    let w = band(&n, hole_by_label(&n, "1b1").unwrap(), Some("1b1".into()), &opts).unwrap();
+    let w = band(
+        &n,
+        hole_by_label(&n, "1b1").unwrap(),
+        Some("1b1".into()),
+        &opts,
+    )
+    .unwrap();
     show("H2O 1b1", &w);
     assert!(w.captured_fraction >= 0.95);
-    assert!(strongest(&w).quanta.is_empty(), "H2O 1b1: 0–0 not strongest");
+    assert!(
+        strongest(&w).quanta.is_empty(),
+        "H2O 1b1: 0–0 not strongest"
+    );
     let bend = w
         .ion_modes
         .iter()
@@ -167,8 +219,14 @@ fn h2_n2_h2o_bands_against_measured_spectra() {
         .find(|l| l.quanta.len() == 1 && VibronicBand::line_quanta(l, bend) == 1)
         .map(|l| l.energy_ev - w.adiabatic_ev)
         .expect("a bending line");
-    eprintln!("H2O 1b1 bending spacing {spacing:.3} eV, 1/0 = {:.3}", single(&w, bend, 1) / single(&w, bend, 0));
-    assert!((0.15..0.22).contains(&spacing), "bending spacing {spacing:.3} eV");
+    eprintln!(
+        "H2O 1b1 bending spacing {spacing:.3} eV, 1/0 = {:.3}",
+        single(&w, bend, 1) / single(&w, bend, 0)
+    );
+    assert!(
+        (0.15..0.22).contains(&spacing),
+        "bending spacing {spacing:.3} eV"
+    );
     assert!(single(&w, bend, 1) > 0.02, "no bending progression");
     let mut c = vec![w.clone()];
     let m = apply_correlated_vertical(&n, "cc-pVDZ", &mut c, MEMORY).unwrap();

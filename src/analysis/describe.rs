@@ -4,9 +4,9 @@
 use super::bonding::{bonding_character, Character};
 use super::population::orbital_makeup;
 use super::symmetry::{degenerate_sets, label_orbitals, PointGroup};
+use crate::analysis::makeup::MakeupEntry;
 use crate::basis::BasisSet;
 use crate::chem::Molecule;
-use crate::analysis::makeup::MakeupEntry;
 use bandcast_linalg::Mat;
 
 /// One degenerate set of orbitals (one band).

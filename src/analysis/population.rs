@@ -25,10 +25,10 @@
 //! N_Z are 1s, the next N_Z 2s, then 3 N_Z 2p, …). Functions of that shell's l on atoms of
 //! that element are then named after the core shell (N2: 1σg and 1σu are "N1 1s, N2 1s").
 
+use crate::analysis::makeup::MakeupEntry;
 use crate::basis::BasisSet;
 use crate::chem::elements;
 use crate::chem::Molecule;
-use crate::analysis::makeup::MakeupEntry;
 use bandcast_linalg::Mat;
 use std::collections::BTreeMap;
 

@@ -2,10 +2,10 @@
 //! integrals: φ_k(r) = Σ_c T_kc x^a y^b z^c Σ_i d_i exp(−α_i |r − A|²), with d_i from
 //! `normalize::contracted_coefficients` and T from `solid_harmonics::transform`.
 
+use crate::basis::cartesian::components;
 use crate::basis::normalize::contracted_coefficients;
 use crate::basis::solid_harmonics;
 use crate::basis::Shell;
-use crate::basis::cartesian::components;
 
 /// AO values of `shell` at `point` (bohr).
 pub fn shell_values(shell: &Shell, point: [f64; 3]) -> Vec<f64> {

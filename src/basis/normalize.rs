@@ -8,8 +8,8 @@
 //! other Cartesian component gets the extra factor of [`component_factor`] so that it is
 //! normalised too.
 
-use crate::basis::Shell;
 use crate::basis::cartesian::double_factorial;
+use crate::basis::Shell;
 use std::f64::consts::PI;
 
 /// Normalisation constant of the primitive x^l exp(−α r²).

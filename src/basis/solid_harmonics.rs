@@ -15,8 +15,8 @@
 //! `crate::basis::normalize`). For Cartesian shells the matrix is diagonal (the component
 //! factors); for s and p it is the identity.
 
-use crate::basis::normalize::component_factor;
 use crate::basis::cartesian::{components, double_factorial, n_cartesian, MAX_L};
+use crate::basis::normalize::component_factor;
 use std::sync::OnceLock;
 
 fn binom(n: i64, k: i64) -> f64 {

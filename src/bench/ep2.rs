@@ -6,10 +6,10 @@ use std::time::Instant;
 use crate::basis::BasisSet;
 use crate::chem::Molecule;
 use crate::error::Result;
-use crate::system::process_cpu_seconds;
 use crate::ionization::method::Method;
 use crate::ionization::valence::{predict_with, ValenceOptions};
 use crate::scf::{Reference, ScfOptions};
+use crate::system::process_cpu_seconds;
 
 /// What one EP2 benchmark run measured.
 #[derive(Debug, Clone)]

@@ -2,8 +2,8 @@
 //! class and wall time for all ERIs of a molecule. Plain functions returning plain
 //! results; the CLI prints them. Timings are wall-clock and depend on the machine.
 
-use crate::basis::{BasisSet, Shell};
 use crate::basis::cartesian::n_cartesian;
+use crate::basis::{BasisSet, Shell};
 use crate::integrals::EriEngine;
 use crate::system::{process_cpu_seconds, thread_cpu_seconds};
 use rayon::prelude::*;

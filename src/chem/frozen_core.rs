@@ -78,9 +78,7 @@ mod tests {
         let period = filled.iter().map(|s| s.0).max().unwrap();
         filled
             .iter()
-            .filter(|&&(n, l, e)| {
-                n < period && e == 2 * (2 * l + 1) && (n, l) != (last_n, last_l)
-            })
+            .filter(|&&(n, l, e)| n < period && e == 2 * (2 * l + 1) && (n, l) != (last_n, last_l))
             .map(|&(_, l, _)| (2 * l + 1) as usize)
             .sum()
     }
@@ -104,8 +102,8 @@ mod tests {
         assert_eq!(core_orbitals_of(82), 39); // Pb: [Xe]4f14 5d10
         assert_eq!(core_orbitals_of(87), 43); // Fr: [Rn]
         assert_eq!(core_orbitals_of(118), 55); // Og: [Rn]5f14 6d10
-        // the core never reaches the element's own electrons: at most floor(Z/2) - 1
-        // orbitals beyond H and He, so a neutral atom always has valence electrons
+                                               // the core never reaches the element's own electrons: at most floor(Z/2) - 1
+                                               // orbitals beyond H and He, so a neutral atom always has valence electrons
         for z in 3..=118u32 {
             assert!(2 * core_orbitals_of(z) < z as usize, "Z = {z}");
         }

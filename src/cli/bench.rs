@@ -4,8 +4,8 @@
 
 use std::path::{Path, PathBuf};
 
-use bandcast::chem::xyz::{read_xyz, LengthUnit};
 use bandcast::bench::integrals::{all_eris, class_throughput, ClassTiming, MoleculeTiming};
+use bandcast::chem::xyz::{read_xyz, LengthUnit};
 use bandcast::vibronic::FcOptions;
 use bandcast::{Error, Result};
 

@@ -6,8 +6,8 @@ use std::path::PathBuf;
 use bandcast::basis;
 use bandcast::chem::elements::parse_element;
 use bandcast::core_level::{
-    predict_with_progress, CoreBasis, CoreOptions, ReferenceMolecule,
-    ShiftReference, TargetSelection,
+    predict_with_progress, CoreBasis, CoreOptions, ReferenceMolecule, ShiftReference,
+    TargetSelection,
 };
 use bandcast::{Error, Result};
 
@@ -219,7 +219,6 @@ pub struct BenchArgs {
     #[arg(long, default_value = "uncontract-sp", value_name = "KIND")]
     pub core_basis: String,
 }
-
 
 pub fn bench(a: BenchArgs) -> Result<()> {
     if a.carbons == 0 {

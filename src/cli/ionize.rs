@@ -2,8 +2,8 @@
 //!
 //! Parsing and printing only; the work is `bandcast::ionization::valence::predict`.
 
-use bandcast::ionization::method::Method;
 use bandcast::ionization::default_method;
+use bandcast::ionization::method::Method;
 use bandcast::ionization::valence::{predict, ValenceOptions};
 use bandcast::report::json::{to_pretty, IonizeJson};
 use bandcast::report::text::ionize_table;
@@ -66,7 +66,13 @@ pub fn run(args: Args) -> Result<()> {
     let mol = args.molecule.load()?;
     // --- vibronic bands (cli/vibronic.rs) ---
     if args.vibronic {
-        return super::vibronic::ionize(&mol, &args.molecule.file, &args.basis, args.count, args.json);
+        return super::vibronic::ionize(
+            &mol,
+            &args.molecule.file,
+            &args.basis,
+            args.count,
+            args.json,
+        );
     }
     // --- end vibronic ---
     const GIB: f64 = (1u64 << 30) as f64;
@@ -124,7 +130,11 @@ pub fn run(args: Args) -> Result<()> {
             method,
             basis.name,
             basis.n_basis,
-            if defaulted { ", first choice of the default rule" } else { "" }
+            if defaulted {
+                ", first choice of the default rule"
+            } else {
+                ""
+            }
         );
         eprintln!("  molecule and basis: {loaded_s:.2} s");
     }

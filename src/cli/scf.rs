@@ -249,7 +249,6 @@ fn progress_line(i: &IterationInfo) -> String {
     )
 }
 
-
 fn describe_harmonics(b: &bandcast::basis::BasisSet) -> &'static str {
     let high: Vec<bool> = b
         .shells
@@ -267,10 +266,6 @@ fn describe_harmonics(b: &bandcast::basis::BasisSet) -> &'static str {
         "mixed"
     }
 }
-
-
-
-
 
 /// The molecule's name (XYZ comment line) cut to 40 characters for the header.
 fn short_name(name: &str) -> String {

@@ -18,7 +18,11 @@ use super::common::print_json;
 /// Bands when `--count` is not given.
 pub const DEFAULT_COUNT: usize = 3;
 
-fn compute(mol: &Molecule, basis: &str, count: Option<usize>) -> Result<(Neutral, Vec<VibronicBand>)> {
+fn compute(
+    mol: &Molecule,
+    basis: &str,
+    count: Option<usize>,
+) -> Result<(Neutral, Vec<VibronicBand>)> {
     let n = count.unwrap_or(DEFAULT_COUNT);
     if n == 0 {
         return Err(bandcast::Error::input("--count must be at least 1"));
@@ -50,7 +54,13 @@ fn name(mol: &Molecule, file: &Path) -> String {
 }
 
 /// `bandcast ionize FILE --basis B --vibronic [--count N] [--json]`.
-pub fn ionize(mol: &Molecule, file: &Path, basis: &str, count: Option<usize>, json: bool) -> Result<()> {
+pub fn ionize(
+    mol: &Molecule,
+    file: &Path,
+    basis: &str,
+    count: Option<usize>,
+    json: bool,
+) -> Result<()> {
     let (n, bands) = compute(mol, basis, count)?;
     let name = name(mol, file);
     if json {

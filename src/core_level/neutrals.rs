@@ -14,9 +14,9 @@ use crate::correlation::mp2::mp2_energy;
 use crate::error::{Error, Result};
 use crate::integrals::EriEngine;
 // TODO(merge): the CPU-time probe moves to `system/`.
-use crate::system::process_cpu_seconds as cpu_seconds;
 use crate::scf::fock::source::EngineSource;
 use crate::scf::{Guess, Reference, ScfContext, ScfOptions, Wavefunction};
+use crate::system::process_cpu_seconds as cpu_seconds;
 
 use super::carry_over::project_occupied;
 use super::flexibility::flexible_basis;

@@ -11,10 +11,10 @@
 //! thresholds.
 
 use super::ccsd_intermediates as imd;
-use crate::scf::diis::VectorDiis as Diis;
 use super::integrals::MoIntegrals;
 use super::mp2;
 use super::tensor::{einsum, Tensor};
+use crate::scf::diis::VectorDiis as Diis;
 use crate::{Error, Result};
 
 #[derive(Debug, Clone)]

@@ -328,7 +328,9 @@ pub fn solve_with(
                 RootStatus::Converged
             } else if is_loose
                 && iter >= opts.loose_after
-                && rn < opts.loose_r_tol && de < opts.loose_e_tol {
+                && rn < opts.loose_r_tol
+                && de < opts.loose_e_tol
+            {
                 RootStatus::ConvergedLoose
             } else {
                 RootStatus::NotConverged
@@ -417,11 +419,7 @@ pub fn solve_with(
             v = nv;
             av = nav;
         }
-        previous = pairs
-            .iter()
-            .map(|p| p.vector.clone())
-            .zip(images)
-            .collect();
+        previous = pairs.iter().map(|p| p.vector.clone()).zip(images).collect();
         let mut added = Vec::new();
         for mut c in corrections {
             let mut all: Vec<Vec<f64>> = v.clone();

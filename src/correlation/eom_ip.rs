@@ -25,9 +25,9 @@ use crate::{Error, Result};
 
 use super::ccsd::{self, CcsdOptions};
 use super::davidson::{self, DavidsonOptions};
-use super::eom_roots::{self, RootOutcome, RootWarning};
 use super::eom_ip_intermediates::IpHbar;
 use super::eom_ip_sigma::{self, IpSpace};
+use super::eom_roots::{self, RootOutcome, RootWarning};
 use super::integrals::MoIntegrals;
 use super::memory::{self, FactorRoute, Stage};
 use super::mp2;

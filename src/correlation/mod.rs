@@ -21,10 +21,9 @@ pub mod tensor;
 #[cfg(test)]
 pub(crate) mod brute_force;
 pub mod eom_ip;
-pub mod eom_roots;
 pub mod eom_ip_intermediates;
 pub mod eom_ip_sigma;
+pub mod eom_roots;
 pub mod memory;
 pub mod stages;
 pub mod two_electron;
-

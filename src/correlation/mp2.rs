@@ -74,7 +74,12 @@ pub fn delta_mp2_preflight(basis: &BasisSet, n_electrons: usize) -> Result<usize
     let ob = (n_electrons / 2).saturating_sub(1).min(n);
     let (va, vb) = (n - oa, n - ob);
     let dims = [[oa, va, oa, va], [ob, vb, ob, vb], [oa, va, ob, vb]];
-    let need = estimate_bytes_for(n, max_shell_functions(basis), &dims, rayon::current_num_threads());
+    let need = estimate_bytes_for(
+        n,
+        max_shell_functions(basis),
+        &dims,
+        rayon::current_num_threads(),
+    );
     if need > MP2_MEMORY_BYTES {
         return Err(Error::TooLarge(format!(
             "ΔMP2 needs about {} for the MO integral transformation ({n} basis functions), over \

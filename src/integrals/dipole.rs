@@ -4,8 +4,8 @@
 //! These are matrices of the electron's *position*; the electronic dipole moment is
 //! −Σ_μν D_μν ⟨μ|r − O|ν⟩ (electron charge −1).
 
-use crate::basis::BasisSet;
 use crate::basis::cartesian::components;
+use crate::basis::BasisSet;
 use crate::integrals::hermite_expansion::{e_index, e_len, hermite_e};
 use crate::integrals::one_electron::{gaussian_product, symmetric_matrices, PrimPair};
 use bandcast_linalg::Mat;

@@ -13,10 +13,10 @@
 //! quartet of families for all member combinations at once, the primitive work shared. The
 //! blocks are cached per thread (`family_cache`).
 
+use crate::basis::cartesian::n_cartesian;
 use crate::basis::normalize::contracted_coefficients;
 use crate::basis::solid_harmonics;
 use crate::basis::{BasisSet, Shell};
-use crate::basis::cartesian::n_cartesian;
 use crate::integrals::family_cache::FamilyCache;
 use crate::integrals::ket_batch::ket_batch;
 use crate::integrals::quartet::{contracted_quartet, ssss, Scratch, ShellMeta};

@@ -4,8 +4,8 @@
 //! ⟨i| ∂²/∂x² |j⟩ = j(j−1) S_{i,j−2} − 2β(2j+1) S_{i,j} + 4β² S_{i,j+2},
 //! T = −½ (D_x S_y S_z + S_x D_y S_z + S_x S_y D_z).
 
-use crate::basis::BasisSet;
 use crate::basis::cartesian::components;
+use crate::basis::BasisSet;
 use crate::integrals::one_electron::{gaussian_product, symmetric_matrices, PrimPair};
 use crate::integrals::overlap::overlap_1d;
 use bandcast_linalg::Mat;

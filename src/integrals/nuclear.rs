@@ -2,9 +2,9 @@
 //! Hermite expansion (Helgaker, Jørgensen & Olsen, eq. 9.9.32):
 //! V_ab = −Z_C (2π/p) Σ_{tuv} E^{ab}_{tuv} R_{tuv}(p, R_PC).
 
+use crate::basis::cartesian::components;
 use crate::basis::BasisSet;
 use crate::chem::Molecule;
-use crate::basis::cartesian::components;
 use crate::integrals::hermite_coulomb::{hermite_r, r_index, RScratch};
 use crate::integrals::hermite_expansion::{e_index, e_len, hermite_e};
 use crate::integrals::one_electron::{gaussian_product, symmetric_matrices, PrimPair};

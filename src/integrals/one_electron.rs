@@ -2,10 +2,10 @@
 //! contracts primitive blocks supplied by a kernel, transforms both indices to the final
 //! AO basis and fills the symmetric (or, for `antisymmetric == false` only, plain) matrix.
 
+use crate::basis::cartesian::n_cartesian;
 use crate::basis::normalize::contracted_coefficients;
 use crate::basis::solid_harmonics;
 use crate::basis::{BasisSet, Shell};
-use crate::basis::cartesian::n_cartesian;
 use crate::integrals::transform::transform_axis;
 use bandcast_linalg::Mat;
 use rayon::prelude::*;

@@ -1,8 +1,8 @@
 //! Overlap integrals S_μν = ⟨μ|ν⟩ by the Hermite expansion: per Cartesian direction
 //! S_ij = E^{ij}_0 √(π/p) (Helgaker, Jørgensen & Olsen, eq. 9.5.41), S = S_x S_y S_z.
 
-use crate::basis::BasisSet;
 use crate::basis::cartesian::components;
+use crate::basis::BasisSet;
 use crate::integrals::hermite_expansion::{e_index, e_len, hermite_e};
 use crate::integrals::one_electron::{gaussian_product, symmetric_matrices, PrimPair};
 use bandcast_linalg::Mat;

@@ -141,7 +141,12 @@ impl std::fmt::Display for DefaultChoice {
 /// The chain of methods tried by default, most accurate first.
 pub fn chain(mol: &Molecule) -> Vec<Method> {
     if mol.multiplicity == 1 {
-        vec![Method::EomCcsd, Method::EomMp2, Method::Ep2, Method::Koopmans]
+        vec![
+            Method::EomCcsd,
+            Method::EomMp2,
+            Method::Ep2,
+            Method::Koopmans,
+        ]
     } else {
         vec![
             Method::EomCcsd,
@@ -190,7 +195,16 @@ pub fn cannot_run(
     }
     let (ncorr, nvir, route) = correlated_space(mol, basis);
     // 8 DIIS vectors, 60 Davidson vectors: the plan the EOM code makes by default
-    match memory::plan(stage, basis.n_basis, ncorr, nvir, route, 8, 60, budget_bytes) {
+    match memory::plan(
+        stage,
+        basis.n_basis,
+        ncorr,
+        nvir,
+        route,
+        8,
+        60,
+        budget_bytes,
+    ) {
         Ok(_) => None,
         Err(e) => Some(SkipReason::DoesNotFit {
             message: e.to_string(),
@@ -245,11 +259,9 @@ pub fn predict_default(
         };
         match predict_with(mol, basis, &wf, &o) {
             Ok(mut r) => {
-                let choice = DefaultChoice {
-                    method: m,
-                    skipped,
-                };
-                r.notes.push(ValenceNotice::DefaultMethodChosen(choice.clone()));
+                let choice = DefaultChoice { method: m, skipped };
+                r.notes
+                    .push(ValenceNotice::DefaultMethodChosen(choice.clone()));
                 for s in &failures {
                     r.warnings.push(ValenceNotice::DefaultFellBack {
                         method: s.method,

@@ -11,9 +11,9 @@
 pub mod annotate;
 pub mod band;
 pub mod bands;
+pub mod default_method;
 pub mod dscf;
 pub mod ep2;
-pub mod default_method;
 pub mod koopmans;
 pub mod method;
 pub mod notice;

@@ -8,6 +8,7 @@
 use bandcast_linalg::Mat;
 
 use crate::basis::BasisSet;
+use crate::chem::frozen_core::core_orbitals;
 use crate::chem::Molecule;
 use crate::error::{Error, Result};
 use crate::integrals::EriEngine;
@@ -18,7 +19,6 @@ use crate::ionization::bands::{
 };
 use crate::ionization::dscf::dscf;
 use crate::ionization::ep2::{ep2, Ep2Options};
-use crate::chem::frozen_core::core_orbitals;
 use crate::ionization::koopmans::{koopmans, Spin};
 use crate::ionization::method::Method;
 use crate::ionization::notice::ValenceNotice;
@@ -210,7 +210,11 @@ pub fn predict_with(
         }
         if let Some(lo) = opts.window_min_ev {
             // correlated methods move IEs by a few eV either way of Koopmans'
-            let margin = if opts.method == Method::Koopmans { 0.0 } else { WINDOW_MARGIN_EV };
+            let margin = if opts.method == Method::Koopmans {
+                0.0
+            } else {
+                WINDOW_MARGIN_EV
+            };
             candidates.retain(|s| ev(s.koopmans_ie()) >= lo - margin);
         }
     }

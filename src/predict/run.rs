@@ -64,7 +64,11 @@ fn predict_valence(req: &Request) -> Result<Prediction> {
         ..ValenceOptions::default()
     };
     let r = valence::predict(mol, req.basis, &opts)?;
-    let mut notes: Vec<Notice> = r.notes.iter().map(|n| Notice::MethodNote(n.to_string())).collect();
+    let mut notes: Vec<Notice> = r
+        .notes
+        .iter()
+        .map(|n| Notice::MethodNote(n.to_string()))
+        .collect();
     if defaulted {
         notes.push(Notice::DefaultMethodChosen {
             method: method.name().into(),
@@ -80,7 +84,11 @@ fn predict_valence(req: &Request) -> Result<Prediction> {
         n_basis: req.basis.n_basis,
         bands: r.bands,
         notes,
-        warnings: r.warnings.iter().map(|w| Notice::MethodWarning(w.to_string())).collect(),
+        warnings: r
+            .warnings
+            .iter()
+            .map(|w| Notice::MethodWarning(w.to_string()))
+            .collect(),
     })
 }
 
@@ -114,7 +122,11 @@ fn predict_core(req: &Request, progress: &(dyn Fn(Progress) + Sync)) -> Result<P
         basis: req.basis.name.clone(),
         n_basis: r.n_basis,
         bands: r.bands(),
-        notes: r.notes.iter().map(|n| Notice::MethodNote(n.to_string())).collect(),
+        notes: r
+            .notes
+            .iter()
+            .map(|n| Notice::MethodNote(n.to_string()))
+            .collect(),
         warnings: Vec::new(),
     })
 }

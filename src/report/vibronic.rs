@@ -59,7 +59,12 @@ fn quanta_text(l: &BandLine) -> String {
 }
 
 /// The table of `bandcast ionize --vibronic`.
-pub fn bands_table(molecule: &str, basis: &str, point_group: &str, bands: &[VibronicBand]) -> String {
+pub fn bands_table(
+    molecule: &str,
+    basis: &str,
+    point_group: &str,
+    bands: &[VibronicBand],
+) -> String {
     let mut s = String::new();
     let _ = writeln!(
         s,
@@ -253,7 +258,12 @@ pub fn spectrum_text(molecule: &str, bands: &[VibronicBand], curve: &CurveJson) 
         let modes: Vec<String> = b
             .progression_modes
             .iter()
-            .map(|m| format!("{:.0} {} ×{}", m.wavenumber_cm1, m.irrep, m.quanta_at_maximum))
+            .map(|m| {
+                format!(
+                    "{:.0} {} ×{}",
+                    m.wavenumber_cm1, m.irrep, m.quanta_at_maximum
+                )
+            })
             .collect();
         let _ = writeln!(
             s,
@@ -263,12 +273,20 @@ pub fn spectrum_text(molecule: &str, bands: &[VibronicBand], curve: &CurveJson) 
             b.vertical_ev,
             b.maximum_ev,
             b.mean_total_quanta,
-            if modes.is_empty() { "-".into() } else { modes.join(", ") }
+            if modes.is_empty() {
+                "-".into()
+            } else {
+                modes.join(", ")
+            }
         );
     }
     let notes: Vec<String> = bands
         .iter()
-        .flat_map(|b| b.notes.iter().map(move |n| format!("{}: {n}", band_name(b))))
+        .flat_map(|b| {
+            b.notes
+                .iter()
+                .map(move |n| format!("{}: {n}", band_name(b)))
+        })
         .collect();
     if !notes.is_empty() {
         let _ = writeln!(s);

@@ -189,7 +189,12 @@ pub(crate) mod tests {
     fn aligned_structure_satisfies_the_eckart_rotational_condition() {
         // Exact condition (module comment): Σ m (z − c) × (aligned y − c) = 0 for a
         // distorted, rotated copy.
-        let geom = vec![[0.0, 0.0, 0.0], [1.8, 0.0, 0.0], [-0.5, 1.7, 0.0], [0.3, 0.2, 1.5]];
+        let geom = vec![
+            [0.0, 0.0, 0.0],
+            [1.8, 0.0, 0.0],
+            [-0.5, 1.7, 0.0],
+            [0.3, 0.2, 1.5],
+        ];
         let masses = [16.0, 1.0, 1.0, 12.0];
         let r = axis_angle([1.0, 1.0, 0.2], 0.7);
         let distorted: Vec<[f64; 3]> = geom

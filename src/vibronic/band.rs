@@ -387,7 +387,15 @@ fn orbital_labels(n: &Neutral) -> Vec<Option<String>> {
     let pg = detect_point_group(&st.molecule, DEFAULT_TOLERANCE);
     let wf = &st.wavefunction;
     let mut out = vec![None; wf.eps_alpha.len()];
-    for l in label_orbitals(&pg, &st.molecule, &st.basis, &s, &wf.c_alpha, &wf.eps_alpha, 1e-5) {
+    for l in label_orbitals(
+        &pg,
+        &st.molecule,
+        &st.basis,
+        &s,
+        &wf.c_alpha,
+        &wf.eps_alpha,
+        1e-5,
+    ) {
         if l.mo < out.len() {
             out[l.mo] = l.label;
         }
@@ -396,7 +404,12 @@ fn orbital_labels(n: &Neutral) -> Vec<Option<String>> {
 }
 
 /// One band (hole in the 0-based parent orbital `hole`) from a solved neutral.
-pub fn band(n: &Neutral, hole: usize, label: Option<String>, opts: &BandOptions) -> Result<VibronicBand> {
+pub fn band(
+    n: &Neutral,
+    hole: usize,
+    label: Option<String>,
+    opts: &BandOptions,
+) -> Result<VibronicBand> {
     let spec = StateSpec {
         reference: Reference::Uhf,
         hole: Some(hole),
@@ -457,8 +470,19 @@ pub fn band(n: &Neutral, hole: usize, label: Option<String>, opts: &BandOptions)
         }
     };
     Ok(assemble(
-        n, hole, label, prog, &dus, model, ion_geometry, ion_modes, ion_pg, el_adiabatic, dzpe,
-        vertical, notes,
+        n,
+        hole,
+        label,
+        prog,
+        &dus,
+        model,
+        ion_geometry,
+        ion_modes,
+        ion_pg,
+        el_adiabatic,
+        dzpe,
+        vertical,
+        notes,
     ))
 }
 
@@ -570,7 +594,12 @@ fn assemble(
     mut notes: Vec<BandNote>,
 ) -> VibronicBand {
     let shape = band_shape(&p, dus, PROGRESSION_MEAN_QUANTA);
-    let total: f64 = p.lines.iter().map(|l| l.intensity).sum::<f64>().max(f64::MIN_POSITIVE);
+    let total: f64 = p
+        .lines
+        .iter()
+        .map(|l| l.intensity)
+        .sum::<f64>()
+        .max(f64::MIN_POSITIVE);
     let mean_total_quanta = p
         .lines
         .iter()
@@ -583,7 +612,10 @@ fn assemble(
         .map(|m| BandMode {
             mode: m.mode + 1,
             wavenumber_cm1: m.frequency * HARTREE_TO_WAVENUMBER,
-            irrep: ion_modes.get(m.mode).map(|x| x.1.clone()).unwrap_or_default(),
+            irrep: ion_modes
+                .get(m.mode)
+                .map(|x| x.1.clone())
+                .unwrap_or_default(),
             quanta_at_maximum: m.quanta_at_maximum,
             mean_quanta: m.mean_quanta,
         })
@@ -609,10 +641,14 @@ fn assemble(
     let bond_changes = bonded_pairs(&n.state.molecule)
         .into_iter()
         .map(|(a, b)| {
-            let r0 = distance(&n.state.molecule.atoms[a].position, &n.state.molecule.atoms[b].position)
-                * BOHR_TO_ANGSTROM;
-            let r1 = distance(&ion_geometry.atoms[a].position, &ion_geometry.atoms[b].position)
-                * BOHR_TO_ANGSTROM;
+            let r0 = distance(
+                &n.state.molecule.atoms[a].position,
+                &n.state.molecule.atoms[b].position,
+            ) * BOHR_TO_ANGSTROM;
+            let r1 = distance(
+                &ion_geometry.atoms[a].position,
+                &ion_geometry.atoms[b].position,
+            ) * BOHR_TO_ANGSTROM;
             BondChange {
                 atoms: [a + 1, b + 1],
                 symbols: [

@@ -100,7 +100,9 @@ impl Duschinsky {
             .chain(&self.final_frequencies)
             .any(|&w| !(w > 0.0) || !w.is_finite())
         {
-            return Err(Error::input("Duschinsky relation: a frequency is not positive"));
+            return Err(Error::input(
+                "Duschinsky relation: a frequency is not positive",
+            ));
         }
         if self.k.iter().any(|k| !k.is_finite()) || self.j.iter().flatten().any(|v| !v.is_finite())
         {
@@ -150,7 +152,11 @@ pub fn build(neutral: &HarmonicState, ion: &HarmonicState) -> Result<(Duschinsky
         )));
     }
     let motion = best_fit(&ion.geometry, &neutral.geometry, &neutral.masses);
-    let ion_geometry: Vec<[f64; 3]> = ion.geometry.iter().map(|&x| motion.apply_point(x)).collect();
+    let ion_geometry: Vec<[f64; 3]> = ion
+        .geometry
+        .iter()
+        .map(|&x| motion.apply_point(x))
+        .collect();
     let ion_modes: Vec<Vec<f64>> = ion.modes.iter().map(|c| motion.apply_vector(c)).collect();
     // M^{1/2} (x_i − x_f)
     let mut dx = vec![0.0; 3 * n];
@@ -200,7 +206,11 @@ mod tests {
             basis.push(v);
         }
         for ax in 0..3 {
-            let e = [(ax == 0) as i32 as f64, (ax == 1) as i32 as f64, (ax == 2) as i32 as f64];
+            let e = [
+                (ax == 0) as i32 as f64,
+                (ax == 1) as i32 as f64,
+                (ax == 2) as i32 as f64,
+            ];
             let mut v = vec![0.0; 3 * n];
             for a in 0..n {
                 let r = [geom[a][0] - c[0], geom[a][1] - c[1], geom[a][2] - c[2]];
@@ -257,7 +267,12 @@ mod tests {
         // Exact condition: an "ion" that is the neutral rotated and translated, with the
         // modes turned along, gives J = 1 and K = 0.
         let neutral = triatomic(
-            vec![[0.0, 0.0, 0.2], [1.4, 0.0, -0.9], [-1.4, 0.0, -0.9], [0.0, 1.1, 0.6]],
+            vec![
+                [0.0, 0.0, 0.2],
+                [1.4, 0.0, -0.9],
+                [-1.4, 0.0, -0.9],
+                [0.0, 1.1, 0.6],
+            ],
             vec![29000.0, 1837.0, 1837.0, 25000.0],
         );
         let r = axis_angle([0.2, 0.9, -0.4], 1.3);
@@ -286,7 +301,10 @@ mod tests {
         assert!(al.rms_bohr < 1e-10);
         for (f, row) in d.j.iter().enumerate() {
             for (i, &v) in row.iter().enumerate() {
-                assert!((v - if f == i { 1.0 } else { 0.0 }).abs() < 1e-10, "J {f} {i} = {v}");
+                assert!(
+                    (v - if f == i { 1.0 } else { 0.0 }).abs() < 1e-10,
+                    "J {f} {i} = {v}"
+                );
             }
         }
         for &k in &d.k {
@@ -300,14 +318,20 @@ mod tests {
         // Stated convention: K = L_fᵀ M^{1/2} (x_i − x_f). Move the ion along its own mode
         // 0 by +δ (mass-weighted): the neutral sits at −δ in ion coordinates.
         let neutral = triatomic(
-            vec![[0.0, 0.0, 0.2], [1.4, 0.0, -0.9], [-1.4, 0.0, -0.9], [0.0, 1.1, 0.6]],
+            vec![
+                [0.0, 0.0, 0.2],
+                [1.4, 0.0, -0.9],
+                [-1.4, 0.0, -0.9],
+                [0.0, 1.1, 0.6],
+            ],
             vec![29000.0, 1837.0, 1837.0, 25000.0],
         );
         let delta = 3.0;
         let mut ion = neutral.clone();
         for a in 0..ion.n_atoms() {
             for c in 0..3 {
-                ion.geometry[a][c] += delta * neutral.modes[0][3 * a + c] / neutral.masses[a].sqrt();
+                ion.geometry[a][c] +=
+                    delta * neutral.modes[0][3 * a + c] / neutral.masses[a].sqrt();
             }
         }
         let (d, _) = build(&neutral, &ion).unwrap();
@@ -320,7 +344,12 @@ mod tests {
     #[test]
     fn mismatched_atoms_are_input_errors() {
         let neutral = triatomic(
-            vec![[0.0, 0.0, 0.2], [1.4, 0.0, -0.9], [-1.4, 0.0, -0.9], [0.0, 1.1, 0.6]],
+            vec![
+                [0.0, 0.0, 0.2],
+                [1.4, 0.0, -0.9],
+                [-1.4, 0.0, -0.9],
+                [0.0, 1.1, 0.6],
+            ],
             vec![29000.0, 1837.0, 1837.0, 25000.0],
         );
         let mut ion = neutral.clone();

@@ -164,7 +164,10 @@ impl Lines {
         }
         self.kept
             .sort_by(|a, b| b.intensity.total_cmp(&a.intensity));
-        self.dropped += self.kept[self.max..].iter().map(|l| l.intensity).sum::<f64>();
+        self.dropped += self.kept[self.max..]
+            .iter()
+            .map(|l| l.intensity)
+            .sum::<f64>();
         self.kept.truncate(self.max);
     }
 }
@@ -363,10 +366,19 @@ impl Run<'_> {
                 } else {
                     1.0
                 };
-                let least = if m == 2 { self.opt.min_quanta_per_mode } else { 1 };
+                let least = if m == 2 {
+                    self.opt.min_quanta_per_mode
+                } else {
+                    1
+                };
                 let fin: Vec<(usize, u32)> = s
                     .iter()
-                    .map(|&k| (k, tail_bound(&progs[k], frac).max(least).clamp(1, bounds[k])))
+                    .map(|&k| {
+                        (
+                            k,
+                            tail_bound(&progs[k], frac).max(least).clamp(1, bounds[k]),
+                        )
+                    })
                     .collect();
                 let got = self.block(init, &fin, pop, e0);
                 captured += got;
@@ -474,7 +486,15 @@ pub fn thermal_levels(
         }
     }
     let mut cur = Vec::new();
-    walk(0, &x, p0, min_population.min(p0), &mut cur, &mut out, hard_cap);
+    walk(
+        0,
+        &x,
+        p0,
+        min_population.min(p0),
+        &mut cur,
+        &mut out,
+        hard_cap,
+    );
     out.sort_by(|a, b| b.1.total_cmp(&a.1));
     out.truncate(max_levels.max(1));
     out
@@ -734,6 +754,9 @@ mod tests {
                 }
             }
         }
-        assert!(stronger <= 20, "{stronger} exact lines are stronger than the weakest kept");
+        assert!(
+            stronger <= 20,
+            "{stronger} exact lines are stronger than the weakest kept"
+        );
     }
 }

@@ -195,7 +195,11 @@ impl Block {
     }
 
     pub fn new(init: &[(usize, u32)], fin: &[(usize, u32)]) -> Self {
-        let dims: Vec<usize> = init.iter().chain(fin).map(|&(_, q)| q as usize + 1).collect();
+        let dims: Vec<usize> = init
+            .iter()
+            .chain(fin)
+            .map(|&(_, q)| q as usize + 1)
+            .collect();
         let mut strides = vec![1usize; dims.len()];
         for p in (0..dims.len().saturating_sub(1)).rev() {
             strides[p] = strides[p + 1] * dims[p + 1];
@@ -231,14 +235,18 @@ impl Block {
                     let q = digit[pl] - (pl == pk) as u32;
                     if q > 0 {
                         let l = self.fin[pl - mi].0;
-                        s += co.a[k * n + l] * sqrt[q as usize] * self.values[prev - self.strides[pl]];
+                        s += co.a[k * n + l]
+                            * sqrt[q as usize]
+                            * self.values[prev - self.strides[pl]];
                     }
                 }
                 for pi in 0..mi {
                     let q = digit[pi];
                     if q > 0 {
                         let i = self.init[pi].0;
-                        s += co.e[i * n + k] * sqrt[q as usize] * self.values[prev - self.strides[pi]];
+                        s += co.e[i * n + k]
+                            * sqrt[q as usize]
+                            * self.values[prev - self.strides[pi]];
                     }
                 }
                 s / sqrt[digit[pk] as usize]
@@ -252,7 +260,9 @@ impl Block {
                     let q = digit[pi] - (pi == pj) as u32;
                     if q > 0 {
                         let i = self.init[pi].0;
-                        s += co.c[j * n + i] * sqrt[q as usize] * self.values[prev - self.strides[pi]];
+                        s += co.c[j * n + i]
+                            * sqrt[q as usize]
+                            * self.values[prev - self.strides[pi]];
                     }
                 }
                 s / sqrt[digit[pj] as usize]
@@ -275,7 +285,9 @@ impl Block {
     pub fn for_each_interior(&self, mut f: impl FnMut(&[u32], f64)) {
         let mi = self.init.len();
         let mf = self.fin.len();
-        let base: usize = (0..mi).map(|p| self.init[p].1 as usize * self.strides[p]).sum();
+        let base: usize = (0..mi)
+            .map(|p| self.init[p].1 as usize * self.strides[p])
+            .sum();
         let dims: Vec<u32> = self.fin.iter().map(|&(_, q)| q).collect();
         let mut w = vec![1u32; mf];
         if mf == 0 {
@@ -363,7 +375,10 @@ mod tests {
         for m in 0..=10u32 {
             let want = o00 * factorial(2 * m) / (4f64.powi(m as i32) * factorial(m).powi(2))
                 * r.powi(2 * m as i32);
-            assert!((blk.values[2 * m as usize].powi(2) - want).abs() < 1e-14, "m={m}");
+            assert!(
+                (blk.values[2 * m as usize].powi(2) - want).abs() < 1e-14,
+                "m={m}"
+            );
             if m < 10 {
                 assert!(blk.values[2 * m as usize + 1].abs() < 1e-15);
             }
@@ -464,7 +479,10 @@ mod tests {
                 worst = worst.max((blk.values[r * ncol + c] - grid[r * ncol + c]).abs());
             }
         }
-        assert!(worst < 1e-9, "largest deviation from the grid integrals {worst:e}");
+        assert!(
+            worst < 1e-9,
+            "largest deviation from the grid integrals {worst:e}"
+        );
         // and the 0–0 value is not trivially small
         assert!(co.overlap00 > 0.3);
     }
@@ -476,7 +494,10 @@ mod tests {
         let co = FcCoefficients::new(&d);
         let mut blk = Block::new(&[], &[(0, 3), (1, 2)]);
         blk.evaluate(&co);
-        assert_eq!(co.overlap(&[0, 0], &[3, 2]), blk.values[blk.values.len() - 1]);
+        assert_eq!(
+            co.overlap(&[0, 0], &[3, 2]),
+            blk.values[blk.values.len() - 1]
+        );
         assert_eq!(co.overlap(&[0, 0], &[0, 0]), co.overlap00);
     }
 }

@@ -49,8 +49,15 @@ impl HarmonicState {
                 self.masses.len()
             )));
         }
-        if let Some(a) = self.masses.iter().position(|&m| !(m > 0.0) || !m.is_finite()) {
-            return Err(Error::input(format!("{what}: mass of atom {} is not positive", a + 1)));
+        if let Some(a) = self
+            .masses
+            .iter()
+            .position(|&m| !(m > 0.0) || !m.is_finite())
+        {
+            return Err(Error::input(format!(
+                "{what}: mass of atom {} is not positive",
+                a + 1
+            )));
         }
         if self.frequencies.len() != self.modes.len() {
             return Err(Error::input(format!(

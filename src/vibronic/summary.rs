@@ -165,10 +165,7 @@ pub fn gaussian_envelope(
 
 /// Position of the highest point of a sampled curve (None if empty).
 pub fn envelope_maximum(curve: &[(f64, f64)]) -> Option<(f64, f64)> {
-    curve
-        .iter()
-        .copied()
-        .max_by(|a, b| a.1.total_cmp(&b.1))
+    curve.iter().copied().max_by(|a, b| a.1.total_cmp(&b.1))
 }
 
 #[cfg(test)]
@@ -236,7 +233,10 @@ mod tests {
         assert!((area - 2.0).abs() < 1e-9);
         let (emax, ymax) = envelope_maximum(&c).unwrap();
         assert!((emax - 0.5).abs() < 1e-12);
-        let half = c.iter().find(|p| (p.0 - (0.5 + f / 2.0)).abs() < step / 2.0).unwrap();
+        let half = c
+            .iter()
+            .find(|p| (p.0 - (0.5 + f / 2.0)).abs() < step / 2.0)
+            .unwrap();
         assert!((half.1 / ymax - 0.5).abs() < 1e-3);
     }
 }

@@ -10,8 +10,8 @@
 //! rotations, so the fit has zero residual.
 
 use super::ops::{self, Mat3};
-use crate::basis::solid_harmonics;
 use crate::basis::cartesian::components;
+use crate::basis::solid_harmonics;
 
 /// Values of a shell's angular functions (AO order of `basis::shell`) at `u`.
 pub fn angular_values(l: usize, pure: bool, u: &[f64; 3]) -> Vec<f64> {

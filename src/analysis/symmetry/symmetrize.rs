@@ -29,7 +29,11 @@ pub fn symmetrize(mol: &Molecule, tol: f64) -> (Molecule, f64, PointGroup) {
                 sum[k] += back[k];
             }
         }
-        let new = [o[0] + sum[0] / nops, o[1] + sum[1] / nops, o[2] + sum[2] / nops];
+        let new = [
+            o[0] + sum[0] / nops,
+            o[1] + sum[1] / nops,
+            o[2] + sum[2] / nops,
+        ];
         max_disp = max_disp.max(ops::norm(&ops::sub(&new, &atom.position)));
         atom.position = new;
     }

@@ -12,10 +12,10 @@
 //! (Σ over the four centres of ∂/∂R = 0) saves the derivatives of the centre that occurs
 //! most often in a quartet.
 
+use crate::basis::cartesian::{components, n_cartesian};
 use crate::basis::normalize::contracted_coefficients;
 use crate::basis::solid_harmonics;
 use crate::basis::{BasisSet, Shell};
-use crate::basis::cartesian::{components, n_cartesian};
 use crate::integrals::transform::transform_axis;
 use crate::integrals::EriEngine;
 use bandcast_linalg::Mat;

@@ -14,9 +14,9 @@
 //! Pairs of shells run in parallel; each pair returns its own small vector and the vectors
 //! are added in pair order, so the result does not depend on the thread count.
 
+use crate::basis::cartesian::components;
 use crate::basis::normalize::contracted_coefficients;
 use crate::basis::BasisSet;
-use crate::basis::cartesian::components;
 use crate::integrals::hermite_coulomb::{hermite_r, r_index, RScratch};
 use crate::integrals::hermite_expansion::{e_index, e_len, hermite_e};
 use crate::integrals::one_electron::{gaussian_product, shell_pair_block, PrimPair};
