@@ -7,7 +7,12 @@ use pyo3::create_exception;
 use pyo3::exceptions::{PyRuntimeError, PyValueError};
 use pyo3::prelude::*;
 
-create_exception!(_native, InputError, PyValueError, "Bad input: the command line's exit code 2.");
+create_exception!(
+    _native,
+    InputError,
+    PyValueError,
+    "Bad input: the command line's exit code 2."
+);
 create_exception!(
     _native,
     ComputationError,
