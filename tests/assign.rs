@@ -66,8 +66,8 @@ fn lines(v: &[(&str, f64)]) -> Vec<PredictedLine> {
 fn water_he1_bands_are_assigned() {
     // Measured positions: H2O vertical IEs 12.62 (1b1), 14.74 (3a1), 18.51 (1b2) eV, Kimura
     // et al., Handbook of HeI Photoelectron Spectra (1981) — 1b1 published, rest memory
-    // (REFERENCE-DATA §3). Prediction: hand-made Koopmans-like values (HF −ε(HOMO) of water is
-    // 13.82 eV at HF/def2-TZVPP, REFERENCE-DATA §2; the other two placed with similar offsets).
+    // (docs/reference-data.md §3). Prediction: hand-made Koopmans-like values (HF −ε(HOMO) of water is
+    // 13.82 eV at HF/def2-TZVPP, docs/reference-data.md §2; the other two placed with similar offsets).
     let measured = synthetic(
         &[12.62, 14.74, 18.51],
         &[1.0, 0.7, 0.5],
@@ -105,8 +105,8 @@ fn water_he1_bands_are_assigned() {
 #[test]
 fn nitrogen_he1_bands_are_assigned() {
     // N2: 3σg 15.58, 1πu 16.93, 2σu 18.75 eV (Kimura 1981; Turner 1970 — 3σg published,
-    // rest memory; REFERENCE-DATA §3). Hand-made prediction in the right order (as a
-    // correlated method gives it; Koopmans would swap 3σg and 1πu, REFERENCE-DATA §2 note).
+    // rest memory; docs/reference-data.md §3). Hand-made prediction in the right order (as a
+    // correlated method gives it; Koopmans would swap 3σg and 1πu, docs/reference-data.md §2 note).
     let measured = synthetic(
         &[15.58, 16.93, 18.75],
         &[1.0, 0.9, 0.4],
@@ -211,7 +211,7 @@ fn predicted_lines(xyz: &str, basis: &str) -> Vec<PredictedLine> {
         .collect()
 }
 
-/// Water geometry of REFERENCE-DATA §1 (Crawford group programming projects), in Å.
+/// Water geometry of docs/reference-data.md §1 (Crawford group programming projects), in Å.
 const WATER_XYZ: &str = "3\nwater\nO 0.000000 -0.075791844 0.0\nH 0.866811829 0.601435779 0.0\nH -0.866811829 0.601435779 0.0\n";
 /// N2 at the GW100 experimental bond length 1.0977 Å (van Setten et al. 2015).
 const N2_XYZ: &str = "2\nnitrogen\nN 0 0 0\nN 0 0 1.0977\n";
@@ -358,7 +358,7 @@ fn malformed_measured_file_exits_2_naming_the_line() {
     let data = dir.join("trace.csv");
     std::fs::write(&data, "energy,intensity\n10.0,1.0\n10.1,1.2\n10.2,oops\n").unwrap();
     let xyz = dir.join("water.xyz");
-    // Water geometry of REFERENCE-DATA §1 (Crawford group projects), in Å.
+    // Water geometry of docs/reference-data.md §1 (Crawford group projects), in Å.
     std::fs::write(
         &xyz,
         "3\nwater\nO 0.000000 -0.075791844 0.0\nH 0.866811829 0.601435779 0.0\nH -0.866811829 0.601435779 0.0\n",

@@ -6,7 +6,7 @@
 //! the 1s and the valence the freedom to contract around the hole, which is what moves a
 //! contracted valence basis most (README, "bandcast core", measures plain vs uncontracted).
 //! Hartree–Fock ΔSCF has no relativistic correction and no correlation: absolute values
-//! within about 1 eV is the common-practice expectation (REFERENCE-DATA.md §4).
+//! within about 1 eV is the common-practice expectation (docs/reference-data.md §4).
 
 use std::path::{Path, PathBuf};
 use std::process::Command;

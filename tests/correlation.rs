@@ -71,7 +71,7 @@ fn water_sto3g_ccsd_and_mp2_correlation_energies() {
 }
 
 /// ΔCCSD(T)/def2-TZVPP HOMO IEs (eV): Krause, Harding & Klopper, Mol. Phys. 113 (2015)
-/// 1952, as listed in REFERENCE-DATA.md §2 (published).
+/// 1952, as listed in docs/reference-data.md §2 (published).
 const DELTA_CCSDT: &[(&str, f64)] = &[
     ("water", 12.565),
     ("nitrogen", 15.4767),
@@ -125,7 +125,7 @@ fn gw100_homo_ionization_energies() {
     );
     assert!(mad(&errs_cc) < 0.15);
     assert!(mad(&errs_mp) < 0.30);
-    // Koopmans is far worse on this set (F2 alone is off by > 2 eV, REFERENCE-DATA.md §2).
+    // Koopmans is far worse on this set (F2 alone is off by > 2 eV, docs/reference-data.md §2).
     assert!(mad(&errs_k) > 3.0 * mad(&errs_cc));
 }
 
@@ -170,7 +170,7 @@ fn bands(
 /// N2: EOM-IP-CCSD restores the order 3σg < 1πu < 2σu that Koopmans' theorem gets wrong,
 /// each band within 0.3 eV of He I vertical IEs 15.58, 16.93, 18.75 eV (Kimura et al.,
 /// Handbook of HeI Photoelectron Spectra (1981); Turner et al. (1970); 3σg published, the
-/// others from memory — REFERENCE-DATA.md §3).
+/// others from memory — docs/reference-data.md §3).
 #[test]
 fn nitrogen_band_order() {
     let mol = gw100("nitrogen");
@@ -192,7 +192,7 @@ fn nitrogen_band_order() {
     assert_ne!(rep.states[0].dominant_orbital, wfn.n_alpha() - 1);
 }
 
-/// F2: 1πg, 1πu, 3σg within 0.3 eV of He I 15.7, 18.8, 21.1 eV (15.7: REFERENCE-DATA.md
+/// F2: 1πg, 1πu, 3σg within 0.3 eV of He I 15.7, 18.8, 21.1 eV (15.7: docs/reference-data.md
 /// §2 experiment column, published; 18.8 and 21.1 from memory).
 #[test]
 fn fluorine_bands() {
@@ -215,7 +215,7 @@ fn fluorine_bands() {
 
 /// Water's four valence bands 1b1, 3a1, 1b2, 2a1 against 12.62, 14.74, 18.51, 32.2 eV
 /// (Kimura et al. 1981; 2a1 from X-ray PES; 1b1 published, the rest from memory —
-/// REFERENCE-DATA.md §3). Tolerance 0.5 eV: the 1b2 band is broad and 2a1 is a
+/// docs/reference-data.md §3). Tolerance 0.5 eV: the 1b2 band is broad and 2a1 is a
 /// satellite-split inner-valence band. The inner-valence 2a1 state, targeted from its
 /// Koopmans orbital, carries clearly less one-hole weight than the outer-valence bands
 /// (intensity borrowed by 2h1p satellites; common practice).

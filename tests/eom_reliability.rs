@@ -90,7 +90,7 @@ fn tiny_budget_falls_back_to_ep2_with_reason() {
 /// converge in 120 iterations" before (one inner-valence 3s root drifted off its orbital
 /// and sank every band). Now every band is reported, and the HOMO (2πg) is within 0.5 eV of
 /// ΔCCSD(T)/def2-TZVPP 11.41 eV (Krause, Harding & Klopper, Mol. Phys. 113 (2015) 1952;
-/// from memory — the value is not in REFERENCE-DATA.md §2; the experimental vertical IE is
+/// from memory — the value is not in docs/reference-data.md §2; the experimental vertical IE is
 /// 11.49 eV, also from memory). A sanity bound, not a precision check: def2-SVP is a small
 /// basis.
 #[test]

@@ -1,7 +1,7 @@
 //! Valence ionization energies against published values.
 //!
 //! Geometries: GW100 set (van Setten et al., J. Chem. Theory Comput. 11 (2015) 5665), copied
-//! from shared/data/gw100. Reference values: shared REFERENCE-DATA.md §2 and §3, sources
+//! from shared/data/gw100. Reference values: shared docs/reference-data.md §2 and §3, sources
 //! named beside each check.
 
 use bandcast::basis::BasisSet;

@@ -107,7 +107,7 @@ fn kinetic_energies_at_the_four_sources() {
         assert!((p.kinetic_ev(be) - ke).abs() < 1e-9, "{p:?}");
         assert!((p.binding_ev(ke) - be).abs() < 1e-9);
     }
-    assert!(!Photon::He1.reaches(32.2)); // water 2a1 is beyond He I (REFERENCE-DATA §3)
+    assert!(!Photon::He1.reaches(32.2)); // water 2a1 is beyond He I (docs/reference-data.md §3)
     assert!(Photon::He2.reaches(32.2));
 }
 
@@ -139,7 +139,7 @@ fn band(label: &str, ie: f64, makeup: &[(&str, &str, f64)], region: Region) -> B
 
 #[test]
 fn unreachable_bands_are_left_out_and_said() {
-    // Hand-made water-like bands (positions from REFERENCE-DATA §3, Kimura 1981 / X-ray PES).
+    // Hand-made water-like bands (positions from docs/reference-data.md §3, Kimura 1981 / X-ray PES).
     let bands = vec![
         band("1b1", 12.62, &[], Region::Valence),
         band("2a1", 32.2, &[], Region::Valence),
@@ -295,7 +295,7 @@ fn core_levels_get_lifetime_width() {
         },
         &mut notes,
     );
-    // C 1s lifetime ≈ 0.1 eV (REFERENCE-DATA §4, memory; lifetime.rs table, memory).
+    // C 1s lifetime ≈ 0.1 eV (docs/reference-data.md §4, memory; lifetime.rs table, memory).
     assert!((s[0].lorentzian_fwhm_ev - 0.1).abs() < 0.03);
 }
 

@@ -361,7 +361,7 @@ mod scf_labels {
     }
 
     /// N2: 1σg, 1σu, 2σg, 2σu, then Koopmans puts 1πu above 3σg — the known Koopmans failure
-    /// for N2 (REFERENCE-DATA.md; experiment has 3σg first).
+    /// for N2 (docs/reference-data.md; experiment has 3σg first).
     #[test]
     fn nitrogen() {
         let (_, labels, nocc) = occupied_labels(&super::gw100("nitrogen"), "cc-pvdz");
@@ -374,7 +374,7 @@ mod scf_labels {
     }
 
     /// Methane's HOMO is the threefold 1t2; benzene's the twofold 1e1g (common practice;
-    /// REFERENCE-DATA.md benzene); ethylene's π HOMO is 1b3u in Mulliken's axes.
+    /// docs/reference-data.md benzene); ethylene's π HOMO is 1b3u in Mulliken's axes.
     #[test]
     fn degenerate_homos() {
         let (_, labels, nocc) = occupied_labels(&super::gw100("methane"), "cc-pvdz");

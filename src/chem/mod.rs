@@ -2,6 +2,8 @@
 //! frozen-core rule, and a standard-geometry alkane builder (`alkane`).
 pub mod alkane;
 pub mod elements;
+#[cfg(test)]
+pub mod fixtures;
 pub mod frozen_core;
 pub mod masses;
 pub mod molecule;

@@ -140,17 +140,9 @@ fn check_shift_atom(mol: &Molecule, r: usize, targets: &[usize]) -> Result<()> {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::chem::xyz::{parse_xyz, LengthUnit};
     use crate::core_level::options::TargetSelection;
 
-    fn ethanol() -> Molecule {
-        parse_xyz(
-            "9\nethanol\nC 0 0 0\nC 1.52 0 0\nO 2.0 1.3 0\nH 0 1 0\nH 0 -0.5 0.9\nH 0 -0.5 -0.9\n\
-             H 1.9 -0.5 0.9\nH 1.9 -0.5 -0.9\nH 2.9 1.3 0\n",
-            LengthUnit::Angstrom,
-        )
-        .unwrap()
-    }
+    use crate::chem::fixtures::rough_ethanol as ethanol;
 
     #[test]
     fn one_unit_per_distinct_hole_unless_the_basis_is_plain() {

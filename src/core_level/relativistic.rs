@@ -68,7 +68,7 @@ mod tests {
         for ((el, i, v), w) in c.iter().zip(want) {
             assert!((v - w).abs() < 0.006, "{el} at {i} eV: {v:.4} vs {w}");
         }
-        // Tenths of an eV by O and F, small for C (REFERENCE-DATA.md §4, common practice).
+        // Tenths of an eV by O and F, small for C (docs/reference-data.md §4, common practice).
         assert!(c[0].2 < 0.1);
         assert!((0.1..0.5).contains(&c[2].2) && (0.1..1.0).contains(&c[3].2));
     }

@@ -94,16 +94,8 @@ fn present_elements(mol: &Molecule) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::chem::xyz::{parse_xyz, LengthUnit};
 
-    fn ethanol() -> Molecule {
-        parse_xyz(
-            "9\nethanol\nC 0 0 0\nC 1.52 0 0\nO 2.0 1.3 0\nH 0 1 0\nH 0 -0.5 0.9\nH 0 -0.5 -0.9\n\
-             H 1.9 -0.5 0.9\nH 1.9 -0.5 -0.9\nH 2.9 1.3 0\n",
-            LengthUnit::Angstrom,
-        )
-        .unwrap()
-    }
+    use crate::chem::fixtures::rough_ethanol as ethanol;
 
     #[test]
     fn default_takes_heavy_atoms_only() {

@@ -316,25 +316,8 @@ impl CholeskyVectors {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::chem::{Atom, Molecule};
 
-    /// Water in bohr (Crawford group Programming Projects geometry, see REFERENCE-DATA.md).
-    pub fn water() -> Molecule {
-        Molecule::new(vec![
-            Atom {
-                z: 8,
-                position: [0.0, -0.143225816552, 0.0],
-            },
-            Atom {
-                z: 1,
-                position: [1.638036840407, 1.136548822547, 0.0],
-            },
-            Atom {
-                z: 1,
-                position: [-1.638036840407, 1.136548822547, 0.0],
-            },
-        ])
-    }
+    pub use crate::chem::fixtures::crawford_water as water;
 
     /// Every reconstructed integral lies within the threshold of the exact one (the
     /// Cauchy–Schwarz bound of the decomposition, Koch et al. 2003).

@@ -519,28 +519,12 @@ mod tests {
         crate::scf::run(mol, basis, &opts).unwrap()
     }
 
-    fn water() -> Molecule {
-        // Crawford group Programming Projects geometry (bohr), REFERENCE-DATA.md §1.
-        Molecule::new(vec![
-            Atom {
-                z: 8,
-                position: [0.0, -0.143225816552, 0.0],
-            },
-            Atom {
-                z: 1,
-                position: [1.638036840407, 1.136548822547, 0.0],
-            },
-            Atom {
-                z: 1,
-                position: [-1.638036840407, 1.136548822547, 0.0],
-            },
-        ])
-    }
+    use crate::chem::fixtures::crawford_water as water;
 
     /// Water/STO-3G, all electrons: CCSD correlation energy −0.070680088376 Eh and MP2
     /// −0.049149636120 Eh (Crawford group Programming Projects #5 and #4, same geometry as
     /// their SCF project; from memory — tolerance 1e-6 Eh allows for a slip in the last
-    /// digits; the SCF energy −74.942079928192 Eh is in REFERENCE-DATA.md §1).
+    /// digits; the SCF energy −74.942079928192 Eh is in docs/reference-data.md §1).
     #[test]
     fn water_sto3g_ccsd_and_mp2() {
         let mol = water();
