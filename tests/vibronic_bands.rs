@@ -153,7 +153,11 @@ fn h2_n2_h2o_bands_against_measured_spectra() {
         0,
         "3σg: 0–0 not strongest"
     );
-    assert!(r10 < 0.3, "3σg v′=1/v′=0 = {r10:.3}, expected about 0.1");
+    // about 0.1 (from memory); the harmonic HF model is allowed a factor of ~2 either way
+    assert!(
+        (0.04..0.2).contains(&r10),
+        "3σg v′=1/v′=0 = {r10:.3}, expected about 0.1"
+    );
     assert!(
         p.mean_total_quanta > 2.0 * s.mean_total_quanta,
         "1πu progression not clearly longer: {} vs {}",
