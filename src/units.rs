@@ -38,3 +38,5 @@ mod tests {
 pub const DALTON_TO_ELECTRON_MASS: f64 = 1822.888486209;
 /// 1 hartree in wavenumbers, cm⁻¹ (CODATA 2018: 2.1947463136320e5).
 pub const HARTREE_TO_WAVENUMBER: f64 = 219474.63136320;
+/// Boltzmann constant in hartree per kelvin (CODATA 2018: k_B = 3.1668115634556e-6 Eh/K).
+pub const BOLTZMANN_HARTREE_PER_KELVIN: f64 = 3.1668115634556e-6;

@@ -55,9 +55,21 @@ pub struct Args {
     /// Vibrational structure of the --count (default 3) lowest bands: optimise the neutral
     /// and each cation (hole held by the maximum overlap method), both harmonic analyses,
     /// Franck–Condon progression with Duschinsky rotation; adiabatic, vertical and maximum
-    /// positions (HF ΔSCF energies) and the progression-forming modes.
+    /// positions (correlated vertical energy + HF relaxation) and the progression-forming
+    /// modes. --memory bounds it (refused before any work when it cannot fit).
     #[arg(long, conflicts_with_all = ["method", "window", "integrals", "correlate_core"])]
     pub vibronic: bool,
+    /// With --vibronic: populate the neutral's vibrational levels at this temperature in
+    /// kelvin (Boltzmann), adding hot-band lines below the 0–0 line. Default 0 K: the
+    /// neutral in its lowest level only (a cold jet, or a good approximation at room
+    /// temperature when every mode lies well above kT ≈ 208 cm⁻¹).
+    #[arg(long, value_name = "K", requires = "vibronic")]
+    pub temperature: Option<f64>,
+    /// With --vibronic: basis of the correlated vertical energies (default: --basis). The
+    /// lone-pair IEs of first-row molecules need diffuse functions: water's 1b1 in cc-pVDZ
+    /// is 0.8 eV below aug-cc-pVTZ (docs/vibronic-bands.md).
+    #[arg(long, value_name = "NAME", requires = "vibronic")]
+    pub vertical_basis: Option<String>,
     // --- end vibronic ---
 }
 
@@ -66,13 +78,15 @@ pub fn run(args: Args) -> Result<()> {
     let mol = args.molecule.load()?;
     // --- vibronic bands (cli/vibronic.rs) ---
     if args.vibronic {
-        return super::vibronic::ionize(
-            &mol,
-            &args.molecule.file,
-            &args.basis,
-            args.count,
-            args.json,
-        );
+        let set = super::vibronic::Settings {
+            basis: &args.basis,
+            count: args.count,
+            temperature_k: args.temperature.unwrap_or(0.0),
+            vertical_basis: args.vertical_basis.as_deref(),
+            memory_gib: args.memory,
+            verbose: args.verbose,
+        };
+        return super::vibronic::ionize(&mol, &args.molecule.file, &set, args.json);
     }
     // --- end vibronic ---
     const GIB: f64 = (1u64 << 30) as f64;

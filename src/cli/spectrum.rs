@@ -66,13 +66,26 @@ pub struct Args {
     pub json: bool,
     // --- vibronic bands (cli/vibronic.rs) ---
     /// Draw the lowest bands (--vibronic-count, default 3) as broadened vibronic stick
-    /// spectra (harmonic Franck–Condon with Duschinsky rotation, HF ΔSCF positions); default
+    /// spectra (harmonic Franck–Condon with Duschinsky rotation, correlated vertical energy +
+    /// HF relaxation for the positions); default
     /// --fwhm 0.03 eV, a good He I spectrometer's resolution (common practice). One molecule.
     #[arg(long)]
     pub vibronic: bool,
     /// Number of bands with --vibronic.
     #[arg(long, value_name = "N", requires = "vibronic")]
     pub vibronic_count: Option<usize>,
+    /// With --vibronic: populate the neutral's vibrational levels at this temperature in
+    /// kelvin (Boltzmann), adding hot-band lines below the 0–0 line. Default 0 K: the
+    /// neutral in its lowest level only.
+    #[arg(long, value_name = "K", requires = "vibronic")]
+    pub temperature: Option<f64>,
+    /// With --vibronic: basis of the correlated vertical energies (default: --basis).
+    #[arg(long, value_name = "NAME", requires = "vibronic")]
+    pub vertical_basis: Option<String>,
+    /// With --vibronic: write a self-contained HTML page (the figure with its sticks and a
+    /// table per band).
+    #[arg(long, value_name = "OUT.html", requires = "vibronic")]
+    pub html: Option<PathBuf>,
     // --- end vibronic ---
 }
 
@@ -108,16 +121,27 @@ pub fn run(args: Args) -> Result<()> {
                 "--vibronic draws one molecule: give one file",
             ));
         }
+        check_output_dir(args.html.as_deref())?;
         let mol = args.state.load(&inputs[0].path)?;
+        let set = super::vibronic::Settings {
+            basis: &args.predict.basis,
+            count: args.vibronic_count,
+            temperature_k: args.temperature.unwrap_or(0.0),
+            vertical_basis: args.vertical_basis.as_deref(),
+            memory_gib: args.predict.memory,
+            verbose: args.predict.verbose,
+        };
         return super::vibronic::spectrum(
             &mol,
             &inputs[0].path,
-            &args.predict.basis,
-            args.vibronic_count,
+            &set,
             fwhm,
             args.window,
-            args.svg.as_deref(),
-            args.csv.as_deref(),
+            super::vibronic::Outputs {
+                svg: args.svg.as_deref(),
+                csv: args.csv.as_deref(),
+                html: args.html.as_deref(),
+            },
             args.json,
         );
     }

@@ -138,3 +138,107 @@ pub fn assignment_report(ctx: &ReportContext, cmp: &Comparison, svg: &str) -> St
     o.push_str("</body></html>\n");
     o
 }
+
+// --- vibronic bands (`spectrum --vibronic --html`; figure shared with report::vibronic) ---
+
+/// Lines listed per band on the vibronic page (strongest first, shown by energy).
+const VIBRONIC_PAGE_LINES: usize = 10;
+
+/// Self-contained page of `bandcast spectrum --vibronic --html`: the envelope with the
+/// progression sticks under it (the same figure as `--svg`: `vibronic::vibronic_plot`),
+/// then per band its positions, progression-forming modes, strongest lines and notes.
+pub fn vibronic_page(
+    molecule: &str,
+    basis: &str,
+    point_group: &str,
+    temperature_k: f64,
+    bands: &[crate::vibronic::band::VibronicBand],
+    curve: &super::vibronic::CurveJson,
+) -> String {
+    use super::vibronic::{electronic, quanta_text, temperature_text, vibronic_plot};
+    let mut o = String::new();
+    let _ = write!(
+        o,
+        "<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\"><title>Vibronic bands: {}</title><style>{CSS}</style></head><body>\n",
+        escape(molecule)
+    );
+    let _ = writeln!(o, "<h1>Vibronic bands: {}</h1>", escape(molecule));
+    let _ = writeln!(
+        o,
+        "<p class=\"meta\">Energies: {} &middot; harmonic modes HF/{} &middot; neutral point group {} &middot; {} &middot; Gaussian {:.3} eV FWHM</p>",
+        escape(&electronic(bands)),
+        escape(basis),
+        escape(point_group),
+        escape(&temperature_text(temperature_k)),
+        curve.fwhm_ev
+    );
+    o.push_str(&vibronic_plot(molecule, bands, curve).render());
+    for b in bands {
+        let name = b
+            .label
+            .clone()
+            .unwrap_or_else(|| format!("orbital {}", b.orbital));
+        let _ = writeln!(
+            o,
+            "<h2>{} <span class=\"small\">(orbital {}, {} model, lines hold {:.1} %)</span></h2>",
+            escape(&name),
+            b.orbital,
+            match b.model {
+                crate::vibronic::band::BandModel::Duschinsky => "Duschinsky",
+                crate::vibronic::band::BandModel::LinearCoupling => "linear coupling",
+            },
+            100.0 * b.captured_fraction
+        );
+        let _ = writeln!(
+            o,
+            "<table><tr><th>adiabatic (eV)</th><th>vertical (eV)</th><th>maximum (eV)</th><th>mean quanta</th></tr><tr><td>{:.3}</td><td>{:.3}</td><td>{:.3}</td><td>{:.2}</td></tr></table>",
+            b.adiabatic_ev, b.vertical_ev, b.maximum_ev, b.mean_total_quanta
+        );
+        if !b.progression_modes.is_empty() {
+            o.push_str("<table><tr><th>mode</th><th>cm&#8315;&sup1; (ion)</th><th class=\"l\">irrep</th><th>quanta at maximum</th><th>mean quanta</th></tr>\n");
+            for m in &b.progression_modes {
+                let _ = writeln!(
+                    o,
+                    "<tr><td>{}</td><td>{:.1}</td><td class=\"l\">{}</td><td>{}</td><td>{:.2}</td></tr>",
+                    m.mode,
+                    m.wavenumber_cm1,
+                    escape(&m.irrep),
+                    m.quanta_at_maximum,
+                    m.mean_quanta
+                );
+            }
+            o.push_str("</table>\n");
+        }
+        let mut strongest: Vec<_> = b.lines.iter().collect();
+        strongest.sort_by(|x, y| y.intensity.total_cmp(&x.intensity));
+        strongest.truncate(VIBRONIC_PAGE_LINES);
+        strongest.sort_by(|x, y| x.energy_ev.total_cmp(&y.energy_ev));
+        o.push_str(
+            "<table><tr><th>line (eV)</th><th>intensity</th><th class=\"l\">quanta</th></tr>\n",
+        );
+        for l in strongest {
+            let _ = writeln!(
+                o,
+                "<tr><td>{:.3}</td><td>{:.4}</td><td class=\"l\">{}</td></tr>",
+                l.energy_ev,
+                l.intensity,
+                escape(&quanta_text(l))
+            );
+        }
+        o.push_str("</table>\n");
+        if !b.notes.is_empty() {
+            o.push_str("<ul class=\"small\">");
+            for n in &b.notes {
+                let _ = write!(o, "<li>{}</li>", escape(&n.to_string()));
+            }
+            o.push_str("</ul>\n");
+        }
+    }
+    let _ = writeln!(
+        o,
+        "<p class=\"note\">{}</p>",
+        escape(super::vibronic::VIBRONIC_GUIDANCE)
+    );
+    o.push_str("</body></html>\n");
+    o
+}

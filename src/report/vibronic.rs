@@ -46,8 +46,10 @@ fn band_name(b: &VibronicBand) -> String {
         .unwrap_or_else(|| format!("orbital {}", b.orbital))
 }
 
-fn quanta_text(l: &BandLine) -> String {
-    if l.quanta.is_empty() {
+/// The line's ion quanta ("0–0", "2ν1 + 1ν3"), and for a hot band the neutral's initial
+/// level after a ← ("0–0 ← 1ν2″": from one quantum of the neutral's mode 2).
+pub fn quanta_text(l: &BandLine) -> String {
+    let ion = if l.quanta.is_empty() {
         "0–0".to_string()
     } else {
         l.quanta
@@ -55,6 +57,17 @@ fn quanta_text(l: &BandLine) -> String {
             .map(|q| format!("{}ν{}", q.quanta, q.mode))
             .collect::<Vec<_>>()
             .join(" + ")
+    };
+    if l.neutral_quanta.is_empty() {
+        ion
+    } else {
+        let from = l
+            .neutral_quanta
+            .iter()
+            .map(|q| format!("{}ν{}″", q.quanta, q.mode))
+            .collect::<Vec<_>>()
+            .join(" + ");
+        format!("{ion} ← {from}")
     }
 }
 
@@ -63,14 +76,16 @@ pub fn bands_table(
     molecule: &str,
     basis: &str,
     point_group: &str,
+    temperature_k: f64,
     bands: &[VibronicBand],
 ) -> String {
     let mut s = String::new();
     let _ = writeln!(
         s,
         "{molecule}: vibronic bands in {basis} (neutral point group {point_group}); \
-         energies {}, harmonic modes HF/{basis} (modes counted from the lowest wavenumber)",
-        electronic(bands)
+         energies {}, harmonic modes HF/{basis} (modes counted from the lowest wavenumber); {}",
+        electronic(bands),
+        temperature_text(temperature_k)
     );
     for b in bands {
         let _ = writeln!(s);
@@ -174,6 +189,8 @@ pub struct BandsJson<'a> {
     pub basis: &'a str,
     pub electronic_method: String,
     pub neutral_point_group: &'a str,
+    /// Temperature of the neutral's vibrational population (0 = v = 0 only).
+    pub temperature_k: f64,
     pub bands: &'a [VibronicBand],
     /// Present for `spectrum --vibronic`: the broadened curve.
     #[serde(skip_serializing_if = "Option::is_none")]
@@ -188,6 +205,15 @@ pub struct CurveJson {
     pub band_weights: &'static str,
     pub energy_ev: Vec<f64>,
     pub intensity: Vec<f64>,
+}
+
+/// "neutral in v = 0 (0 K)" or "neutral's levels at 300 K (hot bands ← ν″)".
+pub fn temperature_text(temperature_k: f64) -> String {
+    if temperature_k > 0.0 {
+        format!("neutral's levels populated at {temperature_k} K (hot-band lines marked ← ν″)")
+    } else {
+        "neutral in its lowest vibrational level (0 K)".into()
+    }
 }
 
 /// Energy window of the bands (lines ± 4 FWHM) or the one asked for.
@@ -303,6 +329,11 @@ pub fn spectrum_text(molecule: &str, bands: &[VibronicBand], curve: &CurveJson) 
 /// peak height a lone line of that intensity would have), the strongest labelled by band
 /// and quanta.
 pub fn spectrum_svg(molecule: &str, bands: &[VibronicBand], curve: &CurveJson) -> String {
+    vibronic_plot(molecule, bands, curve).render()
+}
+
+/// The figure of `spectrum_svg` (shared with the HTML page, `report::html::vibronic_page`).
+pub fn vibronic_plot(molecule: &str, bands: &[VibronicBand], curve: &CurveJson) -> Plot {
     let sigma = curve.fwhm_ev / (8.0 * std::f64::consts::LN_2).sqrt();
     let peak = 1.0 / (sigma * (2.0 * std::f64::consts::PI).sqrt());
     let mut sticks = Vec::new();
@@ -348,5 +379,4 @@ pub fn spectrum_svg(molecule: &str, bands: &[VibronicBand], curve: &CurveJson) -
         width: 900.0,
         height: 560.0,
     }
-    .render()
 }

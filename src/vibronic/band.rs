@@ -31,13 +31,15 @@ use crate::geometry::{optimize, OptimizeOptions, SolvedState, StateSpec};
 use crate::gradient::{scf_gradient, GradientOptions};
 use crate::scf::{Reference, ScfOptions};
 use crate::units::{
-    BOHR_TO_ANGSTROM, DALTON_TO_ELECTRON_MASS, HARTREE_TO_EV, HARTREE_TO_WAVENUMBER,
+    BOHR_TO_ANGSTROM, BOLTZMANN_HARTREE_PER_KELVIN, DALTON_TO_ELECTRON_MASS, HARTREE_TO_EV,
+    HARTREE_TO_WAVENUMBER,
 };
 use crate::vibrations::{harmonic_analysis, hessian_by_gradients, HarmonicAnalysis};
 
 use super::duschinsky::build as build_duschinsky;
 use super::linear_coupling::{linear_coupling, project_gradient};
 use super::notes::VibronicNote;
+use super::plan::Stage;
 use super::progression::{progression, FcOptions, Progression};
 use super::state::HarmonicState;
 use super::summary::band_shape;
@@ -72,6 +74,37 @@ pub struct BandOptions {
     pub scf: ScfOptions,
     /// Skip the cation's optimisation and use the vertical-gradient model directly.
     pub linear_coupling_only: bool,
+}
+
+impl BandOptions {
+    /// Populate the neutral's vibrational levels at `kelvin` (Boltzmann; 0 = the neutral in
+    /// v = 0 only, the default): hot-band lines appear below the 0–0 line. Err for a
+    /// negative or non-finite temperature.
+    pub fn with_temperature(mut self, kelvin: f64) -> Result<Self> {
+        if !(kelvin.is_finite() && kelvin >= 0.0) {
+            return Err(Error::input(format!(
+                "the temperature must be a finite number of kelvin ≥ 0, not {kelvin}"
+            )));
+        }
+        self.fc.thermal_energy = (kelvin > 0.0).then(|| kelvin * BOLTZMANN_HARTREE_PER_KELVIN);
+        Ok(self)
+    }
+
+    /// The temperature in kelvin the neutral's levels are populated at (0 = v = 0 only).
+    pub fn temperature_k(&self) -> f64 {
+        self.fc
+            .thermal_energy
+            .map(|kt| kt / BOLTZMANN_HARTREE_PER_KELVIN)
+            .unwrap_or(0.0)
+    }
+}
+
+/// The band's `thermal_population` is only meaningful for a thermal run.
+fn thermal_or_none(mut b: VibronicBand, opts: &BandOptions) -> VibronicBand {
+    if opts.temperature_k() <= 0.0 {
+        b.thermal_population = None;
+    }
+    b
 }
 
 impl Default for BandOptions {
@@ -197,6 +230,11 @@ pub struct BandLine {
     pub intensity: f64,
     /// Ion quanta per excited mode (modes not listed have 0).
     pub quanta: Vec<ModeQuanta>,
+    /// Hot bands (`--temperature` above 0 K): the neutral's quanta per excited mode of the
+    /// initial level (neutral modes counted from 1, ascending wavenumber); empty (and left
+    /// out of the JSON) for lines from the neutral's v = 0.
+    #[serde(skip_serializing_if = "Vec::is_empty", default)]
+    pub neutral_quanta: Vec<ModeQuanta>,
 }
 
 /// One progression-forming mode of the ion.
@@ -252,6 +290,10 @@ pub struct VibronicBand {
     /// length.
     pub mean_total_quanta: f64,
     pub captured_fraction: f64,
+    /// With a temperature above 0 K: the Boltzmann population of the neutral's levels
+    /// followed (the captured fraction can reach at most this); None at 0 K.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub thermal_population: Option<f64>,
     pub progression_modes: Vec<BandMode>,
     /// Ion harmonic wavenumbers (cm⁻¹) and irreps, mode 1 first.
     pub ion_modes: Vec<(f64, String)>,
@@ -310,14 +352,28 @@ pub fn harmonic_state(mol: &Molecule, an: &HarmonicAnalysis) -> HarmonicState {
     }
 }
 
-fn hessian_analysis(st: &SolvedState, spec: &StateSpec) -> Result<(HarmonicAnalysis, String)> {
-    let h = hessian_by_gradients(st, spec, &mut |_, _| {})?;
+fn hessian_analysis(
+    st: &SolvedState,
+    spec: &StateSpec,
+    progress: &mut dyn FnMut(usize, usize),
+) -> Result<(HarmonicAnalysis, String)> {
+    let h = hessian_by_gradients(st, spec, progress)?;
     let pg = detect_point_group(&st.molecule, DEFAULT_TOLERANCE);
     Ok((harmonic_analysis(&st.molecule, &h, Some(&pg)), pg.name))
 }
 
 /// Optimise the closed-shell neutral and take its harmonic analysis.
 pub fn neutral(mol: &Molecule, basis: &str, opts: &BandOptions) -> Result<Neutral> {
+    neutral_with_progress(mol, basis, opts, &mut |_| {})
+}
+
+/// `neutral`, reporting its stages (`plan::Stage`) as they advance.
+pub fn neutral_with_progress(
+    mol: &Molecule,
+    basis: &str,
+    opts: &BandOptions,
+    progress: &mut dyn FnMut(Stage),
+) -> Result<Neutral> {
     if mol.multiplicity != 1 {
         return Err(Error::input(
             "vibronic bands start from a closed-shell neutral: multiplicity must be 1",
@@ -332,8 +388,12 @@ pub fn neutral(mol: &Molecule, basis: &str, opts: &BandOptions) -> Result<Neutra
         scf: opts.scf.clone(),
     };
     spec.validate(mol)?;
-    let opt = optimize(mol, &spec, &opts.optimize, &mut |_| {})?;
-    let (analysis, pg) = hessian_analysis(&opt.state, &spec)?;
+    let opt = optimize(mol, &spec, &opts.optimize, &mut |st| {
+        progress(Stage::NeutralOptimisation { step: st.iteration })
+    })?;
+    let (analysis, pg) = hessian_analysis(&opt.state, &spec, &mut |done, total| {
+        progress(Stage::NeutralHessian { done, total })
+    })?;
     if analysis.n_imaginary > 0 {
         return Err(Error::computation(format!(
             "the neutral's optimised structure has {} imaginary mode(s): not a minimum, the \
@@ -410,6 +470,23 @@ pub fn band(
     label: Option<String>,
     opts: &BandOptions,
 ) -> Result<VibronicBand> {
+    band_with_progress(n, hole, label, opts, (0, 1), &mut |_| {})
+}
+
+/// `band`, reporting its stages as band `at.0` of `at.1`.
+pub fn band_with_progress(
+    n: &Neutral,
+    hole: usize,
+    label: Option<String>,
+    opts: &BandOptions,
+    at: (usize, usize),
+    progress: &mut dyn FnMut(Stage),
+) -> Result<VibronicBand> {
+    let (bi, bn) = at;
+    progress(Stage::IonVertical {
+        band: bi,
+        bands: bn,
+    });
     let spec = StateSpec {
         reference: Reference::Uhf,
         hole: Some(hole),
@@ -430,8 +507,12 @@ pub fn band(
     let ion = if opts.linear_coupling_only {
         Err("the linear coupling model was asked for".to_string())
     } else {
-        ion_minimum(n, &spec, opts)
+        ion_minimum(n, &spec, opts, at, progress)
     };
+    progress(Stage::FranckCondon {
+        band: bi,
+        bands: bn,
+    });
     let (prog, dus, model, ion_geometry, ion_modes, ion_pg, el_adiabatic, dzpe) = match ion {
         Ok((ion_state, an, pg)) => {
             let ion_h = harmonic_state(&ion_state.molecule, &an);
@@ -469,20 +550,23 @@ pub fn band(
             return linear_coupling_band(n, hole, label, &vert, vertical, notes, reason, opts);
         }
     };
-    Ok(assemble(
-        n,
-        hole,
-        label,
-        prog,
-        &dus,
-        model,
-        ion_geometry,
-        ion_modes,
-        ion_pg,
-        el_adiabatic,
-        dzpe,
-        vertical,
-        notes,
+    Ok(thermal_or_none(
+        assemble(
+            n,
+            hole,
+            label,
+            prog,
+            &dus,
+            model,
+            ion_geometry,
+            ion_modes,
+            ion_pg,
+            el_adiabatic,
+            dzpe,
+            vertical,
+            notes,
+        ),
+        opts,
     ))
 }
 
@@ -525,20 +609,23 @@ fn linear_coupling_band(
         .iter()
         .map(|m| (m.wavenumber_cm1, m.irrep.clone()))
         .collect();
-    Ok(assemble(
-        n,
-        hole,
-        label,
-        p,
-        &lc.duschinsky,
-        BandModel::LinearCoupling,
-        mol,
-        modes,
-        None,
-        el,
-        0.0,
-        vertical,
-        notes,
+    Ok(thermal_or_none(
+        assemble(
+            n,
+            hole,
+            label,
+            p,
+            &lc.duschinsky,
+            BandModel::LinearCoupling,
+            mol,
+            modes,
+            None,
+            el,
+            0.0,
+            vertical,
+            notes,
+        ),
+        opts,
     ))
 }
 
@@ -548,9 +635,17 @@ fn ion_minimum(
     n: &Neutral,
     spec: &StateSpec,
     opts: &BandOptions,
+    (band, bands): (usize, usize),
+    progress: &mut dyn FnMut(Stage),
 ) -> std::result::Result<(SolvedState, HarmonicAnalysis, String), String> {
-    let opt = optimize(&n.state.molecule, spec, &opts.optimize, &mut |_| {})
-        .map_err(|e| format!("optimisation failed: {e}"))?;
+    let opt = optimize(&n.state.molecule, spec, &opts.optimize, &mut |st| {
+        progress(Stage::IonOptimisation {
+            band,
+            bands,
+            step: st.iteration,
+        })
+    })
+    .map_err(|e| format!("optimisation failed: {e}"))?;
     if !opt.converged {
         return Err(format!(
             "optimisation did not converge{}",
@@ -560,7 +655,15 @@ fn ion_minimum(
     if let Some(reason) = opt.state.hole.as_ref().and_then(hole_lost) {
         return Err(format!("the hole was lost: {reason}"));
     }
-    let (an, pg) = hessian_analysis(&opt.state, spec).map_err(|e| format!("ion Hessian: {e}"))?;
+    let (an, pg) = hessian_analysis(&opt.state, spec, &mut |done, total| {
+        progress(Stage::IonHessian {
+            band,
+            bands,
+            done,
+            total,
+        })
+    })
+    .map_err(|e| format!("ion Hessian: {e}"))?;
     if an.n_imaginary > 0 {
         return Err(format!(
             "the cation's optimised structure has {} imaginary mode(s)",
@@ -635,6 +738,15 @@ fn assemble(
                     quanta: q.1,
                 })
                 .collect(),
+            neutral_quanta: l
+                .initial_quanta
+                .iter()
+                .filter(|q| q.1 > 0)
+                .map(|q| ModeQuanta {
+                    mode: q.0 + 1,
+                    quanta: q.1,
+                })
+                .collect(),
         })
         .collect();
     lines.sort_by(|a, b| a.energy_ev.total_cmp(&b.energy_ev));
@@ -693,6 +805,8 @@ fn assemble(
         mean_ev: shape.mean_of_lines * HARTREE_TO_EV,
         mean_total_quanta,
         captured_fraction: p.captured_fraction,
+        // kept only for a thermal run (`thermal_or_none`)
+        thermal_population: Some(p.initial_population),
         progression_modes,
         ion_modes,
         bond_changes,
@@ -709,11 +823,30 @@ pub fn vibronic_bands(
     count: usize,
     opts: &BandOptions,
 ) -> Result<(Neutral, Vec<VibronicBand>)> {
-    let n = neutral(mol, basis, opts)?;
+    vibronic_bands_with_progress(mol, basis, count, opts, &mut |_| {})
+}
+
+/// `vibronic_bands`, reporting every stage (`plan::Stage`) as it starts or advances.
+pub fn vibronic_bands_with_progress(
+    mol: &Molecule,
+    basis: &str,
+    count: usize,
+    opts: &BandOptions,
+    progress: &mut dyn FnMut(Stage),
+) -> Result<(Neutral, Vec<VibronicBand>)> {
+    let n = neutral_with_progress(mol, basis, opts, progress)?;
     let holes = outer_holes(&n, count);
-    let mut bands = Vec::with_capacity(holes.len());
-    for (h, label) in holes {
-        bands.push(band(&n, h, label, opts)?);
+    let total = holes.len();
+    let mut bands = Vec::with_capacity(total);
+    for (k, (h, label)) in holes.into_iter().enumerate() {
+        bands.push(band_with_progress(
+            &n,
+            h,
+            label,
+            opts,
+            (k, total),
+            progress,
+        )?);
     }
     Ok((n, bands))
 }

@@ -14,6 +14,7 @@
 //! - `linear_coupling`: the vertical-gradient model (J = 1, ω′ = ω);
 //! - `band`: the pipeline from a molecule to its bands (optimise, Hessians, progression);
 //! - `composite`: correlated vertical energies + HF relaxation for the band positions;
+//! - `plan`: the run's cost estimate (gradients, memory) and its progress stages;
 //! - `notes`: typed notes. (The seeded workload of `bandcast bench franck-condon` is
 //!   `crate::bench::franck_condon`.)
 //!
@@ -25,6 +26,7 @@ pub mod composite;
 pub mod duschinsky;
 pub mod linear_coupling;
 pub mod notes;
+pub mod plan;
 pub mod progression;
 pub mod recursion;
 pub mod state;

@@ -705,6 +705,84 @@ mod tests {
         assert!((hot.energy - (0.3 - 0.0015)).abs() < 1e-15);
     }
 
+    /// Modified Bessel function I_n(x) by its power series (converges for every x).
+    fn bessel_i(n: u32, x: f64) -> f64 {
+        let h = 0.5 * x;
+        let mut term = h.powi(n as i32) / (1..=n).map(|k| k as f64).product::<f64>();
+        let mut sum = term;
+        for k in 1..200 {
+            term *= h * h / (k as f64 * (k + n) as f64);
+            sum += term;
+            if term < 1e-17 * sum {
+                break;
+            }
+        }
+        sum
+    }
+
+    #[test]
+    fn thermal_displaced_oscillator_matches_the_closed_form() {
+        // Exact: a displaced oscillator (same frequency ω, Huang–Rhys S) with the initial
+        // state's levels in a Boltzmann distribution, n̄ = 1/(e^{ω/kT} − 1), has the line at
+        // adiabatic + pω (p = v′ − v, either sign) with intensity
+        //   I_p = exp(−S(2n̄+1)) ((n̄+1)/n̄)^{p/2} I_|p|(2S √(n̄(n̄+1)))
+        // (the thermally averaged Poisson law, Lax 1952; Huang & Rhys 1950). Summed over
+        // the lines of equal p the computed sticks must reproduce it.
+        let w = 0.004f64; // ≈ 880 cm⁻¹
+        let s = 1.3f64;
+        let kt = 0.005f64; // ≈ 1600 K: several hot levels
+        let kk = (2.0 * s / w).sqrt();
+        let d = Duschinsky::parallel(vec![w], vec![w], vec![kk]);
+        let opt = FcOptions {
+            target_fraction: 1.0,
+            mode_tail: 1e-14,
+            line_floor: 0.0,
+            thermal_energy: Some(kt),
+            min_population: 1e-12,
+            max_initial_levels: 200,
+            ..FcOptions::default()
+        };
+        let p = progression(&d, 0.3, &opt).unwrap();
+        assert!(p.initial_population > 1.0 - 1e-10);
+        let nbar = 1.0 / ((w / kt).exp() - 1.0);
+        let closed = |q: i32| -> f64 {
+            (-s * (2.0 * nbar + 1.0)).exp()
+                * ((nbar + 1.0) / nbar).powf(q as f64 / 2.0)
+                * bessel_i(q.unsigned_abs(), 2.0 * s * (nbar * (nbar + 1.0)).sqrt())
+        };
+        let mut checked = 0;
+        for q in -6..=10i32 {
+            let computed: f64 = p
+                .lines
+                .iter()
+                .filter(|l| ((l.energy - 0.3) / w - q as f64).abs() < 1e-6)
+                .map(|l| l.intensity)
+                .sum();
+            let exact = closed(q);
+            assert!(
+                (computed - exact).abs() < 1e-9 + 1e-7 * exact,
+                "p = {q}: {computed:.10} vs {exact:.10}"
+            );
+            checked += 1;
+        }
+        assert_eq!(checked, 17);
+        // hot lines exist below the 0–0, and the 1 → 0′ to 0 → 0′ ratio is the Boltzmann
+        // factor times |⟨1|0′⟩|²/|⟨0|0′⟩|² = S (Poisson): e^{−ω/kT} S
+        let line = |v: u32, vp: u32| {
+            p.lines
+                .iter()
+                .find(|l| {
+                    l.initial_quanta.iter().map(|x| x.1).sum::<u32>() == v
+                        && l.quanta.iter().map(|x| x.1).sum::<u32>() == vp
+                })
+                .unwrap()
+        };
+        let hot = line(1, 0);
+        assert!(hot.energy < 0.3);
+        let r = hot.intensity / line(0, 0).intensity;
+        assert!((r - (-w / kt).exp() * s).abs() < 1e-12, "ratio {r}");
+    }
+
     #[test]
     fn thermal_levels_follow_the_boltzmann_law() {
         // p_v = Π (1 − x_i) x_i^{v_i}, x_i = exp(−ω_i/kT) (statistical mechanics).
