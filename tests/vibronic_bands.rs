@@ -238,6 +238,29 @@ fn h2_n2_h2o_bands_against_measured_spectra() {
     // NIST adiabatic 12.62 eV: the composite must come closer than HF ΔSCF (which misses
     // the correlation change of a lone-pair ionization, ~2 eV here).
     assert!((c[0].adiabatic_ev - 12.62).abs() < (w.adiabatic_ev - 12.62).abs());
+    // Why the cc-pVDZ composite is ~1 eV low (docs/vibronic-bands.md): the correlated
+    // vertical energy of a lone pair needs diffuse functions; relaxation (0.11 eV) and
+    // zero-point change (−0.08 eV) are small. The band says so ...
+    assert!(c[0]
+        .notes
+        .iter()
+        .any(|n| n.code() == "band-vertical-basis-without-diffuse"));
+    // ... and with the vertical energy in aug-cc-pVTZ (geometries and modes still
+    // HF/cc-pVDZ) the adiabatic IE must land within 0.25 eV of NIST's 12.62 eV: the
+    // remaining error is EOM-IP-CCSD's own and its basis (a few tenths of an eV, common
+    // practice). Measured here: 12.46 eV.
+    let mut c = vec![w.clone()];
+    apply_correlated_vertical(&n, "aug-cc-pVTZ", &mut c, MEMORY).unwrap();
+    show("H2O 1b1 composite, vertical aug-cc-pVTZ", &c[0]);
+    assert!(
+        (c[0].adiabatic_ev - 12.62).abs() < 0.25,
+        "H2O 1b1 composite (aug-cc-pVTZ vertical) adiabatic {:.3}",
+        c[0].adiabatic_ev
+    );
+    assert!(c[0]
+        .notes
+        .iter()
+        .all(|n| n.code() != "band-vertical-basis-without-diffuse"));
 
     // Fact of the trade: a non-bonding ionization gives a shorter progression than a bonding
     // one: H2O 1b1 (lone pair) < N2 1πu and H2 1σg (bonding), by mean total quanta.

@@ -160,6 +160,8 @@ pub enum BandNote {
     HartreeFockEnergies,
     /// No correlated vertical energy matched this band: its positions stay HF ΔSCF.
     NoCorrelatedPartner,
+    /// The correlated vertical energy came from a basis without diffuse functions.
+    VerticalBasisWithoutDiffuse { basis: String },
     /// A note of the Franck–Condon engine.
     Engine(VibronicNote),
 }
@@ -171,6 +173,7 @@ impl BandNote {
             BandNote::Incomplete { .. } => "band-incomplete",
             BandNote::HartreeFockEnergies => "band-hartree-fock-energies",
             BandNote::NoCorrelatedPartner => "band-no-correlated-partner",
+            BandNote::VerticalBasisWithoutDiffuse { .. } => "band-vertical-basis-without-diffuse",
             BandNote::Engine(n) => n.code(),
         }
     }
@@ -199,6 +202,12 @@ impl std::fmt::Display for BandNote {
             BandNote::NoCorrelatedPartner => write!(
                 f,
                 "no correlated vertical energy matched this band: its positions are HF ΔSCF"
+            ),
+            BandNote::VerticalBasisWithoutDiffuse { basis } => write!(
+                f,
+                "the correlated vertical energy is in {basis}, which has no diffuse functions: \
+                 ionization energies of lone pairs come out low (water 1b1 in cc-pVDZ: 0.8 eV \
+                 below aug-cc-pVTZ); an augmented basis for the vertical energy fixes most of it"
             ),
             BandNote::Engine(n) => write!(f, "{n}"),
         }

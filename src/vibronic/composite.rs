@@ -8,6 +8,13 @@
 //! HF ΔSCF vertical ionization energy; the band's shape stays that of the HF surfaces.
 //! Bands are matched to the correlated ones by their orbital label; a band without a label
 //! or without a correlated partner keeps its ΔSCF positions (and says so).
+//!
+//! **Basis of the vertical energy.** It may differ from the basis of the geometries and
+//! Hessians (`basis_name`). It matters more than anything else here: water's 1b1 band
+//! (docs/vibronic-bands.md) has EOM-IP-CCSD vertical energies 11.85 (cc-pVDZ), 12.45
+//! (cc-pVTZ) and 12.65 eV (aug-cc-pVTZ) at the same HF/cc-pVDZ minimum, while the HF
+//! relaxation (0.11 eV) and zero-point change (−0.08 eV) hardly move with the basis. A
+//! basis without diffuse functions gets a note (`BandNote::VerticalBasisWithoutDiffuse`).
 
 use crate::basis;
 use crate::error::Result;
@@ -21,6 +28,8 @@ use super::band::{BandNote, Neutral, VibronicBand};
 pub struct Composite {
     /// Method of the correlated vertical energy ("eom-ccsd", …).
     pub method: String,
+    /// Basis of the correlated vertical energy.
+    pub basis: String,
     pub correlated_vertical_ev: f64,
     /// HF ΔSCF vertical energy it replaces.
     pub hf_vertical_ev: f64,
@@ -44,6 +53,7 @@ pub fn apply_correlated_vertical(
     };
     let (res, _) = predict_default(mol, &basis, &opts)?;
     let method = res.method.name().to_string();
+    let diffuse = has_diffuse(&basis.name);
     for b in bands.iter_mut() {
         let partner = b
             .label
@@ -56,6 +66,7 @@ pub fn apply_correlated_vertical(
         let shift = p.ie_ev - b.vertical_ev;
         b.composite = Some(Composite {
             method: p.method.clone(),
+            basis: basis.name.clone(),
             correlated_vertical_ev: p.ie_ev,
             hf_vertical_ev: b.vertical_ev,
             shift_ev: shift,
@@ -70,6 +81,18 @@ pub fn apply_correlated_vertical(
             l.energy_ev += shift;
         }
         b.notes.retain(|x| *x != BandNote::HartreeFockEnergies);
+        if !diffuse {
+            b.notes.push(BandNote::VerticalBasisWithoutDiffuse {
+                basis: basis.name.clone(),
+            });
+        }
     }
     Ok(method)
+}
+
+/// Whether a basis name says it carries diffuse functions (aug-…, d-aug-…, 6-31+G…,
+/// def2-…D as in def2-SVPD).
+pub fn has_diffuse(name: &str) -> bool {
+    let l = name.to_ascii_lowercase();
+    l.contains("aug-") || l.contains('+') || (l.starts_with("def2-") && l.ends_with('d'))
 }
