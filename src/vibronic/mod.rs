@@ -11,6 +11,8 @@
 //! - `recursion`: the Franck–Condon overlaps ⟨v|v′⟩ (Doktorov–Malkin–Man'ko recursion);
 //! - `progression`: lines class by class with prescreening and bounded memory;
 //! - `summary`: strongest line, progression-forming modes, vertical vs adiabatic, envelope;
+//! - `envelope`: a band's envelope at a given resolution (for `assign`), its main
+//!   progression spacing and whether a resolution shows it;
 //! - `linear_coupling`: the vertical-gradient model (J = 1, ω′ = ω);
 //! - `band`: the pipeline from a molecule to its bands (optimise, Hessians, progression);
 //! - `composite`: correlated vertical energies + HF relaxation for the band positions;
@@ -24,6 +26,7 @@ pub mod align;
 pub mod band;
 pub mod composite;
 pub mod duschinsky;
+pub mod envelope;
 pub mod linear_coupling;
 pub mod notes;
 pub mod plan;
@@ -33,6 +36,7 @@ pub mod state;
 pub mod summary;
 
 pub use duschinsky::{build as build_duschinsky, Alignment, Duschinsky};
+pub use envelope::{band_envelope, band_envelope_at, BandEnvelope};
 pub use linear_coupling::{linear_coupling, project_gradient, LinearCoupling};
 pub use notes::VibronicNote;
 pub use progression::{progression, FcOptions, Progression, VibronicLine};
