@@ -100,8 +100,12 @@ impl Progress {
                     None => {
                         let b = indicatif::ProgressBar::new_spinner();
                         b.set_style(
-                            indicatif::ProgressStyle::with_template("{spinner} {msg} {pos}")
-                                .unwrap_or_else(|_| indicatif::ProgressStyle::default_spinner()),
+                            indicatif::ProgressStyle::with_template(if name.ends_with("step") {
+                                "{spinner} {msg} {pos}"
+                            } else {
+                                "{spinner} {msg}"
+                            })
+                            .unwrap_or_else(|_| indicatif::ProgressStyle::default_spinner()),
                         );
                         b
                     }

@@ -274,6 +274,14 @@ pub fn spectrum_text(molecule: &str, bands: &[VibronicBand], curve: &CurveJson) 
         curve.fwhm_ev,
         electronic(bands)
     );
+    if let Some(p) = bands.iter().find_map(|b| b.thermal_population) {
+        let _ = writeln!(
+            s,
+            "neutral's vibrational levels thermally populated ({:.1} % of the population \
+             followed): hot-band lines lie below each 0–0 line",
+            100.0 * p
+        );
+    }
     let _ = writeln!(s);
     let _ = writeln!(
         s,
