@@ -166,7 +166,6 @@ fn note_beyond_photon(r: &mut CoreResult, photon_ev: f64) {
                 photon_ev,
                 reached_by: sources_reaching(e),
             };
-            l.notes.push(n.clone());
             r.notes.push(n);
         }
     }
