@@ -67,10 +67,20 @@ const SPLITTINGS: [(&str, &str, f64, &str); 5] = [
     // S 2p of H2S: 1.20 eV (gas-phase photoemission, from memory)
     ("hydrogen-sulfide", "S", 1.20, "H2S gas phase, from memory"),
     // Cl 2p of HCl: 1.61 eV (gas-phase photoemission, from memory)
-    ("hydrogen-chloride", "Cl", 1.61, "HCl gas phase, from memory"),
+    (
+        "hydrogen-chloride",
+        "Cl",
+        1.61,
+        "HCl gas phase, from memory",
+    ),
     // Ar 2p: 2p3/2 248.6, 2p1/2 250.8 eV → 2.2 eV (X-ray Data Booklet, from memory; 2.15 eV
     // in gas-phase photoemission, from memory)
-    ("argon", "Ar", 2.17, "X-ray Data Booklet / gas phase, from memory"),
+    (
+        "argon",
+        "Ar",
+        2.17,
+        "X-ray Data Booklet / gas phase, from memory",
+    ),
 ];
 
 #[test]
@@ -142,7 +152,11 @@ fn symmetry_decides_which_2p_holes_are_computed() {
     let hcl = two_p("hydrogen-chloride");
     let sh = &level(&hcl, "2p3/2").spatial_holes;
     let copies: Vec<Option<usize>> = sh.iter().map(|s| s.same_as_axis).collect();
-    assert_eq!(copies.iter().filter(|c| c.is_some()).count(), 1, "{copies:?}");
+    assert_eq!(
+        copies.iter().filter(|c| c.is_some()).count(),
+        1,
+        "{copies:?}"
+    );
     // The σ hole (along the bond, z) is not the copied one.
     let along = sh
         .iter()
@@ -191,10 +205,17 @@ fn shell_keys_in_json_and_auto_picks_2p_at_al_ka() {
         .arg(gw100("hydrogen-chloride"))
         .output()
         .unwrap();
-    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
     let j: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
     let levels = j["core_levels"].as_array().unwrap();
-    let shells: Vec<&str> = levels.iter().map(|l| l["shell"].as_str().unwrap()).collect();
+    let shells: Vec<&str> = levels
+        .iter()
+        .map(|l| l["shell"].as_str().unwrap())
+        .collect();
     // Cl 1s (≈ 2822 eV, X-ray Data Booklet, from memory) is beyond Al Kα: auto takes 2p.
     assert_eq!(shells, ["2p3/2", "2p1/2"]);
     assert!(levels[0]["spin_orbit_ev"].as_f64().unwrap() > 1.0);
@@ -206,14 +227,23 @@ fn a_level_beyond_the_photons_is_named_with_the_sources_that_reach_it() {
     // S 2s of H2S (≈ 235 eV) with He II photons (40.8 eV): out of reach; Mg and Al Kα reach
     // it (photon energies: Bearden 1967, as in spectrum::photon).
     let out = bandcast()
-        .args(["core", "--basis", "cc-pVDZ", "--shell", "2s", "--photon", "he2", "--json"])
+        .args([
+            "core", "--basis", "cc-pVDZ", "--shell", "2s", "--photon", "he2", "--json",
+        ])
         .arg(gw100("hydrogen-sulfide"))
         .output()
         .unwrap();
-    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
     let j: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
     assert_eq!(j["core_levels"][0]["shell"], "2s");
-    assert_eq!(j["core_levels"][0]["spin_orbit_ev"], serde_json::Value::Null);
+    assert_eq!(
+        j["core_levels"][0]["spin_orbit_ev"],
+        serde_json::Value::Null
+    );
     let notes: Vec<String> = j["notes"]
         .as_array()
         .unwrap()
@@ -227,7 +257,15 @@ fn a_level_beyond_the_photons_is_named_with_the_sources_that_reach_it() {
     assert!(n.contains("Mg Kα, Al Kα") && n.contains("40.8"), "{n}");
     // An element without the shell is an input error naming it (exit 2).
     let out = bandcast()
-        .args(["core", "--basis", "cc-pVDZ", "--shell", "2p", "--element", "H"])
+        .args([
+            "core",
+            "--basis",
+            "cc-pVDZ",
+            "--shell",
+            "2p",
+            "--element",
+            "H",
+        ])
         .arg(gw100("hydrogen-sulfide"))
         .output()
         .unwrap();
@@ -238,13 +276,25 @@ fn a_level_beyond_the_photons_is_named_with_the_sources_that_reach_it() {
 fn spectrum_with_element_s_draws_the_2p_doublet_at_al_ka() {
     let out = bandcast()
         .args([
-            "spectrum", "--basis", "cc-pVDZ", "--region", "core", "--element", "S", "--photon",
-            "alka", "--json",
+            "spectrum",
+            "--basis",
+            "cc-pVDZ",
+            "--region",
+            "core",
+            "--element",
+            "S",
+            "--photon",
+            "alka",
+            "--json",
         ])
         .arg(gw100("hydrogen-sulfide"))
         .output()
         .unwrap();
-    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
     let text = String::from_utf8_lossy(&out.stdout);
     assert!(text.contains("2p3/2") && text.contains("2p1/2"), "{text}");
     assert!(!text.contains("S1 1s"));

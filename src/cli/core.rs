@@ -15,8 +15,9 @@ use bandcast::report::text::{core_table, core_timings_text};
 
 use super::common::{MoleculeArgs, StateArgs};
 
-/// Core-level (1s) binding energies: Koopmans, ΔSCF with the hole kept on one atom by the
-/// maximum overlap method, optional ΔMP2, and chemical shifts against a reference.
+/// Core-level binding energies (1s; 2s and 2p with the spin–orbit doublet for Na–Ar):
+/// Koopmans, ΔSCF with the hole kept on one atom by the maximum overlap method, optional
+/// ΔMP2 and chemical shifts against a reference (1s).
 ///
 /// Default targets: every atom heavier than helium. Atoms are numbered from 1 in the order
 /// of the XYZ file. The computed energies are vertical binding energies of an isolated
