@@ -299,3 +299,22 @@ fn spectrum_with_element_s_draws_the_2p_doublet_at_al_ka() {
     assert!(text.contains("2p3/2") && text.contains("2p1/2"), "{text}");
     assert!(!text.contains("S1 1s"));
 }
+
+/// SO2 needs a larger basis: S in a high oxidation state wants tight d functions. cc-pVDZ
+/// gives 176.16 eV and cc-pVTZ 175.63 eV; def2-TZVPP (125 functions, about 90 s on a loaded
+/// 2-core machine) 175.29 eV (docs/core-levels.md). Against S 2p3/2 of SO2 ≈ 174.8 eV
+/// (gas-phase XPS, from memory): ignored in the suite for its cost.
+#[test]
+#[ignore = "def2-TZVPP SO2 takes about 90 s"]
+fn sulfur_dioxide_2p3_2_in_def2_tzvpp() {
+    let mol = load("sulfur-dioxide");
+    let set = bandcast::basis::load("def2-TZVPP", &mol, None).unwrap();
+    let opts = CoreOptions {
+        targets: bandcast::core_level::TargetSelection::Element(16),
+        ..CoreOptions::default()
+    };
+    let r = bandcast::core_level::predict(&mol, &set, &opts).unwrap();
+    let l = level(&r, "2p3/2");
+    // 174.8 eV from memory: the tolerance allows for the slip (0.6 eV).
+    assert!((l.dscf_ev - 174.8).abs() < 0.6, "{:.3}", l.dscf_ev);
+}
