@@ -212,3 +212,63 @@ pub fn localise_shell(
         block,
     })
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::basis::Shell;
+
+    fn shell(atom: usize, l: usize) -> Shell {
+        Shell {
+            l,
+            pure: false,
+            center: [0.0, 0.0, 2.0 * atom as f64],
+            atom,
+            exponents: vec![1.0],
+            coefficients: vec![1.0],
+        }
+    }
+
+    /// Model of Cl2's inner shells in an orthonormal AO basis (s, px, py, pz on each atom):
+    /// the canonical 1s and 2p orbitals are g/u combinations spread over both atoms. The 2p set
+    /// of atom A is then exactly A's three p AOs, and the Fock operator in their span has the
+    /// g/u averages on its diagonal (exact conditions of the model).
+    #[test]
+    fn the_2p_set_of_one_of_two_equivalent_atoms() {
+        let basis = BasisSet::from_shells(
+            "m",
+            vec![shell(0, 0), shell(0, 1), shell(1, 0), shell(1, 1)],
+        );
+        let r = std::f64::consts::FRAC_1_SQRT_2;
+        // columns: 1s g, 1s u, then (px, py, pz) g and u
+        let mut c = Mat::<f64>::zeros(8, 8);
+        c[(0, 0)] = r;
+        c[(4, 0)] = r;
+        c[(0, 1)] = r;
+        c[(4, 1)] = -r;
+        for k in 0..3 {
+            c[(1 + k, 2 + 2 * k)] = r;
+            c[(5 + k, 2 + 2 * k)] = r;
+            c[(1 + k, 3 + 2 * k)] = r;
+            c[(5 + k, 3 + 2 * k)] = -r;
+        }
+        let eps = [-92.0, -91.99, -6.70, -6.69, -6.70, -6.69, -6.75, -6.72];
+        let occ: Vec<usize> = (0..8).collect();
+        let id = Mat::<f64>::identity(8, 8);
+        let h = localise_shell(&basis, &id, &c, &eps, &occ, 1, CoreShell::P2).unwrap();
+        assert_eq!(h.block.len(), 6);
+        assert_eq!(h.holes.len(), 3);
+        // Lowest first: pz (the σ direction along the bond), then the degenerate px, py.
+        assert!((h.eps[0] + 6.735).abs() < 1e-12, "{:?}", h.eps);
+        assert!((h.eps[1] + 6.695).abs() < 1e-12 && (h.eps[2] + 6.695).abs() < 1e-12);
+        for (k, &col) in h.holes.iter().enumerate() {
+            assert!((h.populations[k] - 1.0).abs() < 1e-12);
+            // nothing on atom A's functions (AOs 0–3)
+            assert!((0..4).all(|mu| h.c[(mu, col)].abs() < 1e-12));
+        }
+        let d = p_direction(&basis, &h.c, h.holes[0], 1);
+        assert!((d[2].abs() - 1.0).abs() < 1e-12, "{d:?}");
+        // The 1s cluster is skipped; a 2s is the second s cluster: absent here.
+        assert!(localise_shell(&basis, &id, &c, &eps, &occ, 1, CoreShell::S2).is_err());
+    }
+}
