@@ -318,3 +318,31 @@ fn sulfur_dioxide_2p3_2_in_def2_tzvpp() {
     // 174.8 eV from memory: the tolerance allows for the slip (0.6 eV).
     assert!((l.dscf_ev - 174.8).abs() < 0.6, "{:.3}", l.dscf_ev);
 }
+
+#[test]
+fn shifts_compare_like_shells() {
+    // Exact condition: a molecule against itself shifts by zero, level by level; the
+    // reference levels name their shell.
+    let out = bandcast()
+        .args(["core", "--basis", "cc-pVDZ", "--json", "--shift-from"])
+        .arg(gw100("hydrogen-chloride"))
+        .arg(gw100("hydrogen-chloride"))
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let j: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let refs: Vec<&str> = j["references"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|r| r["shell"].as_str().unwrap())
+        .collect();
+    assert_eq!(refs, ["2p3/2", "2p1/2"]);
+    for l in j["core_levels"].as_array().unwrap() {
+        assert_eq!(l["shift_ev"].as_f64(), Some(0.0), "{l}");
+    }
+}

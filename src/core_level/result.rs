@@ -103,6 +103,8 @@ pub struct ShiftReferenceLevel {
     pub molecule: String,
     pub atom: usize,
     pub element: String,
+    /// The reference level's shell ("1s", "2p3/2", …): shifts compare like shells.
+    pub shell: String,
     pub dscf_ev: f64,
     pub dmp2_ev: Option<f64>,
 }

@@ -58,13 +58,10 @@ pub fn predict_shells(
     if groups.iter().all(|(s, _)| *s == CoreShell::S1) && opts.photon_ev.is_none() {
         return Ok(None);
     }
+    if opts.reference != ShiftReference::None {
+        return with_shifts(mol, basis, opts, progress);
+    }
     if groups.iter().any(|(s, _)| *s != CoreShell::S1) {
-        if opts.reference != ShiftReference::None {
-            return Err(Error::input(
-                "chemical shifts are computed between 1s levels; for 2s and 2p levels compare \
-                 the binding energies of two runs",
-            ));
-        }
         if opts.mp2 {
             return Err(Error::input(
                 "ΔMP2 is computed for 1s levels; 2s and 2p levels are ΔSCF",
@@ -91,6 +88,140 @@ pub fn predict_shells(
         note_beyond_photon(&mut r, hv);
     }
     Ok(Some(r))
+}
+
+/// A run with shifts when 2s/2p levels are involved: the levels without a reference, the
+/// reference levels (an atom of this molecule, or the first atom of each target element in
+/// the reference molecule, computed with the same shell choice), and each level's shift
+/// against the reference level of the same element and shell.
+fn with_shifts(
+    mol: &Molecule,
+    basis: &BasisSet,
+    opts: &CoreOptions,
+    progress: &(dyn Fn(usize, usize) + Sync),
+) -> Result<Option<CoreResult>> {
+    let targets = resolve_targets(mol, &opts.targets)?;
+    let plain = CoreOptions {
+        reference: ShiftReference::None,
+        ..opts.clone()
+    };
+    let (mut r, refs) = match &opts.reference {
+        ShiftReference::None => unreachable!("called with a reference"),
+        ShiftReference::Atom(ra) => {
+            let ra = *ra;
+            super::targets::check_core_atom(mol, ra)?;
+            let zr = mol.atoms[ra].z;
+            if let Some(&bad) = targets.iter().find(|&&t| mol.atoms[t].z != zr) {
+                return Err(Error::input(format!(
+                    "the shift reference atom {} is {}, but target atom {} is {}: a shift \
+                     compares levels of one element (choose {} atoms as targets)",
+                    ra + 1,
+                    symbol(zr),
+                    bad + 1,
+                    symbol(mol.atoms[bad].z),
+                    symbol(zr)
+                )));
+            }
+            let mut all = targets.clone();
+            if !all.contains(&ra) {
+                all.push(ra);
+                all.sort_unstable();
+            }
+            let o = CoreOptions {
+                targets: TargetSelection::Atoms(all),
+                ..plain
+            };
+            let mut r = predict_shells(mol, basis, &o, progress)?
+                .expect("a run with 2s/2p levels or a photon energy");
+            let refs: Vec<CoreLevel> = r
+                .core_levels
+                .iter()
+                .filter(|l| l.atom == ra + 1)
+                .cloned()
+                .collect();
+            if !targets.contains(&ra) {
+                r.core_levels.retain(|l| l.atom != ra + 1);
+            }
+            let refs = refs
+                .iter()
+                .map(|l| ("atom", mol, l.clone()))
+                .collect::<Vec<_>>();
+            (r, into_references(&refs))
+        }
+        ShiftReference::Molecule(rm) => {
+            let r = predict_shells(mol, basis, &plain, progress)?
+                .expect("a run with 2s/2p levels or a photon energy");
+            let m = &rm.molecule;
+            let mut want: Vec<usize> = Vec::new();
+            for l in &r.core_levels {
+                let z = mol.atoms[l.atom - 1].z;
+                if let Some(i) = m.atoms.iter().position(|a| a.z == z) {
+                    if !want.contains(&i) {
+                        want.push(i);
+                    }
+                }
+            }
+            want.sort_unstable();
+            let refs = if want.is_empty() {
+                Vec::new()
+            } else {
+                let o = CoreOptions {
+                    targets: TargetSelection::Atoms(want),
+                    ..plain.clone()
+                };
+                let rr = super::predict::predict(m, &rm.basis, &o).map_err(|e| match e {
+                    Error::Computation(msg) => {
+                        Error::computation(format!("reference molecule: {msg}"))
+                    }
+                    other => other,
+                })?;
+                rr.core_levels
+                    .into_iter()
+                    .map(|l| ("molecule", m, l))
+                    .collect::<Vec<_>>()
+            };
+            (r, into_references(&refs))
+        }
+    };
+    let mut notes = Vec::new();
+    for l in &mut r.core_levels {
+        match refs
+            .iter()
+            .find(|(sh, x)| x.element == l.element && *sh == l.shell)
+        {
+            Some((_, x)) => l.shift_ev = Some(l.dscf_ev - x.dscf_ev),
+            None => notes.push(CoreNote::ReferenceLacksElement {
+                element: l.element.clone(),
+                level: l.label.clone(),
+            }),
+        }
+    }
+    r.notes.extend(notes);
+    r.references = refs.into_iter().map(|(_, x)| x).collect();
+    Ok(Some(r))
+}
+
+/// (shell, reference record) of each reference level.
+fn into_references(
+    levels: &[(&str, &Molecule, CoreLevel)],
+) -> Vec<(String, super::result::ShiftReferenceLevel)> {
+    levels
+        .iter()
+        .map(|(kind, m, l)| {
+            (
+                l.shell.clone(),
+                super::result::ShiftReferenceLevel {
+                    kind: kind.to_string(),
+                    molecule: m.name.clone(),
+                    atom: l.atom,
+                    element: l.element.clone(),
+                    shell: l.shell.clone(),
+                    dscf_ev: l.dscf_ev,
+                    dmp2_ev: l.dmp2_ev,
+                },
+            )
+        })
+        .collect()
 }
 
 /// The targets grouped by the shell computed for them (1s first, then 2s, 2p).
