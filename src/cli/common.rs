@@ -123,6 +123,11 @@ impl PredictArgs {
 
     /// Load the basis for `mol`, predict its bands, and (with --verbose) say on stderr what ran.
     pub fn predict(&self, mol: &Molecule) -> Result<Prediction> {
+        self.predict_for(mol, None)
+    }
+
+    /// As `predict`, for photons of `photon_ev` (core levels: the shell each atom gets).
+    pub fn predict_for(&self, mol: &Molecule, photon_ev: Option<f64>) -> Result<Prediction> {
         let basis = bandcast::basis::load(&self.basis, mol, None)?;
         let request = Request {
             molecule: mol,
@@ -133,6 +138,7 @@ impl PredictArgs {
                 element: self.element,
                 quick: self.quick,
                 memory_bytes: self.memory_bytes()?,
+                photon_ev,
                 ..RequestOptions::default()
             },
         };

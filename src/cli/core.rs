@@ -1,4 +1,4 @@
-//! `bandcast core`: 1s binding energies and chemical shifts by ΔSCF with a localised hole.
+//! `bandcast core`: core-level (1s, 2s, 2p) binding energies and chemical shifts by ΔSCF with a localised hole.
 
 use std::io::IsTerminal;
 use std::path::PathBuf;
@@ -6,7 +6,7 @@ use std::path::PathBuf;
 use bandcast::basis;
 use bandcast::chem::elements::parse_element;
 use bandcast::core_level::{
-    predict_with_progress, CoreBasis, CoreOptions, ReferenceMolecule, ShiftReference,
+    predict_with_progress, CoreBasis, CoreOptions, ReferenceMolecule, ShellChoice, ShiftReference,
     TargetSelection,
 };
 use bandcast::{Error, Result};
@@ -15,8 +15,9 @@ use bandcast::report::text::{core_table, core_timings_text};
 
 use super::common::{MoleculeArgs, StateArgs};
 
-/// Core-level (1s) binding energies: Koopmans, ΔSCF with the hole kept on one atom by the
-/// maximum overlap method, optional ΔMP2, and chemical shifts against a reference.
+/// Core-level binding energies (1s; 2s and 2p with the spin–orbit doublet for Na–Ar):
+/// Koopmans, ΔSCF with the hole kept on one atom by the maximum overlap method, optional
+/// ΔMP2 and chemical shifts against a reference (1s).
 ///
 /// Default targets: every atom heavier than helium. Atoms are numbered from 1 in the order
 /// of the XYZ file. The computed energies are vertical binding energies of an isolated
@@ -79,6 +80,15 @@ pub struct Args {
     /// non-relativistic binding energy; off by default).
     #[arg(long)]
     pub relativistic: bool,
+    /// Core shell: 1s, 2s, 2p (Na–Ar), or auto — the deepest shell the photon source reaches
+    /// (Al Kα when none is given); of the second shell the 2p is taken.
+    #[arg(long, value_name = "1s|2s|2p|auto", default_value = "auto", value_parser = parse_shell)]
+    pub shell: ShellChoice,
+    /// Photon source the levels are meant for (he1, he2, mgka, alka or an energy in eV): it
+    /// decides the auto shell, and levels out of its reach are named with the sources that
+    /// reach them.
+    #[arg(long, value_name = "he1|he2|mgka|alka|ENERGY_EV", value_parser = super::common::parse_photon)]
+    pub photon: Option<bandcast::spectrum::photon::Photon>,
     /// Keep the first SCF start that holds the hole instead of trying all of them.
     #[arg(long)]
     pub quick: bool,
@@ -101,6 +111,10 @@ pub enum CoreMethod {
     Dscf,
     /// ΔSCF plus ΔMP2.
     Dmp2,
+}
+
+fn parse_shell(s: &str) -> std::result::Result<ShellChoice, String> {
+    ShellChoice::parse(s).ok_or_else(|| format!("'{s}' is not 1s, 2s, 2p or auto"))
 }
 
 /// A note on stderr for an old option spelling.
@@ -158,6 +172,8 @@ pub fn options(args: &Args) -> Result<CoreOptions> {
         use_symmetry: !args.all_holes,
         relativistic: args.relativistic,
         delocalised: args.compare_delocalised,
+        shell: args.shell,
+        photon_ev: args.photon.map(|p| p.energy_ev()),
     })
 }
 

@@ -150,7 +150,10 @@ pub fn run(args: Args) -> Result<()> {
     let mut infos = Vec::new();
     for inp in &inputs {
         let mol = args.state.load(&inp.path)?;
-        predictions.push(args.predict.predict(&mol)?);
+        predictions.push(
+            args.predict
+                .predict_for(&mol, Some(args.photon.energy_ev()))?,
+        );
         infos.push(InputInfo {
             file: inp.path.display().to_string(),
             name: mol.name.clone(),

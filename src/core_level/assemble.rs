@@ -69,6 +69,7 @@ fn reference_level(kind: &str, mol: &Molecule, l: &CoreLevel) -> ShiftReferenceL
         molecule: mol.name.clone(),
         atom: l.atom,
         element: l.element.clone(),
+        shell: l.shell.clone(),
         dscf_ev: l.dscf_ev,
         dmp2_ev: l.dmp2_ev,
     }

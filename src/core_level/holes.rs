@@ -100,7 +100,7 @@ pub fn ionise_atom(
     let label = atom_label(ctx.mol, atom);
     let attempts: Vec<_> = states.iter().map(|s| s.attempt.clone()).collect();
     let Some(best) = lowest_held(&states, |_| true) else {
-        return Err(no_hole_error(&label, &attempts, koopmans));
+        return Err(no_hole_error(&format!("{label} 1s"), &attempts, koopmans));
     };
     let wf = best.wf.as_ref().expect("held state has a wavefunction");
     let mut notes = hole_notes(
@@ -143,6 +143,9 @@ pub fn ionise_atom(
         n_basis: ctx.basis.n_basis,
         same_as_atom: None,
         delocalised,
+        spin_orbit_ev: None,
+        components: Vec::new(),
+        spatial_holes: Vec::new(),
         notes,
     })
 }
@@ -178,7 +181,7 @@ fn delocalised_for(
 }
 
 /// The held state of lowest ΔSCF energy among the states `keep` accepts.
-fn lowest_held(
+pub(crate) fn lowest_held(
     states: &[CationState],
     keep: impl Fn(&CationState) -> bool,
 ) -> Option<&CationState> {
@@ -194,7 +197,7 @@ fn lowest_held(
 }
 
 /// The computation error when no start held the hole: what each start did.
-fn no_hole_error(label: &str, attempts: &[HoleAttempt], koopmans: f64) -> Error {
+pub(crate) fn no_hole_error(label: &str, attempts: &[HoleAttempt], koopmans: f64) -> Error {
     let what: Vec<String> = attempts
         .iter()
         .map(|a| {
@@ -213,7 +216,7 @@ fn no_hole_error(label: &str, attempts: &[HoleAttempt], koopmans: f64) -> Error 
             )
         })
         .collect();
-    Error::computation(format!("{label} 1s: {}", what.join("; ")))
+    Error::computation(format!("{label}: {}", what.join("; ")))
 }
 
 /// Notes on where the hole sat: localised, delocalised beside it, or canonical kept.
@@ -289,7 +292,7 @@ fn dmp2_ev(
 
 /// The starts for one hole. Thorough: all of them. Otherwise stop at the first start that
 /// holds the hole.
-fn search(setup: &HoleSetup, scf: &mut ScfContext, thorough: bool) -> Vec<CationState> {
+pub(crate) fn search(setup: &HoleSetup, scf: &mut ScfContext, thorough: bool) -> Vec<CationState> {
     let mut states: Vec<CationState> = Vec::new();
     let held = |s: &CationState| s.attempt.status == HoleStatus::Held;
     let mom = run_start(setup, scf, "mom");

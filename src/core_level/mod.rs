@@ -37,6 +37,10 @@
 //! | cation.rs | the SCF starts for one hole (MOM, IMOM, ROHF) |
 //! | shared_eri.rs | integrals shared by the bases of different holes |
 //! | relativistic.rs | the optional relativistic correction of 1s levels |
+//! | shell.rs | which shell (1s, 2s, 2p) each atom gets, by request or photon energy |
+//! | shell_hole.rs | the atom-localised 2s / 2p hole orbitals (principal axes for 2p) |
+//! | spin_orbit.rs | the 2p spin–orbit doublet from the three 2p-hole energies |
+//! | two_p.rs | the 2s and 2p levels of Na–Ar (the stages for the second shell) |
 //!
 //! ΔMP2 uses `correlation::mp2::mp2_energy`; the benchmark workload is
 //! `bench::core_level`.
@@ -59,7 +63,11 @@ pub mod predict;
 pub mod relativistic;
 pub mod result;
 pub mod shared_eri;
+pub mod shell;
+pub mod shell_hole;
+pub mod spin_orbit;
 pub mod targets;
+pub mod two_p;
 
 pub use hole_check::HoleStatus;
 pub use neutrals::memory_budget_bytes;
@@ -69,3 +77,4 @@ pub use predict::{predict, predict_with_progress};
 pub use result::{
     CoreLevel, CoreResult, CoreTimings, HoleAttempt, ShiftReferenceLevel, StageTiming,
 };
+pub use shell::{CoreShell, ShellChoice};

@@ -60,6 +60,18 @@ pub enum CoreNote {
     SpinContaminated { s2: f64 },
     /// ΔMP2 needs a UHF cation and none held the hole.
     NoUhfForMp2,
+    // --- second-shell (2s, 2p) levels (two_p.rs) ---
+    /// How the 2p spin–orbit splitting was computed (run note).
+    SpinOrbitModel { source: String },
+    /// A 2p hole turned away from the axis it was put on (overlap with the start orbital).
+    HoleTurned { axis: usize, overlap: f64 },
+    /// The level lies above the photon energy given: the sources that reach it.
+    BeyondPhoton {
+        level: String,
+        energy_ev: f64,
+        photon_ev: f64,
+        reached_by: Vec<String>,
+    },
 }
 
 impl CoreNote {
@@ -79,6 +91,9 @@ impl CoreNote {
             CoreNote::CanonicalHoleKept { .. } => "canonical_hole_kept",
             CoreNote::SpinContaminated { .. } => "spin_contaminated",
             CoreNote::NoUhfForMp2 => "no_uhf_for_mp2",
+            CoreNote::SpinOrbitModel { .. } => "spin_orbit_model",
+            CoreNote::HoleTurned { .. } => "hole_turned",
+            CoreNote::BeyondPhoton { .. } => "beyond_photon",
         }
     }
 
@@ -182,6 +197,28 @@ impl fmt::Display for CoreNote {
             CoreNote::SpinContaminated { s2 } => write!(
                 f,
                 "⟨S²⟩ = {s2:.3} is far from 0.75: the cation is spin-contaminated"
+            ),
+            CoreNote::SpinOrbitModel { source } => write!(f, "2p spin–orbit splitting: {source}"),
+            CoreNote::HoleTurned { axis, overlap } => write!(
+                f,
+                "the hole put on 2p axis {axis} turned away from it (overlap {overlap:.2} with \
+                 the start orbital): the molecular-field substructure of this level is uncertain"
+            ),
+            CoreNote::BeyondPhoton {
+                level,
+                energy_ev,
+                photon_ev,
+                reached_by,
+            } => write!(
+                f,
+                "{level} at {energy_ev:.1} eV lies above the {photon_ev:.1} eV photons{}",
+                if reached_by.is_empty() {
+                    ": none of He I, He II, Mg Kα, Al Kα reaches it (a synchrotron or hard \
+                     X-ray source does)"
+                        .to_string()
+                } else {
+                    format!("; sources that reach it: {}", reached_by.join(", "))
+                }
             ),
             CoreNote::NoUhfForMp2 => {
                 write!(f, "no UHF cation held the hole: ΔMP2 not computed")
@@ -299,6 +336,17 @@ mod tests {
             },
             CoreNote::SpinContaminated { s2: 0.9 },
             CoreNote::NoUhfForMp2,
+            CoreNote::SpinOrbitModel { source: "x".into() },
+            CoreNote::HoleTurned {
+                axis: 1,
+                overlap: 0.5,
+            },
+            CoreNote::BeyondPhoton {
+                level: "S1 1s".into(),
+                energy_ev: 2478.0,
+                photon_ev: 1486.6,
+                reached_by: vec![],
+            },
         ];
         let mut codes: Vec<&str> = all.iter().map(|n| n.code()).collect();
         codes.sort_unstable();

@@ -4,6 +4,8 @@
 use crate::basis::BasisSet;
 use crate::chem::Molecule;
 
+use super::shell::ShellChoice;
+
 /// Which atoms get a 1s hole.
 #[derive(Debug, Clone, PartialEq, Eq, Default)]
 pub enum TargetSelection {
@@ -106,6 +108,11 @@ pub struct CoreOptions {
     /// symmetry-equivalent partners, reported beside the localised one (`delocalised.rs`).
     /// Both then use a basis with the core flexibility on the atom and its partners.
     pub delocalised: bool,
+    /// Which shell (1s, 2s, 2p or auto by the photon energy; `shell.rs`).
+    pub shell: ShellChoice,
+    /// Photon energy (eV) the levels are meant for: decides the auto shell and the notes on
+    /// levels out of its reach (None: Al Kα for the choice, no notes).
+    pub photon_ev: Option<f64>,
 }
 
 impl Default for CoreOptions {
@@ -120,6 +127,8 @@ impl Default for CoreOptions {
             use_symmetry: true,
             relativistic: false,
             delocalised: false,
+            shell: ShellChoice::Auto,
+            photon_ev: None,
         }
     }
 }

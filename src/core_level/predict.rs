@@ -41,6 +41,10 @@ pub fn predict_with_progress(
     progress: &(dyn Fn(usize, usize) + Sync),
 ) -> Result<CoreResult> {
     use crate::analysis::symmetry::{symmetrize, DEFAULT_TOLERANCE};
+    // 2s/2p levels (and photon-energy notes) take their own path (`two_p.rs`).
+    if let Some(r) = super::two_p::predict_shells(mol, basis, opts, progress)? {
+        return Ok(r);
+    }
     // Exactly symmetric positions first, so equivalent atoms are computed once.
     let (symmetric, displacement, group) = symmetrize(mol, DEFAULT_TOLERANCE);
     let moved = displacement > SYMMETRISED_NOTE_BOHR;

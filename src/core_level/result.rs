@@ -9,6 +9,8 @@ use crate::ionization::band::{Band, MakeupEntry, Region};
 use super::delocalised::DelocalisedHole;
 use super::hole_check::HoleStatus;
 use super::notes::Notes;
+use super::shell_hole::SpatialHole;
+use super::spin_orbit::LevelComponent;
 
 /// One SCF search for the core-ionised state of one atom.
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -77,6 +79,16 @@ pub struct CoreLevel {
     /// The delocalised (symmetry-constrained) hole, when asked and the atom has equivalent
     /// partners; null otherwise.
     pub delocalised: Option<DelocalisedHole>,
+    /// 2p levels: the spin–orbit splitting E(2p1/2) − E(2p3/2) of this atom (eV); null for s.
+    pub spin_orbit_ev: Option<f64>,
+    /// 2p levels: the Kramers doublets that make up the line (molecular-field substructure,
+    /// two electrons each); absent for s levels.
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub components: Vec<LevelComponent>,
+    /// 2p levels: the three spatial ΔSCF holes along the principal axes of the field at the
+    /// atom; absent for s levels.
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub spatial_holes: Vec<SpatialHole>,
     /// JSON: `notes` (messages) and `note_details` (`{code, message}`).
     #[serde(flatten)]
     pub notes: Notes,
@@ -91,6 +103,8 @@ pub struct ShiftReferenceLevel {
     pub molecule: String,
     pub atom: usize,
     pub element: String,
+    /// The reference level's shell ("1s", "2p3/2", …): shifts compare like shells.
+    pub shell: String,
     pub dscf_ev: f64,
     pub dmp2_ev: Option<f64>,
 }
@@ -160,7 +174,23 @@ impl CoreResult {
     pub fn bands(&self) -> Vec<Band> {
         self.core_levels
             .iter()
-            .map(|l| Band {
+            .flat_map(|l| {
+                if l.components.is_empty() {
+                    vec![level_band(l)]
+                } else {
+                    super::two_p::component_bands(l, level_band(l))
+                }
+            })
+            .collect()
+    }
+}
+
+/// The band of one level: at the ΔSCF energy (ΔMP2 when computed) plus the relativistic
+/// correction when asked, two electrons.
+fn level_band(l: &CoreLevel) -> Band {
+    {
+        {
+            Band {
                 label: l.label.clone(),
                 symmetry: None,
                 ie_ev: l.dmp2_ev.unwrap_or(l.dscf_ev) + l.relativistic_correction_ev.unwrap_or(0.0),
@@ -183,8 +213,8 @@ impl CoreResult {
                 region: Region::Core,
                 atom: Some(l.atom - 1),
                 lifetime_fwhm_ev: l.lifetime_fwhm_ev,
-            })
-            .collect()
+            }
+        }
     }
 }
 
@@ -222,6 +252,9 @@ mod tests {
             n_basis: 10,
             same_as_atom: None,
             delocalised: None,
+            spin_orbit_ev: None,
+            components: vec![],
+            spatial_holes: vec![],
             notes: Notes::default(),
         }
     }

@@ -67,6 +67,9 @@ pub struct RequestOptions {
     pub quick: bool,
     /// Memory budget in bytes (None: the machine-dependent default of `scf::options`).
     pub memory_bytes: Option<usize>,
+    /// Core: the photon energy (eV) of the spectrum, which picks the shell of each atom
+    /// (`core_level::shell`); None: Al Kα.
+    pub photon_ev: Option<f64>,
 }
 
 /// One prediction of the bands of one molecule.

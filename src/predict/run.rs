@@ -107,6 +107,7 @@ fn predict_core(req: &Request, progress: &(dyn Fn(Progress) + Sync)) -> Result<P
     let mut opts = CoreOptions {
         mp2: method == CoreMethod::Dmp2,
         thorough: !req.options.quick,
+        photon_ev: req.options.photon_ev,
         ..CoreOptions::default()
     };
     if let Some(atoms) = &req.options.atoms {

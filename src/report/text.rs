@@ -290,8 +290,8 @@ pub fn core_table(r: &CoreResult) -> String {
     }
     for rf in &r.references {
         s.push_str(&format!(
-            "Shift reference: {} 1s of {} (atom {}) at {:.2} eV\n",
-            rf.element, rf.molecule, rf.atom, rf.dscf_ev
+            "Shift reference: {} {} of {} (atom {}) at {:.2} eV\n",
+            rf.element, rf.shell, rf.molecule, rf.atom, rf.dscf_ev
         ));
     }
     s.push('\n');

@@ -78,7 +78,34 @@ const TABLE: &[Row] = &[
     (9, 1, 0, 2.0, None, None, 6.0e-2),
     (9, 2, 0, 2.0, Some(1.77), Some(1.32), 2.8e-3), // 21.2, 40.8: from memory
     (9, 2, 1, 5.0, Some(11.6), Some(8.6), 6.8e-4),  // 21.2, 40.8: from memory
+    // Na–Ar core levels at 1486.6 eV: **from memory** of the Yeh & Lindau (1985) table
+    // (cross-checked against remembered ratios to C 1s of the Scofield 1976 sensitivity
+    // factors, J. Electron Spectrosc. Relat. Phenom. 8 (1976) 129), ±30 %. The 2p and 2s
+    // levels (≥ 30 eV) are out of reach of He I; He II reaches only Na 2p, left untabulated.
+    (11, 1, 0, 2.0, None, None, 1.1e-1),
+    (11, 2, 0, 2.0, None, None, 5.1e-3),
+    (11, 2, 1, 6.0, None, None, 1.7e-3),
+    (12, 1, 0, 2.0, None, None, 1.46e-1),
+    (12, 2, 0, 2.0, None, None, 7.5e-3),
+    (12, 2, 1, 6.0, None, None, 3.3e-3),
+    (13, 2, 0, 2.0, None, None, 9.8e-3),
+    (13, 2, 1, 6.0, None, None, 7.0e-3),
+    (14, 2, 0, 2.0, None, None, 1.24e-2),
+    (14, 2, 1, 6.0, None, None, 1.06e-2),
+    (15, 2, 0, 2.0, None, None, 1.53e-2),
+    (15, 2, 1, 6.0, None, None, 1.55e-2),
+    (16, 2, 0, 2.0, None, None, 1.86e-2),
+    (16, 2, 1, 6.0, None, None, 2.18e-2),
+    (17, 2, 0, 2.0, None, None, 2.20e-2),
+    (17, 2, 1, 6.0, None, None, 2.98e-2),
+    (18, 2, 0, 2.0, None, None, 2.56e-2),
+    (18, 2, 1, 6.0, None, None, 3.90e-2),
 ];
+
+/// Elements whose rows above are typed from memory at 1486.6 eV too (Na–Ar).
+fn al_ka_from_memory(z: u32) -> bool {
+    (11..=18).contains(&z)
+}
 
 /// Hydrogen ionization energy used in the exact formula (eV): 0.5 Eh.
 const H_IONIZATION_EV: f64 = 0.5 * HARTREE_TO_EV;
@@ -116,7 +143,15 @@ pub fn subshell_mb(z: u32, n: u32, l: u32, hv_ev: f64) -> Option<(f64, f64, Prov
         pts.push((E_HE2, v, Provenance::YehLindauFromMemory));
     }
     pts.push((E_MGKA, s_mgka, Provenance::PowerLawScaled));
-    pts.push((E_ALKA, s_alka, Provenance::YehLindau));
+    pts.push((
+        E_ALKA,
+        s_alka,
+        if al_ka_from_memory(z) {
+            Provenance::YehLindauFromMemory
+        } else {
+            Provenance::YehLindau
+        },
+    ));
     // Exact hit (within the rounding of the nominal line energies).
     for &(e, v, p) in &pts {
         if (hv_ev - e).abs() < 0.05 {
@@ -184,8 +219,16 @@ pub fn gelius_intensity(band: &Band, hv_ev: f64) -> GeliusIntensity {
         };
         let n = match (z, band.region, l) {
             (1 | 2, _, _) => 1,
-            (_, Region::Core, 0) => 1,
-            _ => 2,
+            // core levels name their shell ("1s", "2p3/2"); an unnamed s share is a 1s
+            (_, Region::Core, _) => m
+                .shell
+                .chars()
+                .next()
+                .and_then(|c| c.to_digit(10))
+                .unwrap_or(if l == 0 { 1 } else { 2 }),
+            // valence shares: the 2s/2p of Li–Ne; Na–Ar valence (3s, 3p) is not tabulated
+            (3..=10, _, _) => 2,
+            _ => 3,
         };
         match subshell_mb(z, n, l, hv_ev) {
             Some((sigma, occ, prov)) => {
@@ -227,5 +270,11 @@ mod tests {
         assert_eq!(p, Provenance::Interpolated);
         assert!(subshell_mb(6, 1, 0, 21.2).is_none());
         assert!(subshell_mb(6, 2, 1, 5000.0).is_none());
+        // Na–Ar rows: typed from memory, 2p above 2s from P on at 1486.6 eV (Scofield 1976
+        // sensitivity factors, from memory: S 2p 1.68 vs S 2s 1.43 relative to C 1s).
+        let (s2p, occ, p) = subshell_mb(16, 2, 1, 1486.6).unwrap();
+        assert_eq!((occ, p), (6.0, Provenance::YehLindauFromMemory));
+        assert!(s2p > subshell_mb(16, 2, 0, 1486.6).unwrap().0);
+        assert!(subshell_mb(16, 2, 1, 40.8).is_none());
     }
 }
