@@ -88,8 +88,8 @@ pub fn run(args: Args) -> Result<()> {
     let defaulted = args.method.is_none();
     let method = match &args.method {
         Some(m) => Method::parse(m)?,
-        // the chain's first choice; predict_default falls back from it when it fails
-        None => default_method::choose(&mol, &basis, memory_bytes).method,
+        // decided below, before any work, from the full options
+        None => Method::Koopmans,
     };
     use bandcast::correlation::two_electron::TwoElectron;
     let eom_integrals = match args.integrals.as_deref() {
@@ -113,7 +113,7 @@ pub fn run(args: Args) -> Result<()> {
             )))
         }
     };
-    let opts = ValenceOptions {
+    let mut opts = ValenceOptions {
         method,
         count: args.count,
         window_ev: args.window.map(|w| w.1),
@@ -123,7 +123,21 @@ pub fn run(args: Args) -> Result<()> {
         eom_integrals,
         ..Default::default()
     };
+    // every stage's memory estimate before any work: the default chain's choice, or the
+    // asked method's stages (refused by `predict` before its SCF when they cannot fit)
+    let estimates = if defaulted {
+        let plan = default_method::plan_before_work(&mol, &basis, &opts)?;
+        opts.method = plan.choice.method;
+        if args.verbose {
+            eprintln!("{}: {}", mol.name, plan.choice);
+        }
+        plan.estimates
+    } else {
+        default_method::stage_estimates(&mol, &basis, &opts, method)
+    };
+    let method = opts.method;
     if args.verbose {
+        super::common::print_estimates(&mol.name, &estimates, memory_bytes);
         eprintln!(
             "{}: {} / {} ({} basis functions){}",
             mol.name,
