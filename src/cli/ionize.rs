@@ -4,6 +4,7 @@
 
 use bandcast::ionization::default_method;
 use bandcast::ionization::method::Method;
+use bandcast::ionization::notice::ValenceNotice;
 use bandcast::ionization::valence::{predict, ValenceOptions};
 use bandcast::report::json::{to_pretty, IonizeJson};
 use bandcast::report::text::ionize_table;
@@ -84,6 +85,11 @@ pub fn run(args: Args) -> Result<()> {
         None => bandcast::system::default_memory_budget() as f64,
     };
     let basis = bandcast::basis::load(&args.basis, &mol, None)?;
+    // symmetric within the tolerance → exactly symmetric (the detection `core` uses too)
+    use bandcast::analysis::symmetry::{symmetrize_job, DEFAULT_TOLERANCE};
+    let job = symmetrize_job(&mol, &basis, DEFAULT_TOLERANCE);
+    let symmetrised = ValenceNotice::for_symmetrised(&job, DEFAULT_TOLERANCE);
+    let (mol, basis) = (job.molecule, job.basis);
     let loaded_s = started.elapsed().as_secs_f64();
     let defaulted = args.method.is_none();
     let method = match &args.method {
@@ -153,11 +159,12 @@ pub fn run(args: Args) -> Result<()> {
         eprintln!("  molecule and basis: {loaded_s:.2} s");
     }
     let predict_started = std::time::Instant::now();
-    let result = if defaulted {
+    let mut result = if defaulted {
         default_method::predict_default(&mol, &basis, &opts)?.0
     } else {
         predict(&mol, &basis, &opts)?
     };
+    result.notes.extend(symmetrised);
     if args.verbose {
         eprintln!(
             "  SCF and {}: {:.2} s",

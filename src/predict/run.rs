@@ -6,6 +6,7 @@ use super::request::{CoreMethod, MethodChoice, Request};
 use crate::basis::BasisSet;
 use crate::chem::Molecule;
 use crate::error::{Error, Result};
+use crate::ionization::notice::ValenceNotice;
 use crate::ionization::valence::{self, ValenceOptions};
 use crate::ionization::{Method, Region};
 use crate::system::StageEstimate;
@@ -107,7 +108,12 @@ fn predict_valence(req: &Request) -> Result<Prediction> {
         }
     };
     let opts = valence_options(req, method);
-    let r = valence::predict(mol, req.basis, &opts)?;
+    // symmetric within the tolerance → exactly symmetric (the detection `core` uses too)
+    use crate::analysis::symmetry::{symmetrize_job, DEFAULT_TOLERANCE};
+    let job = symmetrize_job(mol, req.basis, DEFAULT_TOLERANCE);
+    let mut r = valence::predict(&job.molecule, &job.basis, &opts)?;
+    r.notes
+        .extend(ValenceNotice::for_symmetrised(&job, DEFAULT_TOLERANCE));
     let mut notes: Vec<Notice> = r
         .notes
         .iter()
