@@ -76,13 +76,33 @@ fn open_shell_default_says_why() {
 }
 
 /// A memory budget too small for EOM-IP-CCSD and EOM-IP-MBPT2 gives EP2 with the memory
-/// plan's message as the reason (correlation::memory refuses with the needed size).
+/// plan's message as the reason (correlation::memory refuses with the needed size); one
+/// too small for EP2's transformation too gives Koopmans (the EP2 estimate enters the
+/// choice before any work).
 #[test]
 fn tiny_budget_falls_back_to_ep2_with_reason() {
+    use bandcast::ionization::default_method::stage_estimates;
     let w = mol(WATER);
     let b = bandcast::basis::load("cc-pvdz", &w, None).unwrap();
-    let c = choose(&w, &b, 1e4);
+    let big = ValenceOptions {
+        memory_bytes: 1 << 40,
+        ..Default::default()
+    };
+    let ep2 = stage_estimates(&w, &b, &big, Method::Ep2)
+        .last()
+        .unwrap()
+        .bytes;
+    let mp2 = stage_estimates(&w, &b, &big, Method::EomMp2)
+        .last()
+        .unwrap()
+        .bytes;
+    assert!(ep2 < mp2, "EP2 {ep2} < EOM-MP2 {mp2}");
+    let c = choose(&w, &b, 0.5 * (ep2 + mp2).min(2.0 * ep2));
     assert_eq!(c.method, Method::Ep2);
+    assert!(c.skipped.iter().all(|s| s.reason.code() == "does-not-fit"));
+    let c = choose(&w, &b, 0.5 * ep2);
+    assert_eq!(c.method, Method::Koopmans);
+    assert_eq!(c.skipped.len(), 3);
     assert!(c.skipped.iter().all(|s| s.reason.code() == "does-not-fit"));
 }
 

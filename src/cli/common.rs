@@ -143,6 +143,13 @@ impl PredictArgs {
             },
         };
         let verbose = self.verbose;
+        if verbose {
+            print_estimates(
+                &mol.name,
+                &bandcast::predict::memory_estimates(&request)?,
+                request.memory_bytes() as f64,
+            );
+        }
         let started = std::time::Instant::now();
         let p = predict(&request, &|event| {
             if verbose {
@@ -236,6 +243,17 @@ pub fn check_output_dir(path: Option<&Path>) -> Result<()> {
         }
     }
     Ok(())
+}
+
+/// `--verbose`: each stage's memory estimate (made before any work) on stderr, in GiB.
+pub fn print_estimates(name: &str, estimates: &[bandcast::system::StageEstimate], budget: f64) {
+    eprintln!(
+        "{name}: memory estimates before any work (budget {}):",
+        bandcast::system::format_gib(budget)
+    );
+    for e in estimates {
+        eprintln!("  {e}");
+    }
 }
 
 /// Print a printer's JSON text on stdout.

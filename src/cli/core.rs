@@ -181,6 +181,19 @@ pub fn run(args: Args) -> Result<()> {
     let mol = args.molecule.load()?;
     let set = basis::load(&args.basis, &mol, None)?;
     let opts = options(&args)?;
+    if args.verbose {
+        use bandcast::predict::{CoreMethod as Cm, MethodChoice, Request};
+        let mut req = Request::new(&mol, &set, bandcast::ionization::Region::Core);
+        if opts.mp2 {
+            req.method = MethodChoice::Core(Cm::Dmp2);
+        }
+        let budget = req.memory_bytes() as f64;
+        super::common::print_estimates(
+            &mol.name,
+            &bandcast::predict::memory_estimates(&req)?,
+            budget,
+        );
+    }
     let bar = if std::io::stderr().is_terminal() {
         let b = indicatif::ProgressBar::new(0);
         b.set_style(

@@ -4,6 +4,7 @@
 
 use bandcast::ionization::default_method;
 use bandcast::ionization::method::Method;
+use bandcast::ionization::notice::ValenceNotice;
 use bandcast::ionization::valence::{predict, ValenceOptions};
 use bandcast::report::json::{to_pretty, IonizeJson};
 use bandcast::report::text::ionize_table;
@@ -98,12 +99,17 @@ pub fn run(args: Args) -> Result<()> {
         None => bandcast::system::default_memory_budget() as f64,
     };
     let basis = bandcast::basis::load(&args.basis, &mol, None)?;
+    // symmetric within the tolerance → exactly symmetric (the detection `core` uses too)
+    use bandcast::analysis::symmetry::{symmetrize_job, DEFAULT_TOLERANCE};
+    let job = symmetrize_job(&mol, &basis, DEFAULT_TOLERANCE);
+    let symmetrised = ValenceNotice::for_symmetrised(&job, DEFAULT_TOLERANCE);
+    let (mol, basis) = (job.molecule, job.basis);
     let loaded_s = started.elapsed().as_secs_f64();
     let defaulted = args.method.is_none();
     let method = match &args.method {
         Some(m) => Method::parse(m)?,
-        // the chain's first choice; predict_default falls back from it when it fails
-        None => default_method::choose(&mol, &basis, memory_bytes).method,
+        // decided below, before any work, from the full options
+        None => Method::Koopmans,
     };
     use bandcast::correlation::two_electron::TwoElectron;
     let eom_integrals = match args.integrals.as_deref() {
@@ -127,7 +133,7 @@ pub fn run(args: Args) -> Result<()> {
             )))
         }
     };
-    let opts = ValenceOptions {
+    let mut opts = ValenceOptions {
         method,
         count: args.count,
         window_ev: args.window.map(|w| w.1),
@@ -137,7 +143,21 @@ pub fn run(args: Args) -> Result<()> {
         eom_integrals,
         ..Default::default()
     };
+    // every stage's memory estimate before any work: the default chain's choice, or the
+    // asked method's stages (refused by `predict` before its SCF when they cannot fit)
+    let estimates = if defaulted {
+        let plan = default_method::plan_before_work(&mol, &basis, &opts)?;
+        opts.method = plan.choice.method;
+        if args.verbose {
+            eprintln!("{}: {}", mol.name, plan.choice);
+        }
+        plan.estimates
+    } else {
+        default_method::stage_estimates(&mol, &basis, &opts, method)
+    };
+    let method = opts.method;
     if args.verbose {
+        super::common::print_estimates(&mol.name, &estimates, memory_bytes);
         eprintln!(
             "{}: {} / {} ({} basis functions){}",
             mol.name,
@@ -153,11 +173,12 @@ pub fn run(args: Args) -> Result<()> {
         eprintln!("  molecule and basis: {loaded_s:.2} s");
     }
     let predict_started = std::time::Instant::now();
-    let result = if defaulted {
+    let mut result = if defaulted {
         default_method::predict_default(&mol, &basis, &opts)?.0
     } else {
         predict(&mol, &basis, &opts)?
     };
+    result.notes.extend(symmetrised);
     if args.verbose {
         eprintln!(
             "  SCF and {}: {:.2} s",

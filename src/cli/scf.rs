@@ -162,12 +162,22 @@ pub fn run(args: Args) -> Result<()> {
         ..ScfOptions::default()
     };
     let show = args.verbose || std::io::stderr().is_terminal();
+    if args.verbose {
+        super::common::print_estimates(
+            &mol.name,
+            &scf::memory::estimates(basis.n_basis, basis.shells.len(), &opts),
+            opts.memory_budget_bytes as f64,
+        );
+    }
+    // refuse before the one-electron integrals and Schwarz bounds when even the matrices
+    // cannot fit --memory
+    scf::memory::check(basis.n_basis, &opts)?;
     let mut ctx = scf::ScfContext::new(&mol, &basis, opts.lindep_threshold)?;
     if show {
-        let gib = |b: usize| b as f64 / (1u64 << 30) as f64;
+        let gib = |b: usize| bandcast::system::format_gib(b as f64);
         let need = ctx.in_core_bytes(opts.screening);
         eprintln!(
-            "scf: {} functions; in-core ERIs would need {:.2} GiB of the {:.2} GiB budget; \
+            "scf: {} functions; in-core ERIs would need {} of the {} budget; \
              Fock build {}",
             basis.n_basis,
             gib(need),

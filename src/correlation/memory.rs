@@ -8,6 +8,7 @@
 //! particle–particle ladder integrals V± (v⁴/4 words, ladder.rs; CCSD only) and the (ov|vv)
 //! block (o v³ words). Without them the same quantities are rebuilt from the factors.
 
+use crate::system::StageEstimate;
 use crate::{Error, Result};
 
 /// Which correlated method the plan is for.
@@ -48,6 +49,9 @@ pub struct MemoryPlan {
     /// Largest number of Cholesky vectors the budget allows.
     pub max_cholesky_vectors: usize,
     pub budget_bytes: f64,
+    /// The parts of the peak, for `--verbose` (bytes each; the peak is not their sum, as
+    /// the factor stage and the amplitude/EOM stages do not overlap).
+    pub stages: Vec<StageEstimate>,
 }
 
 /// Expected number of Cholesky vectors for `n` basis functions at threshold `tau`
@@ -155,7 +159,64 @@ pub fn plan(
     }
     let left = (budget_bytes - 2.0 * 256.0 * npair * w - factors * w).max(0.0);
     let max_cholesky_vectors = ((left / (npair * w)) as usize).min(npair as usize).max(1);
+    let name = match stage {
+        Stage::EomCcsd => "eom-ccsd",
+        Stage::EomMbpt2 => "eom-mp2",
+    };
+    let mut stages = vec![
+        StageEstimate::needed(
+            format!(
+                "{name}: two-electron factors ({})",
+                match route {
+                    FactorRoute::Fitted(r) => format!("{r} fitting functions"),
+                    FactorRoute::Cholesky(r) => format!("~{r} Cholesky vectors"),
+                }
+            ),
+            factor_stage * w,
+        ),
+        StageEstimate::needed(
+            format!("{name}: MO integrals (factors and blocks with ≤ 2 virtual indices)"),
+            (factors + blocks + slice) * w,
+        ),
+        StageEstimate::needed(
+            format!(
+                "{name}: {}",
+                match stage {
+                    Stage::EomCcsd => "CC amplitudes, residuals and DIIS history",
+                    Stage::EomMbpt2 => "first-order amplitudes",
+                }
+            ),
+            ground * w,
+        ),
+        StageEstimate::needed(
+            format!("{name}: EOM H̄ blocks and Davidson vectors"),
+            eom * w,
+        ),
+    ];
+    if stage == Stage::EomCcsd {
+        stages.push(StageEstimate::optional(
+            format!("{name}: stored ladder integrals (vv|vv)"),
+            ladder * w,
+        ));
+    }
+    stages.push(StageEstimate::optional(
+        format!("{name}: stored (ov|vv) block"),
+        ovvv,
+    ));
+    stages.push(StageEstimate::needed(
+        format!(
+            "{name}: peak as planned ({}{})",
+            if store_vvvv {
+                "ladder stored"
+            } else {
+                "ladder rebuilt"
+            },
+            if store_ovvv { ", (ov|vv) stored" } else { "" }
+        ),
+        peak,
+    ));
     Ok(MemoryPlan {
+        stages,
         peak_bytes: peak,
         store_ovvv,
         store_vvvv,

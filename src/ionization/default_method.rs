@@ -17,15 +17,17 @@
 use serde::Serialize;
 
 use crate::basis::BasisSet;
-use crate::chem::frozen_core::frozen_orbitals;
+use crate::chem::frozen_core::{core_orbitals, frozen_orbitals};
 use crate::chem::Molecule;
 use crate::correlation::memory::{self, FactorRoute, Stage};
 use crate::correlation::two_electron::{self, Resolved, TwoElectron};
 use crate::error::{Error, Result};
+use crate::integrals::mo_transform::{estimate_bytes_for, max_shell_functions};
 use crate::ionization::method::Method;
 use crate::ionization::notice::ValenceNotice;
-use crate::ionization::valence::{predict_with, ValenceOptions, ValenceResult};
-use crate::scf::Reference;
+use crate::ionization::valence::{predict_with, ValenceOptions, ValenceResult, COUNT_MARGIN};
+use crate::scf::{Reference, ScfOptions};
+use crate::system::{format_gib, StageEstimate};
 
 /// Largest basis for the EOM-IP-CCSD default (benzene/def2-TZVPP has 270 functions).
 pub const CCSD_MAX_BASIS: usize = 300;
@@ -158,13 +160,152 @@ pub fn chain(mol: &Molecule) -> Vec<Method> {
     }
 }
 
-/// Why `method` cannot run for this molecule, basis and memory budget (bytes), checked
-/// before any work; None when it can.
-pub fn cannot_run(
+/// The SCF options a valence job runs with: the reference its spin needs, and `--memory`
+/// bounding the SCF too (the smaller of the SCF's own budget and the job's).
+pub fn scf_options(mol: &Molecule, opts: &ValenceOptions) -> ScfOptions {
+    let mut scf = opts.scf.clone();
+    scf.reference = if mol.multiplicity == 1 {
+        Reference::Rhf
+    } else {
+        Reference::Uhf
+    };
+    scf.memory_budget_bytes = scf.memory_budget_bytes.min(opts.memory_bytes);
+    scf
+}
+
+/// Target orbitals EP2 may be asked for before the SCF has grouped them into bands: one per
+/// valence orbital (degenerate orbitals share one target, so this is an upper bound), or
+/// the band count plus the margin the valence code adds.
+fn ep2_targets(mol: &Molecule, opts: &ValenceOptions) -> usize {
+    let nocc = mol.n_electrons() / 2;
+    let nval = nocc - core_orbitals(mol).min(nocc);
+    match opts.count {
+        Some(c) => (c + COUNT_MARGIN).min(nval),
+        None => nval,
+    }
+    .max(1)
+}
+
+/// Peak bytes of EP2's MO integral transformation for `n_targets` target orbitals (the
+/// blocks (t a|j b) and (t j|a k) of `ionization::ep2`).
+pub fn ep2_transform_bytes(
+    mol: &Molecule,
+    basis: &BasisSet,
+    opts: &ValenceOptions,
+    n_targets: usize,
+) -> f64 {
+    let nocc = mol.n_electrons() / 2;
+    let no = if opts.frozen_core {
+        nocc - core_orbitals(mol).min(nocc)
+    } else {
+        nocc
+    };
+    let nv = basis.n_basis.saturating_sub(nocc);
+    estimate_bytes_for(
+        basis.n_basis,
+        max_shell_functions(basis),
+        &[[n_targets, nv, no, nv], [n_targets, no, nv, no]],
+        rayon::current_num_threads(),
+    ) as f64
+}
+
+/// The correlated memory plan of an EOM-IP method for this job (refuses with
+/// `Error::TooLarge` naming the cheaper method when it cannot fit).
+fn eom_plan(
+    stage: Stage,
+    mol: &Molecule,
+    basis: &BasisSet,
+    opts: &ValenceOptions,
+) -> Result<memory::MemoryPlan> {
+    let (ncorr, nvir, route) = correlated_space(mol, basis);
+    let ncorr = if opts.frozen_core {
+        ncorr
+    } else {
+        mol.n_electrons() / 2
+    };
+    let route = match opts.eom_integrals {
+        TwoElectron::Cholesky => {
+            FactorRoute::Cholesky(memory::expected_cholesky_vectors(basis.n_basis, 1e-5))
+        }
+        _ => route,
+    };
+    // 8 DIIS vectors, 60 Davidson vectors: the plan the EOM code makes by default
+    memory::plan(
+        stage,
+        basis.n_basis,
+        ncorr,
+        nvir,
+        route,
+        8,
+        60,
+        opts.memory_bytes as f64,
+    )
+}
+
+fn applies(method: Method, mol: &Molecule, basis: &BasisSet) -> bool {
+    matches!(method, Method::EomCcsd | Method::EomMp2 | Method::Ep2)
+        && mol.multiplicity == 1
+        && basis.n_basis > mol.n_electrons() / 2
+}
+
+/// The peak memory of each stage of `method` for this job, from the molecule and basis
+/// alone (no integral, no SCF): the SCF (its matrices, and the optional in-core store),
+/// then EP2's MO integral transformation for all candidate targets, or the EOM-IP plan's
+/// factors, MO integrals, amplitudes and Davidson space. Estimates only: the refusals are
+/// [`check_scf`] and [`cannot_run_with`].
+pub fn stage_estimates(
+    mol: &Molecule,
+    basis: &BasisSet,
+    opts: &ValenceOptions,
+    method: Method,
+) -> Vec<StageEstimate> {
+    let scf = scf_options(mol, opts);
+    let mut out = crate::scf::memory::estimates(basis.n_basis, basis.shells.len(), &scf);
+    if !applies(method, mol, basis) {
+        return out;
+    }
+    match method {
+        Method::Ep2 => {
+            let t = ep2_targets(mol, opts);
+            out.push(StageEstimate::needed(
+                format!(
+                    "ep2: MO integrals for {t} target orbital{} (at most: degenerate orbitals \
+                     share one)",
+                    if t == 1 { "" } else { "s" }
+                ),
+                ep2_transform_bytes(mol, basis, opts, t),
+            ));
+        }
+        Method::EomCcsd | Method::EomMp2 => {
+            let stage = if method == Method::EomCcsd {
+                Stage::EomCcsd
+            } else {
+                Stage::EomMbpt2
+            };
+            if let Ok(p) = eom_plan(stage, mol, basis, opts) {
+                out.extend(p.stages);
+            }
+        }
+        _ => {}
+    }
+    out
+}
+
+/// Refuse (`Error::TooLarge`) when even the SCF cannot fit the job's budget: no method of
+/// the chain can run then.
+pub fn check_scf(mol: &Molecule, basis: &BasisSet, opts: &ValenceOptions) -> Result<f64> {
+    crate::scf::memory::check(basis.n_basis, &scf_options(mol, opts))
+}
+
+/// Why `method` cannot run for this molecule, basis and options (the budget is
+/// `opts.memory_bytes`), checked before any work; None when it can. EP2 counts one target
+/// per valence orbital (an upper bound), so the default never starts an EP2 it would have
+/// to abandon after the SCF.
+pub fn cannot_run_with(
     method: Method,
     mol: &Molecule,
     basis: &BasisSet,
-    budget_bytes: f64,
+    opts: &ValenceOptions,
 ) -> Option<SkipReason> {
     let correlated = matches!(method, Method::EomCcsd | Method::EomMp2 | Method::Ep2);
     if !correlated {
@@ -182,10 +323,26 @@ pub fn cannot_run(
             n_occupied,
         });
     }
+    let budget = opts.memory_bytes as f64;
     let (stage, limit) = match method {
         Method::EomCcsd => (Stage::EomCcsd, CCSD_MAX_BASIS),
         Method::EomMp2 => (Stage::EomMbpt2, MBPT2_MAX_BASIS),
-        _ => return None,
+        _ => {
+            let t = ep2_targets(mol, opts);
+            let need = ep2_transform_bytes(mol, basis, opts, t);
+            if need > budget {
+                return Some(SkipReason::DoesNotFit {
+                    message: format!(
+                        "EP2 may need {} for the MO integrals of its {t} target orbitals ({} \
+                         basis functions), over the budget of {}",
+                        format_gib(need),
+                        basis.n_basis,
+                        format_gib(budget)
+                    ),
+                });
+            }
+            return None;
+        }
     };
     if basis.n_basis > limit {
         return Some(SkipReason::BasisTooLarge {
@@ -193,18 +350,7 @@ pub fn cannot_run(
             limit,
         });
     }
-    let (ncorr, nvir, route) = correlated_space(mol, basis);
-    // 8 DIIS vectors, 60 Davidson vectors: the plan the EOM code makes by default
-    match memory::plan(
-        stage,
-        basis.n_basis,
-        ncorr,
-        nvir,
-        route,
-        8,
-        60,
-        budget_bytes,
-    ) {
+    match eom_plan(stage, mol, basis, opts) {
         Ok(_) => None,
         Err(e) => Some(SkipReason::DoesNotFit {
             message: e.to_string(),
@@ -212,11 +358,46 @@ pub fn cannot_run(
     }
 }
 
-/// The first method of the chain that can run (checked before any work).
-pub fn choose(mol: &Molecule, basis: &BasisSet, budget_bytes: f64) -> DefaultChoice {
+/// [`cannot_run_with`] with default options and this budget (bytes).
+pub fn cannot_run(
+    method: Method,
+    mol: &Molecule,
+    basis: &BasisSet,
+    budget_bytes: f64,
+) -> Option<SkipReason> {
+    let opts = ValenceOptions {
+        memory_bytes: budget_bytes as usize,
+        ..ValenceOptions::default()
+    };
+    cannot_run_with(method, mol, basis, &opts)
+}
+
+/// The default choice made before any work, with the chosen method's stage estimates.
+#[derive(Debug, Clone)]
+pub struct Preflight {
+    pub choice: DefaultChoice,
+    pub estimates: Vec<StageEstimate>,
+}
+
+/// Choose the default method from the molecule, basis and options alone — every memory
+/// estimate (SCF, EP2, EOM-IP) enters the choice before the SCF starts. Refuses with
+/// `Error::TooLarge` when not even the SCF fits the budget.
+pub fn plan_before_work(
+    mol: &Molecule,
+    basis: &BasisSet,
+    opts: &ValenceOptions,
+) -> Result<Preflight> {
+    check_scf(mol, basis, opts)?;
+    let choice = choose_with(mol, basis, opts);
+    let estimates = stage_estimates(mol, basis, opts, choice.method);
+    Ok(Preflight { choice, estimates })
+}
+
+/// The first method of the chain that can run for these options (checked before any work).
+pub fn choose_with(mol: &Molecule, basis: &BasisSet, opts: &ValenceOptions) -> DefaultChoice {
     let mut skipped = Vec::new();
     for m in chain(mol) {
-        match cannot_run(m, mol, basis, budget_bytes) {
+        match cannot_run_with(m, mol, basis, opts) {
             None => return DefaultChoice { method: m, skipped },
             Some(reason) => skipped.push(Skipped { method: m, reason }),
         }
@@ -228,28 +409,33 @@ pub fn choose(mol: &Molecule, basis: &BasisSet, budget_bytes: f64) -> DefaultCho
     }
 }
 
+/// The first method of the chain that can run within `budget_bytes` with default options.
+pub fn choose(mol: &Molecule, basis: &BasisSet, budget_bytes: f64) -> DefaultChoice {
+    let opts = ValenceOptions {
+        memory_bytes: budget_bytes as usize,
+        ..ValenceOptions::default()
+    };
+    choose_with(mol, basis, &opts)
+}
+
 /// Run the SCF once and predict the valence bands with the default method, falling back
 /// along the chain when a method cannot run or fails (a computation error, or a memory
 /// refusal found only when the job is planned in full). `opts.method` is ignored;
-/// `opts.memory_bytes` is the budget. The choice is added to the result's notes, and a
+/// `opts.memory_bytes` is the budget of every stage, the SCF included, and the choice is
+/// made before the SCF ([`plan_before_work`]). The choice is added to the result's notes, and a
 /// method that failed after starting also gives a warning.
 pub fn predict_default(
     mol: &Molecule,
     basis: &BasisSet,
     opts: &ValenceOptions,
 ) -> Result<(ValenceResult, DefaultChoice)> {
-    let mut scf = opts.scf.clone();
-    scf.reference = if mol.multiplicity == 1 {
-        Reference::Rhf
-    } else {
-        Reference::Uhf
-    };
-    let wf = crate::scf::run(mol, basis, &scf)?;
-    let budget = opts.memory_bytes as f64;
+    // every estimate enters the choice before the SCF; a job that cannot fit stops here
+    plan_before_work(mol, basis, opts)?;
+    let wf = crate::scf::run(mol, basis, &scf_options(mol, opts))?;
     let mut skipped = Vec::new();
     let mut failures: Vec<Skipped> = Vec::new();
     for m in chain(mol) {
-        if let Some(reason) = cannot_run(m, mol, basis, budget) {
+        if let Some(reason) = cannot_run_with(m, mol, basis, opts) {
             skipped.push(Skipped { method: m, reason });
             continue;
         }

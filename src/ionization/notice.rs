@@ -29,9 +29,28 @@ pub enum ValenceNotice {
     DefaultMethodChosen(DefaultChoice),
     /// The default chain tried `method`, which failed, and went on to the next (warning).
     DefaultFellBack { method: Method, reason: SkipReason },
+    /// The input was symmetric within `tolerance_bohr` and its atoms were moved onto exactly
+    /// symmetric positions (note).
+    Symmetrised {
+        group: String,
+        max_displacement_angstrom: f64,
+        tolerance_bohr: f64,
+    },
 }
 
 impl ValenceNotice {
+    /// The note for a symmetrised job (None when no atom moved).
+    pub fn for_symmetrised(
+        job: &crate::analysis::symmetry::SymmetrisedJob,
+        tolerance_bohr: f64,
+    ) -> Option<ValenceNotice> {
+        job.moved.then(|| ValenceNotice::Symmetrised {
+            group: job.group.clone(),
+            max_displacement_angstrom: job.max_displacement_bohr * crate::units::BOHR_TO_ANGSTROM,
+            tolerance_bohr,
+        })
+    }
+
     /// Stable identifier for programs reading the JSON.
     pub fn code(&self) -> &'static str {
         match self {
@@ -44,6 +63,7 @@ impl ValenceNotice {
             ValenceNotice::LowPoleStrength { .. } => "low_pole_strength",
             ValenceNotice::DefaultMethodChosen(_) => "default_method_chosen",
             ValenceNotice::DefaultFellBack { .. } => "default_method_fell_back",
+            ValenceNotice::Symmetrised { .. } => "symmetrised",
         }
     }
 }
@@ -80,6 +100,23 @@ impl fmt::Display for ValenceNotice {
             ValenceNotice::DefaultMethodChosen(choice) => write!(f, "{choice}"),
             ValenceNotice::DefaultFellBack { method, reason } => {
                 write!(f, "the default method fell back from {method}: {reason}")
+            }
+            ValenceNotice::Symmetrised {
+                group,
+                max_displacement_angstrom,
+                tolerance_bohr,
+            } => {
+                let d = if *max_displacement_angstrom >= 1e-3 {
+                    format!("{max_displacement_angstrom:.4}")
+                } else {
+                    format!("{max_displacement_angstrom:.1e}")
+                };
+                write!(
+                    f,
+                    "the structure is {group} within the symmetry tolerance ({tolerance_bohr} \
+                     bohr); its atoms were moved onto exact {group} positions (largest \
+                     displacement {d} Å) so that equivalent orbitals get identical numbers"
+                )
             }
         }
     }

@@ -36,7 +36,7 @@ const WINDOW_MARGIN_EV: f64 = 5.0;
 
 /// Extra bands computed beyond `count` so that a band that overtakes one in the Koopmans
 /// order (N2's 3σg) is not lost.
-const COUNT_MARGIN: usize = 2;
+pub const COUNT_MARGIN: usize = 2;
 
 #[derive(Debug, Clone)]
 pub struct ValenceOptions {

@@ -13,4 +13,4 @@ mod run;
 pub use notice::Notice;
 pub use prediction::Prediction;
 pub use request::{CoreMethod, MethodChoice, Request, RequestOptions};
-pub use run::{predict, Progress};
+pub use run::{memory_estimates, predict, Progress};

@@ -6,8 +6,10 @@ use super::request::{CoreMethod, MethodChoice, Request};
 use crate::basis::BasisSet;
 use crate::chem::Molecule;
 use crate::error::{Error, Result};
+use crate::ionization::notice::ValenceNotice;
 use crate::ionization::valence::{self, ValenceOptions};
 use crate::ionization::{Method, Region};
+use crate::system::StageEstimate;
 
 /// What a running prediction reports while it works.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -24,13 +26,6 @@ pub fn predict(request: &Request, progress: &(dyn Fn(Progress) + Sync)) -> Resul
     }
 }
 
-/// The default valence method of a molecule in a basis within a memory budget: the one
-/// rule `bandcast ionize` uses too (closed shells: the most accurate method that fits;
-/// open shells: ΔSCF).
-pub fn default_valence_method(mol: &Molecule, basis: &BasisSet, budget_bytes: usize) -> Method {
-    crate::ionization::default_method::choose(mol, basis, budget_bytes as f64).method
-}
-
 /// The default rule in words, for the note that says which method it chose.
 fn default_rule_text(mol: &Molecule) -> String {
     if mol.multiplicity == 1 {
@@ -42,12 +37,68 @@ fn default_rule_text(mol: &Molecule) -> String {
     }
 }
 
+/// The valence options of a request (the method filled in by the caller).
+fn valence_options(req: &Request, method: Method) -> ValenceOptions {
+    ValenceOptions {
+        method,
+        count: req.options.count,
+        window_ev: req.options.window_max_ev,
+        memory_bytes: req.memory_bytes(),
+        ..ValenceOptions::default()
+    }
+}
+
+/// The memory estimate of each stage of the request, from the molecule and basis alone
+/// (before any integral): the SCF, then the valence method's MO integrals and amplitudes
+/// (the default method as the default rule would choose it), or the core levels' ΔMP2
+/// transformation. Refuses with `Error::TooLarge` when a valence job cannot fit at all.
+pub fn memory_estimates(req: &Request) -> Result<Vec<StageEstimate>> {
+    use crate::ionization::default_method;
+    match (req.region, req.method) {
+        (Region::Valence, MethodChoice::Valence(m)) => Ok(default_method::stage_estimates(
+            req.molecule,
+            req.basis,
+            &valence_options(req, m),
+            m,
+        )),
+        (Region::Valence, _) => Ok(default_method::plan_before_work(
+            req.molecule,
+            req.basis,
+            &valence_options(req, Method::Koopmans),
+        )?
+        .estimates),
+        (Region::Core, m) => {
+            let scf = crate::scf::ScfOptions::default();
+            let mut out =
+                crate::scf::memory::estimates(req.basis.n_basis, req.basis.shells.len(), &scf);
+            if m == MethodChoice::Core(CoreMethod::Dmp2) {
+                let need = crate::correlation::mp2::delta_mp2_preflight(
+                    req.basis,
+                    req.molecule.n_electrons(),
+                )?;
+                out.push(StageEstimate::needed(
+                    "dmp2: MO integrals of the cation's UMP2",
+                    need as f64,
+                ));
+            }
+            Ok(out)
+        }
+    }
+}
+
 fn predict_valence(req: &Request) -> Result<Prediction> {
     let mol = req.molecule;
-    let budget = req.memory_bytes();
     let (method, defaulted) = match req.method {
         MethodChoice::Valence(m) => (m, false),
-        MethodChoice::Default => (default_valence_method(mol, req.basis, budget), true),
+        MethodChoice::Default => (
+            crate::ionization::default_method::choose_with(
+                mol,
+                req.basis,
+                &valence_options(req, Method::Koopmans),
+            )
+            .method,
+            true,
+        ),
         MethodChoice::Core(m) => {
             return Err(Error::input(format!(
                 "{} is a core-level method; valence bands are computed by {}",
@@ -56,14 +107,13 @@ fn predict_valence(req: &Request) -> Result<Prediction> {
             )))
         }
     };
-    let opts = ValenceOptions {
-        method,
-        count: req.options.count,
-        window_ev: req.options.window_max_ev,
-        memory_bytes: budget,
-        ..ValenceOptions::default()
-    };
-    let r = valence::predict(mol, req.basis, &opts)?;
+    let opts = valence_options(req, method);
+    // symmetric within the tolerance → exactly symmetric (the detection `core` uses too)
+    use crate::analysis::symmetry::{symmetrize_job, DEFAULT_TOLERANCE};
+    let job = symmetrize_job(mol, req.basis, DEFAULT_TOLERANCE);
+    let mut r = valence::predict(&job.molecule, &job.basis, &opts)?;
+    r.notes
+        .extend(ValenceNotice::for_symmetrised(&job, DEFAULT_TOLERANCE));
     let mut notes: Vec<Notice> = r
         .notes
         .iter()

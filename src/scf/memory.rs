@@ -8,7 +8,7 @@
 
 use super::options::ScfOptions;
 use super::wavefunction::Reference;
-use crate::system::format_bytes;
+use crate::system::{format_bytes, StageEstimate};
 use crate::{Error, Result};
 
 /// Words of N×N matrices a direct SCF holds at its peak.
@@ -29,6 +29,32 @@ pub fn direct_floor_bytes(n_basis: usize, opts: &ScfOptions) -> f64 {
     let n = n_basis as f64;
     let threads = rayon::current_num_threads();
     8.0 * n * n * matrix_count(opts.reference, opts.diis_space, threads)
+}
+
+/// Upper bound of the in-core integral store (bytes) before any screening: every unique
+/// (μν|λσ) with μ≥ν, λ≥σ, μν≥λσ stored as one f64, plus 16 bytes of bookkeeping per
+/// shell quartet (the layout of `fock::incore`). Schwarz screening makes the real store
+/// smaller; it is measured when the SCF starts.
+pub fn in_core_bound_bytes(n_basis: usize, n_shells: usize) -> f64 {
+    let npair = n_basis as f64 * (n_basis as f64 + 1.0) / 2.0;
+    let spair = n_shells as f64 * (n_shells as f64 + 1.0) / 2.0;
+    8.0 * npair * (npair + 1.0) / 2.0 + 16.0 * spair * (spair + 1.0) / 2.0
+}
+
+/// The SCF's stage estimates, before any integral: the direct floor (needed) and the
+/// unscreened bound of the in-core store (optional: the SCF stores the integrals only when
+/// the screened store fits the budget, and computes them on the fly otherwise).
+pub fn estimates(n_basis: usize, n_shells: usize, opts: &ScfOptions) -> Vec<StageEstimate> {
+    vec![
+        StageEstimate::needed(
+            "SCF matrices (integrals computed on the fly)",
+            direct_floor_bytes(n_basis, opts),
+        ),
+        StageEstimate::optional(
+            "SCF in-core integral store (before screening, at most)",
+            in_core_bound_bytes(n_basis, n_shells),
+        ),
+    ]
 }
 
 /// Refuse (`Error::TooLarge`) when even a direct SCF cannot fit `opts.memory_budget_bytes`;
@@ -65,5 +91,14 @@ mod tests {
         };
         assert!(matches!(check(1000, &tiny), Err(Error::TooLarge(_))));
         assert!(check(10, &tiny).is_ok());
+    }
+
+    #[test]
+    fn in_core_bound_counts_unique_quartets() {
+        // Exact condition: n functions have n(n+1)/2 pairs and P(P+1)/2 unique pairs of
+        // pairs (8-fold permutational symmetry of real (μν|λσ)); 2 functions → 3 pairs → 6.
+        assert_eq!(in_core_bound_bytes(2, 1), 8.0 * 6.0 + 16.0);
+        let e = estimates(24, 12, &ScfOptions::default());
+        assert!(!e[0].optional && e[1].optional);
     }
 }

@@ -12,9 +12,30 @@ pub fn format_bytes(bytes: f64) -> String {
     }
 }
 
+/// `bytes` in GiB (2^30 bytes) with three significant digits, however small ("0.000123
+/// GiB"): the one unit of the `--verbose` memory estimates of every command.
+pub fn format_gib(bytes: f64) -> String {
+    const GIB: f64 = (1u64 << 30) as f64;
+    let g = bytes / GIB;
+    if !(g > 0.0) || !g.is_finite() {
+        return format!("{g:.2} GiB");
+    }
+    let digits = (2 - g.log10().floor() as i32).clamp(2, 12) as usize;
+    format!("{g:.digits$} GiB")
+}
+
 #[cfg(test)]
 mod tests {
-    use super::format_bytes;
+    use super::{format_bytes, format_gib};
+
+    #[test]
+    fn gib_keeps_three_significant_digits() {
+        // 2^30 bytes = 1 GiB (IEC binary prefix, common practice)
+        assert_eq!(format_gib((1u64 << 30) as f64), "1.00 GiB");
+        assert_eq!(format_gib(123.0 * (1u64 << 30) as f64), "123.00 GiB");
+        assert_eq!(format_gib(0.000123 * (1u64 << 30) as f64), "0.000123 GiB");
+        assert_eq!(format_gib(0.0), "0.00 GiB");
+    }
 
     #[test]
     fn small_sizes_are_in_mib_large_in_gib() {

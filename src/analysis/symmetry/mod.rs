@@ -24,7 +24,7 @@ pub use detect::{detect_point_group, DEFAULT_TOLERANCE};
 pub use group::{PointGroup, SymOp};
 pub use labels::{degenerate_sets, label_orbitals, OrbitalLabel};
 pub use orient::Frame;
-pub use symmetrize::symmetrize;
+pub use symmetrize::{symmetrize, symmetrize_job, SymmetrisedJob};
 pub use tables::CharacterTable;
 
 /// The name used for the detected group in the shared interface plan.
