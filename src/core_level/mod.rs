@@ -37,6 +37,7 @@
 //! | cation.rs | the SCF starts for one hole (MOM, IMOM, ROHF) |
 //! | shared_eri.rs | integrals shared by the bases of different holes |
 //! | relativistic.rs | the optional relativistic correction of 1s levels |
+//! | delta_cc.rs | ΔCCSD / ΔCCSD(T) on the kept cation, core-valence separated |
 //!
 //! ΔMP2 uses `correlation::mp2::mp2_energy`; the benchmark workload is
 //! `bench::core_level`.
@@ -44,6 +45,7 @@ pub mod assemble;
 pub mod carry_over;
 pub mod cation;
 pub mod delocalised;
+pub mod delta_cc;
 pub mod equivalence;
 pub mod flexibility;
 pub mod hole_check;

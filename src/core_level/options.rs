@@ -106,6 +106,8 @@ pub struct CoreOptions {
     /// symmetry-equivalent partners, reported beside the localised one (`delocalised.rs`).
     /// Both then use a basis with the core flexibility on the atom and its partners.
     pub delocalised: bool,
+    /// ΔCCSD or ΔCCSD(T) beside ΔSCF (`delta_cc.rs`), when asked.
+    pub cc: Option<super::delta_cc::DeltaCc>,
 }
 
 impl Default for CoreOptions {
@@ -120,6 +122,7 @@ impl Default for CoreOptions {
             use_symmetry: true,
             relativistic: false,
             delocalised: false,
+            cc: None,
         }
     }
 }

@@ -7,6 +7,7 @@ use serde::Serialize;
 use crate::ionization::band::{Band, MakeupEntry, Region};
 
 use super::delocalised::DelocalisedHole;
+use super::delta_cc::CcEnergies;
 use super::hole_check::HoleStatus;
 use super::notes::Notes;
 
@@ -77,6 +78,9 @@ pub struct CoreLevel {
     /// The delocalised (symmetry-constrained) hole, when asked and the atom has equivalent
     /// partners; null otherwise.
     pub delocalised: Option<DelocalisedHole>,
+    /// ΔCCSD, ΔCCSD(T) and the recommended value (`delta_cc.rs`; JSON: flattened).
+    #[serde(flatten)]
+    pub cc: CcEnergies,
     /// JSON: `notes` (messages) and `note_details` (`{code, message}`).
     #[serde(flatten)]
     pub notes: Notes,
@@ -93,6 +97,8 @@ pub struct ShiftReferenceLevel {
     pub element: String,
     pub dscf_ev: f64,
     pub dmp2_ev: Option<f64>,
+    /// The reference's recommended (non-relativistic) value, as `binding_ev` of a level.
+    pub binding_ev: f64,
 }
 
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -222,6 +228,7 @@ mod tests {
             n_basis: 10,
             same_as_atom: None,
             delocalised: None,
+            cc: Default::default(),
             notes: Notes::default(),
         }
     }
