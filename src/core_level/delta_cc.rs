@@ -78,7 +78,13 @@ pub fn neutral(
     wf: &Wavefunction,
     which: DeltaCc,
 ) -> Result<OpenShellResult> {
-    open_shell::run(mol, basis, wf, &options(which, [vec![], vec![]]), &mut |_| {})
+    open_shell::run(
+        mol,
+        basis,
+        wf,
+        &options(which, [vec![], vec![]]),
+        &mut |_| {},
+    )
 }
 
 /// The emptied core orbital of a core-ionized cation: (spin, MO column).

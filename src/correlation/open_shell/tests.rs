@@ -177,3 +177,29 @@ fn refuses_over_budget() {
     assert!(matches!(e, Error::TooLarge(_)));
     assert!(e.to_string().contains("ΔSCF"), "{e}");
 }
+
+/// Timing probe (prints only; not a check): N2/cc-pVDZ UHF-CCSD(T) stages.
+#[test]
+#[ignore]
+fn probe_timing_n2() {
+    let t0 = std::time::Instant::now();
+    let mol = crate::chem::xyz::read_xyz(
+        std::path::Path::new("tests/data/gw100/nitrogen.xyz"),
+        crate::chem::xyz::LengthUnit::Angstrom,
+    )
+    .unwrap();
+    let basis = crate::basis::load("cc-pvdz", &mol, None).unwrap();
+    let rhf = scf(&mol, &basis, Reference::Rhf);
+    eprintln!("scf {:.2}", t0.elapsed().as_secs_f64());
+    let o = OpenShellOptions {
+        frozen_core: FrozenCore::None,
+        two_electron: TwoElectron::Cholesky,
+        cholesky_threshold: 1e-6,
+        ..Default::default()
+    };
+    let r = run(&mol, &basis, &rhf, &o, &mut |l| {
+        eprintln!("{:.2} {l}", t0.elapsed().as_secs_f64())
+    })
+    .unwrap();
+    eprintln!("{:.2} done {:?}", t0.elapsed().as_secs_f64(), r.e_triples);
+}
