@@ -181,10 +181,12 @@ pub fn solve(
     let fo = |i: usize| sys.foo.data[i * o + i];
     let fv = |a: usize| sys.fvv.data[a * v + a];
     let d1 = Tensor::from_fn(&[o, v], |x| fo(x[0]) - fv(x[1]));
-    if d1.data.iter().any(|&d| d >= 0.0) {
+    // A non-aufbau reference (a MOM hole below occupied orbitals) has some positive
+    // denominators; the iterations can still converge. A vanishing one cannot be used.
+    if d1.data.iter().any(|&d| d.abs() < 1e-4) {
         return Err(Error::computation(
-            "an occupied orbital lies above a virtual one of the same spin: the orbital \
-             energy denominators of coupled cluster are not all negative",
+            "an occupied and a virtual orbital of the same spin are degenerate (|f_ii − f_aa| \
+             < 1e-4 Eh): the coupled-cluster denominators vanish",
         ));
     }
     let mut t2 = sys.oovv.clone();
