@@ -69,9 +69,10 @@ pub struct Args {
     /// cation SCF kept symmetric), reported beside the localized one.
     #[arg(long)]
     pub compare_delocalised: bool,
-    /// Method: dscf (ΔSCF) or dmp2 (ΔSCF plus the second-order correlation change, ΔMP2,
-    /// printed beside ΔSCF).
-    #[arg(long, value_name = "dscf|dmp2", default_value = "dscf")]
+    /// Method: dscf (ΔSCF), dmp2 (ΔSCF plus the second-order correlation change, ΔMP2,
+    /// printed beside ΔSCF), dccsd or dccsd-t (coupled cluster on the neutral and the
+    /// core-ionized state, printed beside ΔSCF; small molecules).
+    #[arg(long, value_name = "dscf|dmp2|dccsd|dccsd-t", default_value = "dscf")]
     pub method: CoreMethod,
     /// Old spelling of --method dmp2 (kept for one release).
     #[arg(long = "mp2", hide = true)]
@@ -111,6 +112,10 @@ pub enum CoreMethod {
     Dscf,
     /// ΔSCF plus ΔMP2.
     Dmp2,
+    /// ΔSCF plus ΔCCSD.
+    Dccsd,
+    /// ΔSCF plus ΔCCSD and ΔCCSD(T).
+    DccsdT,
 }
 
 fn parse_shell(s: &str) -> std::result::Result<ShellChoice, String> {
@@ -174,6 +179,11 @@ pub fn options(args: &Args) -> Result<CoreOptions> {
         delocalised: args.compare_delocalised,
         shell: args.shell,
         photon_ev: args.photon.map(|p| p.energy_ev()),
+        cc: match args.method {
+            CoreMethod::Dccsd => Some(crate::core_level::delta_cc::DeltaCc::Ccsd),
+            CoreMethod::DccsdT => Some(crate::core_level::delta_cc::DeltaCc::CcsdT),
+            _ => None,
+        },
     })
 }
 

@@ -72,6 +72,7 @@ fn reference_level(kind: &str, mol: &Molecule, l: &CoreLevel) -> ShiftReferenceL
         shell: l.shell.clone(),
         dscf_ev: l.dscf_ev,
         dmp2_ev: l.dmp2_ev,
+        binding_ev: l.cc.binding_ev - l.relativistic_correction_ev.unwrap_or(0.0),
     }
 }
 
@@ -80,6 +81,7 @@ pub fn apply_shifts(levels: &mut [CoreLevel], references: &[ShiftReferenceLevel]
     for l in levels {
         if let Some(r) = references.iter().find(|r| r.element == l.element) {
             l.shift_ev = Some(l.dscf_ev - r.dscf_ev);
+            l.cc.shift_binding_ev = Some(l.cc.binding_ev - r.binding_ev);
             l.shift_dmp2_ev = match (l.dmp2_ev, r.dmp2_ev) {
                 (Some(a), Some(b)) => Some(a - b),
                 _ => None,
@@ -94,6 +96,7 @@ pub fn apply_relativistic(levels: &mut [CoreLevel], notes: &mut Notes) -> String
         let c = relativistic::correction_ev(l.dscf_ev);
         l.relativistic_correction_ev = Some(c);
         l.dscf_relativistic_ev = Some(l.dscf_ev + c);
+        l.cc.binding_ev += c;
     }
     notes.push(CoreNote::RelativisticAdded {
         source: relativistic::SOURCE.to_string(),

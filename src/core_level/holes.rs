@@ -34,6 +34,8 @@ pub struct HoleContext<'a> {
     pub s_half: &'a Mat<f64>,
     pub neutral: &'a Wavefunction,
     pub neutral_mp2: Option<f64>,
+    /// Coupled cluster of the neutral, when ΔCC was asked.
+    pub neutral_cc: Option<&'a crate::correlation::open_shell::OpenShellResult>,
     pub opts: &'a CoreOptions,
     pub memory_budget_bytes: usize,
 }
@@ -119,6 +121,14 @@ pub fn ionise_atom(
         Some(e2n) => dmp2_ev(ctx, &states, e2n, &mut notes)?,
         None => None,
     };
+    let mut cc = super::delta_cc::CcEnergies::default();
+    if let (Some(ncc), Some(which)) = (ctx.neutral_cc, ctx.opts.cc) {
+        let (s, t) = super::delta_cc::delta(ctx.mol, ctx.basis, wf, ncc, which)?;
+        cc.dccsd_ev = Some(s);
+        cc.dccsdt_ev = t;
+    }
+    let dscf_ev = best.attempt.dscf_ev.expect("held state has an energy");
+    super::delta_cc::recommend(dscf_ev, &mut cc, None);
     let z = ctx.mol.atoms[atom].z;
     Ok(CoreLevel {
         atom: atom + 1,
@@ -126,7 +136,7 @@ pub fn ionise_atom(
         label: format!("{label} 1s"),
         shell: "1s".into(),
         koopmans_ev: ev(koopmans),
-        dscf_ev: best.attempt.dscf_ev.expect("held state has an energy"),
+        dscf_ev,
         dmp2_ev: dmp2,
         s2: wf.s2,
         relativistic_correction_ev: None,
@@ -146,6 +156,7 @@ pub fn ionise_atom(
         spin_orbit_ev: None,
         components: Vec::new(),
         spatial_holes: Vec::new(),
+        cc,
         notes,
     })
 }

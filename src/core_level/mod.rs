@@ -41,6 +41,7 @@
 //! | shell_hole.rs | the atom-localised 2s / 2p hole orbitals (principal axes for 2p) |
 //! | spin_orbit.rs | the 2p spin–orbit doublet from the three 2p-hole energies |
 //! | two_p.rs | the 2s and 2p levels of Na–Ar (the stages for the second shell) |
+//! | delta_cc.rs | ΔCCSD / ΔCCSD(T) on the kept cation, core-valence separated |
 //!
 //! ΔMP2 uses `correlation::mp2::mp2_energy`; the benchmark workload is
 //! `bench::core_level`.
@@ -48,6 +49,7 @@ pub mod assemble;
 pub mod carry_over;
 pub mod cation;
 pub mod delocalised;
+pub mod delta_cc;
 pub mod equivalence;
 pub mod flexibility;
 pub mod hole_check;

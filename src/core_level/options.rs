@@ -113,6 +113,8 @@ pub struct CoreOptions {
     /// Photon energy (eV) the levels are meant for: decides the auto shell and the notes on
     /// levels out of its reach (None: Al Kα for the choice, no notes).
     pub photon_ev: Option<f64>,
+    /// ΔCCSD or ΔCCSD(T) beside ΔSCF (`delta_cc.rs`), when asked.
+    pub cc: Option<super::delta_cc::DeltaCc>,
 }
 
 impl Default for CoreOptions {
@@ -129,6 +131,7 @@ impl Default for CoreOptions {
             delocalised: false,
             shell: ShellChoice::Auto,
             photon_ev: None,
+            cc: None,
         }
     }
 }

@@ -155,6 +155,10 @@ fn compute_holes(
         out.n_basis_max = out.n_basis_max.max(n.basis.n_basis);
         out.neutral_energies.push(n.wf.energy);
         out.neutral_mp2s.push(n.mp2);
+        let neutral_cc = match opts.cc {
+            Some(which) => Some(super::delta_cc::neutral(mol, &n.basis, &n.wf, which)?),
+            None => None,
+        };
         let ctx = HoleContext {
             mol,
             basis: &n.basis,
@@ -162,6 +166,7 @@ fn compute_holes(
             s_half: &n.s_half,
             neutral: &n.wf,
             neutral_mp2: n.mp2,
+            neutral_cc: neutral_cc.as_ref(),
             opts,
             memory_budget_bytes: budget,
         };

@@ -7,6 +7,7 @@ use serde::Serialize;
 use crate::ionization::band::{Band, MakeupEntry, Region};
 
 use super::delocalised::DelocalisedHole;
+use super::delta_cc::CcEnergies;
 use super::hole_check::HoleStatus;
 use super::notes::Notes;
 use super::shell_hole::SpatialHole;
@@ -89,6 +90,9 @@ pub struct CoreLevel {
     /// atom; absent for s levels.
     #[serde(skip_serializing_if = "Vec::is_empty")]
     pub spatial_holes: Vec<SpatialHole>,
+    /// ΔCCSD, ΔCCSD(T) and the recommended value (`delta_cc.rs`; JSON: flattened).
+    #[serde(flatten)]
+    pub cc: CcEnergies,
     /// JSON: `notes` (messages) and `note_details` (`{code, message}`).
     #[serde(flatten)]
     pub notes: Notes,
@@ -107,6 +111,8 @@ pub struct ShiftReferenceLevel {
     pub shell: String,
     pub dscf_ev: f64,
     pub dmp2_ev: Option<f64>,
+    /// The reference's recommended (non-relativistic) value, as `binding_ev` of a level.
+    pub binding_ev: f64,
 }
 
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -255,6 +261,7 @@ mod tests {
             spin_orbit_ev: None,
             components: vec![],
             spatial_holes: vec![],
+            cc: Default::default(),
             notes: Notes::default(),
         }
     }

@@ -67,6 +67,12 @@ pub fn predict_shells(
                 "ΔMP2 is computed for 1s levels; 2s and 2p levels are ΔSCF",
             ));
         }
+        if opts.cc.is_some() {
+            return Err(Error::input(
+                "ΔCCSD and ΔCCSD(T) are computed for 1s levels; 2s and 2p levels are ΔSCF \
+                 (use --method dscf, or --shell 1s)",
+            ));
+        }
     }
     let mut parts: Vec<CoreResult> = Vec::new();
     for (shell, atoms) in &groups {
@@ -189,7 +195,10 @@ fn with_shifts(
             .iter()
             .find(|(sh, x)| x.element == l.element && *sh == l.shell)
         {
-            Some((_, x)) => l.shift_ev = Some(l.dscf_ev - x.dscf_ev),
+            Some((_, x)) => {
+                l.shift_ev = Some(l.dscf_ev - x.dscf_ev);
+                l.cc.shift_binding_ev = Some(l.cc.binding_ev - x.binding_ev);
+            }
             None => notes.push(CoreNote::ReferenceLacksElement {
                 element: l.element.clone(),
                 level: l.label.clone(),
@@ -218,6 +227,7 @@ fn into_references(
                     shell: l.shell.clone(),
                     dscf_ev: l.dscf_ev,
                     dmp2_ev: l.dmp2_ev,
+                    binding_ev: l.cc.binding_ev - l.relativistic_correction_ev.unwrap_or(0.0),
                 },
             )
         })
@@ -357,6 +367,7 @@ fn second_shell(
             s_half: &n.s_half,
             neutral: &n.wf,
             neutral_mp2: None,
+            neutral_cc: None,
             opts: &popts,
             memory_budget_bytes: budget,
         };
@@ -599,8 +610,11 @@ fn atom_levels(
         spin_orbit_ev: None,
         components: Vec::new(),
         spatial_holes: Vec::new(),
+        cc: Default::default(),
         notes,
     };
+    let mut base = base;
+    super::delta_cc::recommend(base.dscf_ev, &mut base.cc, None);
     if shell != CoreShell::P2 {
         return Ok(vec![base]);
     }
@@ -654,6 +668,7 @@ fn spin_orbit_levels(
             })
             .collect();
         l.spatial_holes = spatial.to_vec();
+        super::delta_cc::recommend(l.dscf_ev, &mut l.cc, None);
         l
     };
     vec![make(true, "2p3/2"), make(false, "2p1/2")]

@@ -16,6 +16,7 @@ pub mod density_fit;
 pub mod integrals;
 pub mod ladder;
 pub mod mp2;
+pub mod open_shell;
 pub mod tensor;
 
 #[cfg(test)]

@@ -124,8 +124,9 @@ pub fn dscf(
     holes
         .iter()
         .map(|&(spin, orbital)| {
-            let (cation, occ_a, occ_b, hole_spin) = cation_state(mol, neutral, spin, orbital)?;
-            if cation.n_electrons() == 0 {
+            let (cation, hole_spin, wf) =
+                cation_wavefunction(mol, basis, neutral, spin, orbital, base)?;
+            let Some(wf) = wf else {
                 let e = cation.nuclear_repulsion();
                 return Ok(DscfHole {
                     spin: hole_spin,
@@ -137,6 +138,42 @@ pub fn dscf(
                     s2: 0.0,
                     iterations: 0,
                 });
+            };
+            let (c_ref, c, occ) = match hole_spin {
+                Spin::Alpha => (&neutral.c_alpha, &wf.c_alpha, &wf.occ_alpha),
+                _ => (&neutral.c_beta, &wf.c_beta, &wf.occ_beta),
+            };
+            let w = hole_weight(overlap, c_ref, orbital, c, occ);
+            Ok(DscfHole {
+                spin: hole_spin,
+                orbital,
+                ie: wf.energy - neutral.energy,
+                cation_energy: wf.energy,
+                hole_overlap: w,
+                hole_moved: w < HOLE_KEPT,
+                s2: wf.s2,
+                iterations: wf.iterations,
+            })
+        })
+        .collect()
+}
+
+/// The MOM-held cation with one electron of `spin` removed from MO `orbital` of `neutral`:
+/// (cation molecule, spin that lost the electron, wavefunction — None when no electron is
+/// left).
+pub fn cation_wavefunction(
+    mol: &Molecule,
+    basis: &BasisSet,
+    neutral: &Wavefunction,
+    spin: Spin,
+    orbital: usize,
+    base: &ScfOptions,
+) -> Result<(Molecule, Spin, Option<Wavefunction>)> {
+    {
+        {
+            let (cation, occ_a, occ_b, hole_spin) = cation_state(mol, neutral, spin, orbital)?;
+            if cation.n_electrons() == 0 {
+                return Ok((cation, hole_spin, None));
             }
             let opts = ScfOptions {
                 reference: Reference::Uhf,
@@ -159,23 +196,9 @@ pub fn dscf(
                     orbital + 1
                 ))
             })?;
-            let (c_ref, c, occ) = match hole_spin {
-                Spin::Alpha => (&neutral.c_alpha, &wf.c_alpha, &wf.occ_alpha),
-                _ => (&neutral.c_beta, &wf.c_beta, &wf.occ_beta),
-            };
-            let w = hole_weight(overlap, c_ref, orbital, c, occ);
-            Ok(DscfHole {
-                spin: hole_spin,
-                orbital,
-                ie: wf.energy - neutral.energy,
-                cation_energy: wf.energy,
-                hole_overlap: w,
-                hole_moved: w < HOLE_KEPT,
-                s2: wf.s2,
-                iterations: wf.iterations,
-            })
-        })
-        .collect()
+            Ok((cation, hole_spin, Some(wf)))
+        }
+    }
 }
 
 #[cfg(test)]

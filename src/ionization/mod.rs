@@ -1,5 +1,6 @@
 //! Ionization methods and the bands they produce.
 //!
+//! - `dccsd`: ΔCCSD(T) (MOM cation and neutral, each with open-shell coupled cluster).
 //! - `koopmans`, `dscf`, `ep2`: the methods (−ε; E(cation) − E(neutral) with MOM; second-order
 //!   electron propagator). `method`: their names and typical errors.
 //! - `bands`: degenerate orbitals → bands; `annotate`: labels and make-up from `analysis`;
@@ -11,6 +12,7 @@
 pub mod annotate;
 pub mod band;
 pub mod bands;
+pub mod dccsd;
 pub mod default_method;
 pub mod dscf;
 pub mod ep2;

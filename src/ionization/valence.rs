@@ -365,6 +365,46 @@ fn method_energies(
                 })
                 .collect()))
         }
+        Method::DccsdT => {
+            let holes: Vec<(Spin, usize)> =
+                sets.iter().map(|s| (s.spin, s.representative())).collect();
+            let res = crate::ionization::dccsd::dccsd_t(
+                mol,
+                basis,
+                wf,
+                s,
+                &holes,
+                &opts.scf,
+                opts.frozen_core,
+                &opts.eom_integrals,
+                Some(opts.memory_bytes as f64),
+            )?;
+            let mut out = Vec::new();
+            for (set, h) in sets.iter().zip(res) {
+                match h {
+                    Ok(h) => {
+                        if h.hole_moved {
+                            warnings.push(ValenceNotice::HoleMoved {
+                                mo: set.representative() + 1,
+                                percent: 100.0 * h.hole_overlap,
+                            });
+                        }
+                        out.push(Some(BandEnergy {
+                            ie: h.ie,
+                            ..Default::default()
+                        }));
+                    }
+                    Err(e) => {
+                        warnings.push(ValenceNotice::MethodWarning(format!(
+                            "MO {}: ΔCCSD(T) failed: {e}",
+                            set.representative() + 1
+                        )));
+                        out.push(None);
+                    }
+                }
+            }
+            Ok(out)
+        }
         // bandcast::correlation::eom_ip: one EOM root started from each set's representative.
         Method::EomCcsd | Method::EomMp2 => {
             use crate::correlation::eom_ip::{band_energies, EomMethod};

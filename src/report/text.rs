@@ -307,6 +307,17 @@ pub fn core_table(r: &CoreResult) -> String {
     if has_mp2 {
         s.push_str("  ΔMP2/eV");
     }
+    let has_cc = r.core_levels.iter().any(|l| l.cc.dccsd_ev.is_some());
+    let has_t = r.core_levels.iter().any(|l| l.cc.dccsdt_ev.is_some());
+    if has_cc {
+        s.push_str(" ΔCCSD/eV");
+    }
+    if has_t {
+        s.push_str(" ΔCCSD(T)/eV");
+    }
+    if has_cc {
+        s.push_str(" binding/eV");
+    }
     s.push_str("  shift/eV   ⟨S²⟩   hole  localised  kept start\n");
     for l in &r.core_levels {
         s.push_str(&format!(
@@ -323,6 +334,15 @@ pub fn core_table(r: &CoreResult) -> String {
         if has_mp2 {
             s.push_str(&format!(" {}", opt(l.dmp2_ev, 8, 2)));
         }
+        if has_cc {
+            s.push_str(&format!(" {}", opt(l.cc.dccsd_ev, 8, 2)));
+        }
+        if has_t {
+            s.push_str(&format!(" {}", opt(l.cc.dccsdt_ev, 11, 2)));
+        }
+        if has_cc {
+            s.push_str(&format!(" {:>10.2}", l.cc.binding_ev));
+        }
         s.push_str(&format!(
             " {}  {:>6.3}  {:>4.2}  {:<9}  {}\n",
             opt(l.shift_ev, 8, 2),
@@ -336,6 +356,12 @@ pub fn core_table(r: &CoreResult) -> String {
     for l in &r.core_levels {
         for n in l.notes.iter() {
             notes.push(format!("{}: {n}", l.label));
+        }
+        if let (Some(a), Some(b), true) = (l.shift_ev, l.cc.shift_binding_ev, has_cc) {
+            notes.push(format!(
+                "{}: shift {a:.2} eV (ΔSCF), {b:.2} eV ({}, non-relativistic)",
+                l.label, l.cc.method
+            ));
         }
         if let (Some(a), Some(b)) = (l.shift_ev, l.shift_dmp2_ev) {
             notes.push(format!(

@@ -1,0 +1,503 @@
+//! The spin-orbital reference of the open-shell coupled-cluster methods: which orbitals
+//! are correlated, the Fock matrix over them, and the antisymmetrized integral blocks
+//! ⟨pq||rs⟩ = ⟨pq|rs⟩ − ⟨pq|sr⟩ built from three-index factors (two_electron.rs).
+//!
+//! Spin orbitals are ordered [occupied α, occupied β | virtual α, virtual β]; each keeps its
+//! spatial orbital's factors B^Q_pq, and ⟨pq|rs⟩ = (pr|qs) δ(σp,σr) δ(σq,σs).
+//!
+//! - UHF (also a UHF state held by MOM): the converged orbitals diagonalize each spin's Fock
+//!   matrix, so f = diag(ε) exactly, as the closed-shell code uses it.
+//! - ROHF: the α and β Fock matrices of the ROHF determinant are not diagonal in its
+//!   orbitals. They are built here, f^σ = h + J[Pα + Pβ] − K[Pσ], from the same factors as
+//!   the integrals, and the occupied–occupied and virtual–virtual blocks of each spin are
+//!   diagonalized (semicanonical orbitals; Watts, Gauss & Bartlett, J. Chem. Phys. 98
+//!   (1993) 8718). The occupied–virtual block f_ia stays and enters CCSD and (T).
+//! - Frozen core: the `n_frozen` lowest occupied orbitals of each spin (after the
+//!   semicanonical rotation) are left uncorrelated; their effect stays in f.
+//! - Excluded virtuals: spatial virtual orbitals of one spin removed from the correlation
+//!   space (the emptied core orbital of a core-ionized state, core_level's ΔCC: every
+//!   amplitude that would refill the hole is zero).
+//!
+//! Memory (f64 words; n basis functions, m_σ orbitals kept per spin, N_Q factors, o and v
+//! active occupied and virtual spin orbitals): factors N_Q (m_α² + m_β²) + N_Q (o+v)², the
+//! blocks o⁴ + o³v + 2 o²v² + o v³ + v⁴, and while the largest block is antisymmetrized one
+//! more copy of it (max(v⁴, o v³)).
+
+use bandcast_linalg::{eigh, MatMut, MatRef};
+use rayon::prelude::*;
+
+use crate::basis::BasisSet;
+use crate::correlation::integrals::MoFactors;
+use crate::correlation::tensor::{par_gemm, Tensor};
+use crate::correlation::two_electron::{self, Resolved};
+use crate::scf::{Reference, Wavefunction};
+use crate::{Error, Result};
+
+/// Which orbitals to correlate.
+#[derive(Debug, Clone, Default)]
+pub struct Selection {
+    /// Lowest occupied orbitals of each spin left uncorrelated.
+    pub n_frozen: [usize; 2],
+    /// MO columns (of `c_alpha` / `c_beta`) of unoccupied orbitals left out of the virtual
+    /// space, per spin.
+    pub excluded_virtuals: [Vec<usize>; 2],
+}
+
+/// Fock blocks and antisymmetrized integrals over the active spin orbitals.
+#[derive(Debug, Clone)]
+pub struct SpinOrbitalSystem {
+    pub nocc: usize,
+    pub nvir: usize,
+    /// Spin (0 α, 1 β) of each active occupied and virtual spin orbital.
+    pub spin_occ: Vec<u8>,
+    pub spin_vir: Vec<u8>,
+    pub foo: Tensor,
+    pub fov: Tensor,
+    pub fvv: Tensor,
+    /// ⟨ij||kl⟩ [i,j,k,l]
+    pub oooo: Tensor,
+    /// ⟨ij||ka⟩ [i,j,k,a]
+    pub ooov: Tensor,
+    /// ⟨ij||ab⟩ [i,j,a,b]
+    pub oovv: Tensor,
+    /// ⟨ia||jb⟩ [i,a,j,b]
+    pub ovov: Tensor,
+    /// ⟨ia||bc⟩ [i,a,b,c]
+    pub ovvv: Tensor,
+    /// ⟨ab||cd⟩ [a,b,c,d]
+    pub vvvv: Tensor,
+    /// Whether the orbitals were rotated to semicanonical form (ROHF).
+    pub semicanonical: bool,
+    /// Electronic energy of the determinant, ½ Σ_i (h_ii + f_ii) over every occupied spin
+    /// orbital, when the Fock matrix was built from the factors (ROHF).
+    pub e_determinant_electronic: Option<f64>,
+}
+
+/// Words the reference stage holds at its peak (see the module text).
+pub fn peak_words(naux: usize, m: [usize; 2], o: usize, v: usize) -> f64 {
+    let (nq, o, v) = (naux as f64, o as f64, v as f64);
+    let fac = nq * ((m[0] * m[0] + m[1] * m[1]) as f64) + nq * (o + v) * (o + v);
+    let blocks = o.powi(4) + o.powi(3) * v + 2.0 * o * o * v * v + o * v.powi(3) + v.powi(4);
+    fac + blocks + v.powi(4).max(o * v.powi(3))
+}
+
+/// Per-spin orbital lists: (occupied columns, kept virtual columns), each by ascending ε.
+pub fn orbital_lists(wfn: &Wavefunction, sel: &Selection) -> [(Vec<usize>, Vec<usize>); 2] {
+    let lists = |occ: &[f64], eps: &[f64], excl: &[usize]| {
+        let mut o: Vec<usize> = (0..occ.len()).filter(|&p| occ[p] > 0.5).collect();
+        let mut v: Vec<usize> = (0..occ.len())
+            .filter(|&p| occ[p] <= 0.5 && !excl.contains(&p))
+            .collect();
+        o.sort_by(|&a, &b| eps[a].total_cmp(&eps[b]));
+        v.sort_by(|&a, &b| eps[a].total_cmp(&eps[b]));
+        (o, v)
+    };
+    [
+        lists(&wfn.occ_alpha, &wfn.eps_alpha, &sel.excluded_virtuals[0]),
+        lists(&wfn.occ_beta, &wfn.eps_beta, &sel.excluded_virtuals[1]),
+    ]
+}
+
+/// Per-spin factors over [occupied (all), kept virtual] as a dense [Q][p][q] array.
+struct SpinFactors {
+    naux: usize,
+    m: usize,
+    nocc: usize,
+    b: Vec<f64>,
+}
+
+fn columns(c: &bandcast_linalg::Mat<f64>, cols: &[usize]) -> Vec<f64> {
+    let n = c.nrows();
+    let mut out = vec![0.0; n * cols.len()];
+    for mu in 0..n {
+        for (k, &p) in cols.iter().enumerate() {
+            out[mu * cols.len() + k] = c[(mu, p)];
+        }
+    }
+    out
+}
+
+fn dense(f: &MoFactors) -> SpinFactors {
+    let m = f.nocc + f.nvir;
+    let mut b = vec![0.0; f.naux * m * m];
+    b.par_chunks_mut(m * m).enumerate().for_each(|(q, bq)| {
+        for p in 0..m {
+            for r in 0..m {
+                bq[p * m + r] = f.get(q, p, r);
+            }
+        }
+    });
+    SpinFactors {
+        naux: f.naux,
+        m,
+        nocc: f.nocc,
+        b,
+    }
+}
+
+impl SpinFactors {
+    /// B ← Uᵀ B U for every Q (U m × m, row-major).
+    fn rotate(&mut self, u: &[f64]) {
+        let m = self.m;
+        self.b.par_chunks_mut(m * m).for_each(|bq| {
+            let mut t = vec![0.0; m * m];
+            // t = Uᵀ B
+            for k in 0..m {
+                for p in 0..m {
+                    let ukp = u[k * m + p];
+                    if ukp == 0.0 {
+                        continue;
+                    }
+                    for r in 0..m {
+                        t[p * m + r] += ukp * bq[k * m + r];
+                    }
+                }
+            }
+            // B = t U
+            bq.iter_mut().for_each(|x| *x = 0.0);
+            for p in 0..m {
+                for k in 0..m {
+                    let tpk = t[p * m + k];
+                    if tpk == 0.0 {
+                        continue;
+                    }
+                    for r in 0..m {
+                        bq[p * m + r] += tpk * u[k * m + r];
+                    }
+                }
+            }
+        });
+    }
+}
+
+/// Fock matrices of both spins over each spin's [occupied, kept virtual] orbitals,
+/// built from the core Hamiltonian and the factors.
+fn fock_from_factors(
+    h_ao: &bandcast_linalg::Mat<f64>,
+    coef: [&[f64]; 2],
+    n: usize,
+    fac: [&SpinFactors; 2],
+) -> ([Vec<f64>; 2], f64) {
+    let naux = fac[0].naux;
+    let mut e = 0.0;
+    // Coulomb: d_Q = Σ_σ Σ_m B^σ_Q,mm
+    let mut d = vec![0.0; naux];
+    for f in fac {
+        for (q, dq) in d.iter_mut().enumerate() {
+            for i in 0..f.nocc {
+                *dq += f.b[q * f.m * f.m + i * f.m + i];
+            }
+        }
+    }
+    let mut out = [Vec::new(), Vec::new()];
+    for s in 0..2 {
+        let f = fac[s];
+        let m = f.m;
+        // h in this spin's orbitals
+        let c = coef[s];
+        let mut hm = vec![0.0; m * m];
+        let mut hc = vec![0.0; n * m];
+        for mu in 0..n {
+            for nu in 0..n {
+                let h = h_ao[(mu, nu)];
+                for p in 0..m {
+                    hc[mu * m + p] += h * c[nu * m + p];
+                }
+            }
+        }
+        for mu in 0..n {
+            for p in 0..m {
+                let cmp = c[mu * m + p];
+                for r in 0..m {
+                    hm[p * m + r] += cmp * hc[mu * m + r];
+                }
+            }
+        }
+        for i in 0..f.nocc {
+            e += 0.5 * hm[i * m + i];
+        }
+        for q in 0..naux {
+            let bq = &f.b[q * m * m..(q + 1) * m * m];
+            for p in 0..m {
+                for r in 0..m {
+                    let mut k = 0.0;
+                    for i in 0..f.nocc {
+                        k += bq[p * m + i] * bq[i * m + r];
+                    }
+                    hm[p * m + r] += d[q] * bq[p * m + r] - k;
+                }
+            }
+        }
+        for i in 0..f.nocc {
+            e += 0.5 * hm[i * m + i];
+        }
+        out[s] = hm;
+    }
+    (out, e)
+}
+
+/// Rotation diagonalizing the occupied–occupied and virtual–virtual blocks of `f` (m × m);
+/// returns (U, new diagonal).
+fn semicanonical(f: &[f64], m: usize, o: usize) -> (Vec<f64>, Vec<f64>) {
+    let mut u = vec![0.0; m * m];
+    let mut diag = vec![0.0; m];
+    for (lo, hi) in [(0, o), (o, m)] {
+        let k = hi - lo;
+        if k == 0 {
+            continue;
+        }
+        let mut blk = vec![0.0; k * k];
+        for p in 0..k {
+            for r in 0..k {
+                blk[p * k + r] = f[(lo + p) * m + lo + r];
+            }
+        }
+        let (w, vecs) = eigh(MatRef::from_row_major_slice(&blk, k, k));
+        for p in 0..k {
+            diag[lo + p] = w[p];
+            for r in 0..k {
+                u[(lo + r) * m + lo + p] = vecs[(r, p)];
+            }
+        }
+    }
+    (u, diag)
+}
+
+/// Build the spin-orbital system for `wfn` (UHF or ROHF; an RHF wavefunction is treated
+/// as UHF with equal spins).
+pub fn build(
+    basis: &BasisSet,
+    h_ao: &bandcast_linalg::Mat<f64>,
+    wfn: &Wavefunction,
+    sel: &Selection,
+    how: &Resolved,
+    max_cholesky_vectors: usize,
+    log: &mut dyn FnMut(&str),
+) -> Result<(SpinOrbitalSystem, String)> {
+    let n = basis.n_basis;
+    let lists = orbital_lists(wfn, sel);
+    let mut fac = Vec::new();
+    let mut coefs = Vec::new();
+    let mut note = String::new();
+    for (s, (occ, vir)) in lists.iter().enumerate() {
+        let c = if s == 0 { &wfn.c_alpha } else { &wfn.c_beta };
+        let co = columns(c, occ);
+        let cv = columns(c, vir);
+        let (f, nt) = two_electron::mo_factors(
+            how,
+            basis,
+            &co,
+            occ.len(),
+            &cv,
+            vir.len(),
+            max_cholesky_vectors,
+            log,
+        )?;
+        note = nt;
+        fac.push(dense(&f));
+        let all: Vec<usize> = occ.iter().chain(vir).copied().collect();
+        coefs.push(columns(c, &all));
+    }
+    let rohf = wfn.reference == Reference::Rohf;
+    // Fock over each spin's kept orbitals
+    let mut fock: Vec<Vec<f64>> = Vec::new();
+    let mut e_det = None;
+    if rohf {
+        let (f, e) = fock_from_factors(h_ao, [&coefs[0], &coefs[1]], n, [&fac[0], &fac[1]]);
+        e_det = Some(e);
+        for (s, fs) in f.into_iter().enumerate() {
+            let m = fac[s].m;
+            let (u, _) = semicanonical(&fs, m, fac[s].nocc);
+            fac[s].rotate(&u);
+            // f' = Uᵀ f U
+            let mut t = vec![0.0; m * m];
+            for p in 0..m {
+                for r in 0..m {
+                    t[p * m + r] = (0..m).map(|k| u[k * m + p] * fs[k * m + r]).sum();
+                }
+            }
+            let mut fr = vec![0.0; m * m];
+            for p in 0..m {
+                for r in 0..m {
+                    fr[p * m + r] = (0..m).map(|k| t[p * m + k] * u[k * m + r]).sum();
+                }
+            }
+            fock.push(fr);
+        }
+    } else {
+        for (s, (occ, vir)) in lists.iter().enumerate() {
+            let eps = if s == 0 {
+                &wfn.eps_alpha
+            } else {
+                &wfn.eps_beta
+            };
+            let all: Vec<usize> = occ.iter().chain(vir).copied().collect();
+            let m = all.len();
+            let mut f = vec![0.0; m * m];
+            for (k, &p) in all.iter().enumerate() {
+                f[k * m + k] = eps[p];
+            }
+            fock.push(f);
+        }
+    }
+    // Active spin orbitals: (spin, index within that spin's kept list).
+    let mut occ_so = Vec::new();
+    let mut vir_so = Vec::new();
+    for s in 0..2 {
+        let nf = sel.n_frozen[s];
+        if nf > fac[s].nocc {
+            return Err(Error::input(format!(
+                "{nf} frozen orbitals requested but spin {} has only {} occupied",
+                if s == 0 { "α" } else { "β" },
+                fac[s].nocc
+            )));
+        }
+        occ_so.extend((nf..fac[s].nocc).map(|p| (s, p)));
+    }
+    for s in 0..2 {
+        vir_so.extend((fac[s].nocc..fac[s].m).map(|p| (s, p)));
+    }
+    let (o, v) = (occ_so.len(), vir_so.len());
+    if o == 0 || v == 0 {
+        return Err(Error::input(
+            "coupled cluster needs at least one correlated occupied and one virtual orbital",
+        ));
+    }
+    let fget = |a: (usize, usize), b: (usize, usize)| -> f64 {
+        if a.0 != b.0 {
+            0.0
+        } else {
+            fock[a.0][a.1 * fac[a.0].m + b.1]
+        }
+    };
+    let foo = Tensor::from_fn(&[o, o], |x| fget(occ_so[x[0]], occ_so[x[1]]));
+    let fov = Tensor::from_fn(&[o, v], |x| fget(occ_so[x[0]], vir_so[x[1]]));
+    let fvv = Tensor::from_fn(&[v, v], |x| fget(vir_so[x[0]], vir_so[x[1]]));
+    // Spin-orbital factors [Q][P][R] over the active list (occupied then virtual).
+    let all_so: Vec<(usize, usize)> = occ_so.iter().chain(&vir_so).copied().collect();
+    let nso = all_so.len();
+    let naux = fac[0].naux;
+    let mut bso = vec![0.0; naux * nso * nso];
+    bso.par_chunks_mut(nso * nso)
+        .enumerate()
+        .for_each(|(q, bq)| {
+            for (pp, &(sp, p)) in all_so.iter().enumerate() {
+                let f = &fac[sp];
+                for (rr, &(sr, r)) in all_so.iter().enumerate() {
+                    if sp == sr {
+                        bq[pp * nso + rr] = f.b[q * f.m * f.m + p * f.m + r];
+                    }
+                }
+            }
+        });
+    drop(fac);
+    let sys = Blocks {
+        naux,
+        nso,
+        o,
+        b: &bso,
+    };
+    let so = SpinOrbitalSystem {
+        nocc: o,
+        nvir: v,
+        spin_occ: occ_so.iter().map(|x| x.0 as u8).collect(),
+        spin_vir: vir_so.iter().map(|x| x.0 as u8).collect(),
+        foo,
+        fov,
+        fvv,
+        oooo: sys.antisym([O, O, O, O]),
+        ooov: sys.antisym([O, O, O, V]),
+        oovv: sys.antisym([O, O, V, V]),
+        ovov: sys.antisym([O, V, O, V]),
+        ovvv: sys.antisym([O, V, V, V]),
+        vvvv: sys.antisym([V, V, V, V]),
+        semicanonical: rohf,
+        e_determinant_electronic: e_det,
+    };
+    Ok((so, note))
+}
+
+const O: bool = false;
+const V: bool = true;
+
+struct Blocks<'a> {
+    naux: usize,
+    nso: usize,
+    o: usize,
+    b: &'a [f64],
+}
+
+impl Blocks<'_> {
+    fn range(&self, vir: bool) -> (usize, usize) {
+        if vir {
+            (self.o, self.nso)
+        } else {
+            (0, self.o)
+        }
+    }
+
+    /// (pq|rs) for p, q, r, s in the given spaces, as [p,q,r,s].
+    fn chem(&self, x: [bool; 4]) -> Tensor {
+        let r: Vec<(usize, usize)> = x.iter().map(|&v| self.range(v)).collect();
+        let d: Vec<usize> = r.iter().map(|(a, b)| b - a).collect();
+        let slab = |p: (usize, usize), q: (usize, usize)| -> Vec<f64> {
+            let (np, nq) = (p.1 - p.0, q.1 - q.0);
+            let mut out = vec![0.0; self.naux * np * nq];
+            out.par_chunks_mut(np * nq).enumerate().for_each(|(k, o)| {
+                let bq = &self.b[k * self.nso * self.nso..];
+                for a in 0..np {
+                    o[a * nq..(a + 1) * nq].copy_from_slice(
+                        &bq[(p.0 + a) * self.nso + q.0..(p.0 + a) * self.nso + q.1],
+                    );
+                }
+            });
+            out
+        };
+        let left = slab(r[0], r[1]);
+        let right = slab(r[2], r[3]);
+        let (m, nn) = (d[0] * d[1], d[2] * d[3]);
+        let mut out = vec![0.0; m * nn];
+        if m > 0 && nn > 0 && self.naux > 0 {
+            let l = MatRef::from_row_major_slice(&left, self.naux, m);
+            let rr = MatRef::from_row_major_slice(&right, self.naux, nn);
+            let c = MatMut::from_row_major_slice_mut(&mut out, m, nn);
+            par_gemm(c, false, l.transpose(), rr, 1.0);
+        }
+        Tensor {
+            shape: d,
+            data: out,
+        }
+    }
+
+    /// ⟨pq||rs⟩ = (pr|qs) − (ps|qr) for p, q, r, s in the given spaces, as [p,q,r,s].
+    fn antisym(&self, x: [bool; 4]) -> Tensor {
+        let g1 = self.chem([x[0], x[2], x[1], x[3]]);
+        let g2 = if x[2] == x[3] {
+            None
+        } else {
+            Some(self.chem([x[0], x[3], x[1], x[2]]))
+        };
+        let g2r = g2.as_ref().unwrap_or(&g1);
+        let d = [g1.shape[0], g1.shape[2], g1.shape[1], g1.shape[3]];
+        let (s1, s2) = (&g1.shape, &g2r.shape);
+        let mut out = vec![0.0; d.iter().product()];
+        out.par_chunks_mut(d[1] * d[2] * d[3])
+            .enumerate()
+            .for_each(|(p, op)| {
+                for q in 0..d[1] {
+                    for r in 0..d[2] {
+                        for s in 0..d[3] {
+                            // g1[p,r,q,s] − g2[p,s,q,r]
+                            let a = g1.data[((p * s1[1] + r) * s1[2] + q) * s1[3] + s];
+                            let b = g2r.data[((p * s2[1] + s) * s2[2] + q) * s2[3] + r];
+                            op[(q * d[2] + r) * d[3] + s] = a - b;
+                        }
+                    }
+                }
+            });
+        Tensor {
+            shape: d.to_vec(),
+            data: out,
+        }
+    }
+}
