@@ -119,7 +119,10 @@ fn nh3_ch4_hf_631gstar() {
         let t = (120.0 * k as f64).to_radians();
         nh3.push((1, [r0 * t.cos(), r0 * t.sin(), z0]));
     }
-    let r = run(&mol_angstrom(&nh3), &spec("6-31G*", 0, 1, Reference::Rhf, None));
+    let r = run(
+        &mol_angstrom(&nh3),
+        &spec("6-31G*", 0, 1, Reference::Rhf, None),
+    );
     let (d, a) = (dist(&r.molecule, 0, 1), angle(&r.molecule, 1, 0, 2));
     eprintln!(
         "NH3: r(NH) {d:.4} Å, HNH {a:.2}°, {} gradients, {}",
@@ -139,7 +142,10 @@ fn nh3_ch4_hf_631gstar() {
     ]);
     let r = run(&ch4, &spec("6-31G*", 0, 1, Reference::Rhf, None));
     let d = dist(&r.molecule, 0, 1);
-    eprintln!("CH4: r(CH) {d:.4} Å, {} gradients, {}", r.n_gradients, r.point_group);
+    eprintln!(
+        "CH4: r(CH) {d:.4} Å, {} gradients, {}",
+        r.n_gradients, r.point_group
+    );
     assert_eq!(r.point_group, "Td");
     assert!((d - 1.084).abs() < 0.002, "r(CH) {d}"); // Hehre et al. 1986, from memory
 }
@@ -196,8 +202,16 @@ fn h2co_c2h4_hf_631gstar() {
 #[test]
 fn bonding_and_antibonding_holes() {
     let h2 = mol_angstrom(&[(1, [0.0, 0.0, 0.0]), (1, [0.0, 0.0, 0.74])]);
-    let r0 = dist(&run(&h2, &spec("6-31G*", 0, 1, Reference::Rhf, None)).molecule, 0, 1);
-    let r1 = dist(&run(&h2, &spec("6-31G*", 1, 2, Reference::Uhf, None)).molecule, 0, 1);
+    let r0 = dist(
+        &run(&h2, &spec("6-31G*", 0, 1, Reference::Rhf, None)).molecule,
+        0,
+        1,
+    );
+    let r1 = dist(
+        &run(&h2, &spec("6-31G*", 1, 2, Reference::Uhf, None)).molecule,
+        0,
+        1,
+    );
     eprintln!("H2 {r0:.4} Å, H2+ {r1:.4} Å");
     assert!(r1 - r0 > 0.2, "H2+ {r1} against H2 {r0}");
 
@@ -207,15 +221,27 @@ fn bonding_and_antibonding_holes() {
     let mut ion = spec("6-31G*", 0, 1, Reference::Uhf, None);
     ion.hole = Some(bandcast::geometry::state::resolve_hole(&n2, &ion, "1πu").unwrap());
     let r = run(&n2, &ion);
-    let lost = r.state.hole.as_ref().and_then(bandcast::geometry::state::hole_lost);
+    let lost = r
+        .state
+        .hole
+        .as_ref()
+        .and_then(bandcast::geometry::state::hole_lost);
     assert!(lost.is_none(), "{lost:?}");
     let r1 = dist(&r.molecule, 0, 1);
     eprintln!("N2 {r0:.4} Å, N2+ (1πu hole) {r1:.4} Å");
     assert!(r1 - r0 > 0.03, "N2+ 1πu⁻¹ {r1} against N2 {r0}");
 
     let o2 = mol_angstrom(&[(8, [0.0, 0.0, 0.0]), (8, [0.0, 0.0, 1.20])]);
-    let r0 = dist(&run(&o2, &spec("6-31G*", 0, 3, Reference::Uhf, None)).molecule, 0, 1);
-    let r1 = dist(&run(&o2, &spec("6-31G*", 1, 2, Reference::Uhf, None)).molecule, 0, 1);
+    let r0 = dist(
+        &run(&o2, &spec("6-31G*", 0, 3, Reference::Uhf, None)).molecule,
+        0,
+        1,
+    );
+    let r1 = dist(
+        &run(&o2, &spec("6-31G*", 1, 2, Reference::Uhf, None)).molecule,
+        0,
+        1,
+    );
     eprintln!("O2 (triplet) {r0:.4} Å, O2+ {r1:.4} Å");
     assert!(r0 - r1 > 0.03, "O2+ {r1} against O2 {r0}");
 }
@@ -242,4 +268,37 @@ fn water_1b1_hole_nonbonding() {
     eprintln!("H2O {r0:.4} Å {a0:.2}°, H2O+ 1b1⁻¹ {r1:.4} Å {a1:.2}°");
     assert!((0.0..0.06).contains(&(r1 - r0)), "Δr {}", r1 - r0);
     assert!((2.0..10.0).contains(&(a1 - a0)), "Δangle {}", a1 - a0);
+}
+
+/// Without the point group imposed, a start with no symmetry still finds water's C2v
+/// minimum (exact condition: the minimum is symmetric; Hehre et al. 1986 values, from
+/// memory), and the group reported is the final structure's.
+#[test]
+fn water_without_imposed_symmetry() {
+    let start = mol_angstrom(&[
+        (8, [0.02, -0.01, 0.12]),
+        (1, [0.05, 0.80, -0.45]),
+        (1, [-0.03, -0.74, -0.50]),
+    ]);
+    let opts = OptimizeOptions {
+        keep_symmetry: false,
+        ..OptimizeOptions::default()
+    };
+    let r = optimize(
+        &start,
+        &spec("6-31G*", 0, 1, Reference::Rhf, None),
+        &opts,
+        &mut |_| {},
+    )
+    .unwrap();
+    assert!(r.converged, "{:?}", r.stalled);
+    let m = &r.molecule;
+    let (r1, r2, a) = (dist(m, 0, 1), dist(m, 0, 2), angle(m, 1, 0, 2));
+    eprintln!("H2O from C1: {r1:.4} {r2:.4} Å {a:.2}°, {}", r.point_group);
+    assert!(
+        (r1 - 0.947).abs() < 0.002 && (r2 - 0.947).abs() < 0.002,
+        "{r1} {r2}"
+    );
+    assert!((a - 105.5).abs() < 0.2, "angle {a}");
+    assert_eq!(r.point_group, "C2v");
 }

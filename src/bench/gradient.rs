@@ -143,7 +143,12 @@ pub fn harmonic_case(dir: &Path, molecule: &str, basis_name: &str) -> Result<Har
 }
 
 /// The cases (module docs): (gradient cases, harmonic cases) as (molecule, basis).
-pub fn cases(small: bool) -> (Vec<(&'static str, &'static str)>, Vec<(&'static str, &'static str)>) {
+pub fn cases(
+    small: bool,
+) -> (
+    Vec<(&'static str, &'static str)>,
+    Vec<(&'static str, &'static str)>,
+) {
     if small {
         (vec![("water", "cc-pVTZ")], vec![("water", "cc-pVDZ")])
     } else {
