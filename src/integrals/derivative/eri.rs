@@ -173,35 +173,6 @@ impl EriDerivative {
         }
     }
 
-    /// As [`EriDerivative::centre_derivative`] from the raised (`plus`) and lowered
-    /// (`minus`, empty for s shells) Cartesian quartets already computed.
-    fn centre_derivative_from(
-        &self,
-        q: [usize; 4],
-        pos: usize,
-        plus: &[f64],
-        minus: &[f64],
-        out: &mut [Vec<f64>; 3],
-        tmp: &mut Vec<f64>,
-    ) {
-        let s = q[pos];
-        let mut dims = q.map(|x| self.nf[x]);
-        let nf = dims[pos];
-        dims[pos] = n_cartesian(self.l[s] + 1);
-        for k in 0..3 {
-            transform_axis(plus, &dims, pos, &self.g_plus[s][k], nf, &mut out[k]);
-        }
-        if self.minus[s].is_some() {
-            dims[pos] = n_cartesian(self.l[s] - 1);
-            for (k, o) in out.iter_mut().enumerate() {
-                transform_axis(minus, &dims, pos, &self.g_minus[s][k], nf, tmp);
-                for (x, y) in o.iter_mut().zip(tmp.iter()) {
-                    *x += y;
-                }
-            }
-        }
-    }
-
     /// The two-electron part of an energy gradient, ½ Σ_μνλσ ∂(μν|λσ)/∂R_A Γ_μνλσ with
     /// Γ_μνλσ = J_μν J_λσ − Σ_s c_s ½ (X^s_μλ X^s_νσ + X^s_μσ X^s_νλ), for every atom A
     /// (n_atoms × 3). RHF: J = P, one exchange term (½, P); UHF/ROHF: J = P^α + P^β,
@@ -243,10 +214,8 @@ impl EriDerivative {
             .map(|(iab, &(a, b))| {
                 let mut g = vec![0.0; 3 * n_atoms];
                 let mut out: [Vec<f64>; 3] = Default::default();
-                let (mut tmp, mut gam) = (Vec::new(), Vec::new());
+                let (mut buf, mut tmp, mut gam) = (Vec::new(), Vec::new(), Vec::new());
                 let qab = self.schwarz(a, b);
-                // the significant kets of this bra pair, with the atom skipped in each
-                let mut kets: Vec<(usize, usize, usize)> = Vec::new();
                 for &(c, d) in &pairs[..=iab] {
                     let atoms = [self.atom[a], self.atom[b], self.atom[c], self.atom[d]];
                     if atoms.iter().all(|&x| x == atoms[0]) {
@@ -261,6 +230,13 @@ impl EriDerivative {
                     if qab * self.schwarz(c, d) * dm < threshold {
                         continue;
                     }
+                    let q = [a, b, c, d];
+                    let dims = q.map(|x| self.nf[x]);
+                    gamma_block(q, dims, off, coulomb, exchange, &mut gam);
+                    let deg = if a != b { 2.0 } else { 1.0 }
+                        * if c != d { 2.0 } else { 1.0 }
+                        * if iab != pairs_index(c, d) { 2.0 } else { 1.0 };
+                    let scale = 0.5 * deg;
                     // the atom occurring most often takes minus the sum of the others
                     let count = |x: usize| atoms.iter().filter(|&&y| y == x).count();
                     let skip = (0..4)
@@ -268,39 +244,16 @@ impl EriDerivative {
                         .max_by_key(|&p| count(atoms[p]))
                         .map(|p| atoms[p])
                         .unwrap();
-                    kets.push((c, d, skip));
-                }
-                let mut batch = DerivativeBatch::default();
-                for chunk in kets.chunks(KET_CHUNK) {
-                    batch.compute(self, a, b, chunk);
-                    for (kc, &(c, d, skip)) in chunk.iter().enumerate() {
-                        let q = [a, b, c, d];
-                        let atoms = q.map(|x| self.atom[x]);
-                        let dims = q.map(|x| self.nf[x]);
-                        gamma_block(q, dims, off, coulomb, exchange, &mut gam);
-                        let deg = if a != b { 2.0 } else { 1.0 }
-                            * if c != d { 2.0 } else { 1.0 }
-                            * if iab != pairs_index(c, d) { 2.0 } else { 1.0 };
-                        let scale = 0.5 * deg;
-                        for pos in 0..4 {
-                            if atoms[pos] == skip {
-                                continue;
-                            }
-                            self.centre_derivative_from(
-                                q,
-                                pos,
-                                batch.block(pos, false, kc),
-                                batch.block(pos, true, kc),
-                                &mut out,
-                                &mut tmp,
-                            );
-                            for k in 0..3 {
-                                let v: f64 =
-                                    out[k].iter().zip(&gam).map(|(x, y)| x * y).sum::<f64>()
-                                        * scale;
-                                g[3 * atoms[pos] + k] += v;
-                                g[3 * skip + k] -= v;
-                            }
+                    for pos in 0..4 {
+                        if atoms[pos] == skip {
+                            continue;
+                        }
+                        self.centre_derivative(q, pos, &mut out, &mut buf, &mut tmp);
+                        for k in 0..3 {
+                            let v: f64 =
+                                out[k].iter().zip(&gam).map(|(x, y)| x * y).sum::<f64>() * scale;
+                            g[3 * atoms[pos] + k] += v;
+                            g[3 * skip + k] -= v;
                         }
                     }
                 }
@@ -316,92 +269,6 @@ impl EriDerivative {
             }
         }
         g
-    }
-}
-
-/// Kets per batched engine call in [`EriDerivative::contract`] (bounds the buffers).
-const KET_CHUNK: usize = 48;
-
-/// The raised and lowered quartets of one bra pair against a chunk of kets, by position
-/// of the differentiated shell: one batched engine call (`EriEngine::shell_quartets`,
-/// bit-for-bit the single-quartet values) per position and direction of the change in l.
-#[derive(Default)]
-struct DerivativeBatch {
-    /// [position][0 = raised, 1 = lowered]: the values and the offset of each ket's block
-    /// (usize::MAX: not computed).
-    data: [[(Vec<f64>, Vec<usize>); 2]; 4],
-    kets: Vec<(usize, usize)>,
-    index: Vec<usize>,
-}
-
-impl DerivativeBatch {
-    fn compute(&mut self, d: &EriDerivative, a: usize, b: usize, chunk: &[(usize, usize, usize)]) {
-        for pos in 0..4 {
-            for (lower, slot) in self.data[pos].iter_mut().enumerate() {
-                let (buf, offs) = slot;
-                offs.clear();
-                offs.resize(chunk.len(), usize::MAX);
-                self.kets.clear();
-                self.index.clear();
-                let change = |s: usize| -> Option<usize> {
-                    if lower == 1 {
-                        d.minus[s]
-                    } else {
-                        Some(d.plus[s])
-                    }
-                };
-                // the bra shell replaced (positions 0, 1) is the same for every ket
-                let bra = match pos {
-                    0 => change(a).map(|x| (x, b)),
-                    1 => change(b).map(|x| (a, x)),
-                    _ => Some((a, b)),
-                };
-                let Some((ba, bb)) = bra else { continue };
-                for (k, &(c, dd, skip)) in chunk.iter().enumerate() {
-                    let atoms = [d.atom[a], d.atom[b], d.atom[c], d.atom[dd]];
-                    if atoms[pos] == skip {
-                        continue;
-                    }
-                    let ket = match pos {
-                        2 => change(c).map(|x| (x, dd)),
-                        3 => change(dd).map(|x| (c, x)),
-                        _ => Some((c, dd)),
-                    };
-                    if let Some(kt) = ket {
-                        self.kets.push(kt);
-                        self.index.push(k);
-                    }
-                }
-                if self.kets.is_empty() {
-                    continue;
-                }
-                d.engine.shell_quartets(ba, bb, &self.kets, buf);
-                let n_of = |s: usize| d.engine.n_functions(s);
-                let nab = n_of(ba) * n_of(bb);
-                let mut o = 0;
-                for (i, &(c, dd)) in self.kets.iter().enumerate() {
-                    offs[self.index[i]] = o;
-                    o += nab * n_of(c) * n_of(dd);
-                }
-            }
-        }
-    }
-
-    /// The block of ket `k` of the chunk, shell at `pos` raised (`lower` false) or lowered;
-    /// empty when not computed (s shells have no lowered part).
-    fn block(&self, pos: usize, lower: bool, k: usize) -> &[f64] {
-        let (buf, offs) = &self.data[pos][lower as usize];
-        let o = offs[k];
-        if o == usize::MAX {
-            return &[];
-        }
-        let end = offs
-            .iter()
-            .filter(|&&x| x != usize::MAX && x > o)
-            .min()
-            .copied()
-            .unwrap_or(buf.len());
-        &buf[o..end]
     }
 }
 
