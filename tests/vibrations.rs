@@ -122,3 +122,49 @@ fn carbon_dioxide_fundamentals() {
         );
     }
 }
+
+/// Exact condition: the displaced gradients are independent, so the Hessian is the same
+/// bit for bit whether they run one at a time or several at once.
+#[test]
+fn hessian_independent_of_concurrency() {
+    let w = mol_angstrom(&[
+        (8, [0.0, 0.0, 0.12]),
+        (1, [0.0, 0.76, -0.47]),
+        (1, [0.0, -0.76, -0.47]),
+    ]);
+    let mut s = spec();
+    s.basis = "STO-3G".into();
+    let st = s.solve(&w, None).unwrap();
+    let h1 = bandcast::vibrations::hessian_by_gradients_with(&st, &s, 1, &mut |_, _| {}).unwrap();
+    let h3 = bandcast::vibrations::hessian_by_gradients_with(&st, &s, 3, &mut |_, _| {}).unwrap();
+    assert_eq!(h1, h3);
+}
+
+/// Bad input refused before any work (exit 2, the rule for bad input): a memory budget
+/// smaller than the Hessian's own working set.
+#[test]
+fn vibrations_memory_refused_before_work() {
+    let dir = std::env::temp_dir().join(format!("bandcast-vib-mem-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let f = dir.join("water.xyz");
+    std::fs::write(
+        &f,
+        "3\nwater\nO 0 0 0.12\nH 0 0.76 -0.47\nH 0 -0.76 -0.47\n",
+    )
+    .unwrap();
+    let out = std::process::Command::new(env!("CARGO_BIN_EXE_bandcast"))
+        .args([
+            "vibrations",
+            f.to_str().unwrap(),
+            "--basis",
+            "6-31G*",
+            "--memory",
+            "1e-7",
+        ])
+        .output()
+        .unwrap();
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(2), "{err}");
+    assert!(err.contains("too small"), "{err}");
+    let _ = std::fs::remove_dir_all(&dir);
+}

@@ -29,6 +29,8 @@ pub enum Workload {
     Eom(EomArgs),
     /// Franck–Condon lines of seeded random many-mode Duschinsky relations: captured fraction, lines, time.
     FranckCondon(FranckCondonArgs),
+    /// One analytic RHF gradient against its SCF (CPU seconds, ratio), and a full harmonic analysis.
+    Gradient(GradientArgs),
 }
 
 #[derive(clap::Args, Debug)]
@@ -66,6 +68,7 @@ pub fn run(args: Args) -> Result<()> {
         Workload::Core(a) => super::core::bench(a),
         Workload::Eom(a) => eom(a),
         Workload::FranckCondon(a) => franck_condon(a),
+        Workload::Gradient(a) => gradient(a),
     }
 }
 
@@ -334,6 +337,70 @@ fn franck_condon(a: FranckCondonArgs) -> Result<()> {
             r.overlaps_evaluated,
             r.wall_seconds,
             r.notes.join(",")
+        );
+    }
+    Ok(())
+}
+
+/// `bandcast bench gradient` (library: `bandcast::bench::gradient`).
+#[derive(clap::Args, Debug)]
+pub struct GradientArgs {
+    /// Small stand-ins only (water/cc-pVTZ gradient, water/cc-pVDZ harmonic analysis).
+    #[arg(long)]
+    pub small: bool,
+    /// Skip the harmonic analysis.
+    #[arg(long)]
+    pub no_harmonic: bool,
+    /// Directory holding water.xyz and benzene.xyz (GW100 structures, Å).
+    #[arg(long, value_name = "DIR", default_value = DEFAULT_DIR)]
+    pub dir: PathBuf,
+    /// Print one JSON document instead of text.
+    #[arg(long)]
+    pub json: bool,
+}
+
+#[derive(serde::Serialize)]
+struct GradientJson {
+    gradients: Vec<bandcast::bench::gradient::GradientCase>,
+    harmonic: Vec<bandcast::bench::gradient::HarmonicCase>,
+    workload: &'static str,
+}
+
+fn gradient(a: GradientArgs) -> Result<()> {
+    use bandcast::bench::gradient as g;
+    let (gc, hc) = g::cases(a.small);
+    if !a.json {
+        println!(
+            "Gradient benchmark ({} threads): SCF (default options) then one analytic RHF \
+             gradient; CPU seconds of all threads; ratio = gradient CPU / SCF CPU",
+            rayon::current_num_threads()
+        );
+    }
+    let mut out = GradientJson {
+        gradients: Vec::new(),
+        harmonic: Vec::new(),
+        workload: "gradient",
+    };
+    for (m, b) in gc {
+        let r = g::gradient_case(&a.dir, m, b)?;
+        if !a.json {
+            println!("{}", g::format_gradient(&r));
+        }
+        out.gradients.push(r);
+    }
+    if !a.no_harmonic {
+        for (m, b) in hc {
+            let r = g::harmonic_case(&a.dir, m, b)?;
+            if !a.json {
+                println!("{}", g::format_harmonic(&r));
+            }
+            out.harmonic.push(r);
+        }
+    }
+    if a.json {
+        println!(
+            "{}",
+            serde_json::to_string_pretty(&out).map_err(|e| Error::computation(e.to_string()))?
         );
     }
     Ok(())

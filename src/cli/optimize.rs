@@ -40,6 +40,12 @@ pub struct Args {
     /// Where to write the optimised structure (XYZ, Å). Default: FILE-opt.xyz beside the input.
     #[arg(long, value_name = "OPT.xyz")]
     pub out: Option<PathBuf>,
+    /// Do not impose the point group of the start. Use it when the symmetric structure of
+    /// an ion is a saddle point (`bandcast vibrations` shows an imaginary mode, e.g. the
+    /// ethylene cation): give a start slightly distorted along that mode, since an exactly
+    /// symmetric start has a symmetric gradient and stays symmetric.
+    #[arg(long)]
+    pub no_symmetry: bool,
     /// Print JSON instead of text.
     #[arg(long)]
     pub json: bool,
@@ -87,7 +93,11 @@ pub fn run(a: Args) -> Result<()> {
             ));
         }
     };
-    let res = optimize(&mol, &spec, &OptimizeOptions::default(), &mut progress);
+    let opts = OptimizeOptions {
+        keep_symmetry: !a.no_symmetry,
+        ..OptimizeOptions::default()
+    };
+    let res = optimize(&mol, &spec, &opts, &mut progress);
     if let Some(b) = &bar {
         b.finish_and_clear();
     }

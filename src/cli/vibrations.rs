@@ -5,7 +5,10 @@ use std::io::IsTerminal;
 
 use bandcast::analysis::symmetry::{detect_point_group, DEFAULT_TOLERANCE};
 use bandcast::gradient::{scf_gradient, GradientOptions};
-use bandcast::vibrations::{harmonic_analysis, hessian_by_gradients, Mode, HESSIAN_STEP};
+use bandcast::system::format_bytes;
+use bandcast::vibrations::{
+    harmonic_analysis, hessian_by_gradients_with, hessian_estimate, Mode, HESSIAN_STEP,
+};
 use bandcast::{Error, Result};
 
 use super::geometry_common::GeometryStateArgs;
@@ -37,6 +40,14 @@ const STATIONARY_GRADIENT: f64 = 1e-3;
 pub struct Args {
     #[command(flatten)]
     pub state: GeometryStateArgs,
+    /// Memory in GiB for the whole run (default: the SCF's usual budget). The displaced
+    /// gradients run as many at a time as fit (at most one per thread) and share it; the
+    /// run is refused before any work when even one does not fit.
+    #[arg(long, value_name = "GIB")]
+    pub memory: Option<f64>,
+    /// On stderr: the memory and time estimates, and the stage timings.
+    #[arg(long)]
+    pub verbose: bool,
     /// Print JSON instead of text.
     #[arg(long)]
     pub json: bool,
@@ -56,7 +67,51 @@ struct JsonOut<'a> {
 }
 
 pub fn run(a: Args) -> Result<()> {
-    let (mol, spec) = a.state.state()?;
+    if let Some(m) = a.memory {
+        if !(m.is_finite() && m > 0.0) {
+            return Err(Error::input(format!(
+                "--memory {m}: the budget must be a positive number of GiB"
+            )));
+        }
+    }
+    let (mol, mut spec) = a.state.state()?;
+    // memory before any work: Hessian plus the working set of each displaced gradient
+    let n_basis = bandcast::basis::load(&spec.basis, &spec.molecule_at(&mol)?, None)?.n_basis;
+    let threads = rayon::current_num_threads();
+    let mut concurrency = threads;
+    let mut est = hessian_estimate(mol.atoms.len(), n_basis, concurrency, 0.0);
+    if let Some(gib) = a.memory {
+        let budget = gib * (1u64 << 30) as f64;
+        while concurrency > 1 && est.minimum_bytes > budget {
+            concurrency -= 1;
+            est = hessian_estimate(mol.atoms.len(), n_basis, concurrency, 0.0);
+        }
+        if est.minimum_bytes > budget {
+            return Err(Error::input(format!(
+                "--memory {gib} GiB is too small for this harmonic analysis: it needs at least \
+                 {} (Hessian and gradients {}, one displaced SCF and gradient {} for {n_basis} \
+                 basis functions)",
+                format_bytes(est.minimum_bytes),
+                format_bytes(est.hessian_bytes),
+                format_bytes(est.per_gradient_bytes)
+            )));
+        }
+        // what is left goes to stored integrals, shared by the SCFs running at once
+        spec.scf.memory_budget_bytes = (budget - est.minimum_bytes) as usize;
+    }
+    if a.verbose {
+        eprintln!(
+            "estimate: {n_basis} basis functions, {} gradients, {concurrency} at a time; memory \
+             at least {} (Hessian and gradients {}, {} per displaced SCF and gradient) plus \
+             stored integrals up to {}",
+            est.gradients,
+            format_bytes(est.minimum_bytes),
+            format_bytes(est.hessian_bytes),
+            format_bytes(est.per_gradient_bytes),
+            format_bytes(spec.scf.memory_budget_bytes as f64)
+        );
+    }
+    let clock = std::time::Instant::now();
     let st = spec.solve(&mol, None)?;
     if let Some(reason) = st
         .hole
@@ -75,6 +130,16 @@ pub fn run(a: Args) -> Result<()> {
     )?;
     let gmax = g.total.iter().flatten().fold(0.0f64, |m, x| m.max(x.abs()));
     let total = 6 * mol.atoms.len();
+    let reference_seconds = clock.elapsed().as_secs_f64();
+    if a.verbose {
+        let e = hessian_estimate(mol.atoms.len(), n_basis, concurrency, reference_seconds);
+        eprintln!(
+            "reference SCF and gradient: {reference_seconds:.2} s; Hessian: about {:.0} s wall \
+             ({} gradients, {concurrency} at a time; displaced SCFs start from the reference \
+             orbitals, so usually less)",
+            e.seconds, e.gradients
+        );
+    }
     let bar = std::io::stderr().is_terminal().then(|| {
         let b = indicatif::ProgressBar::new(total as u64);
         b.set_style(
@@ -85,7 +150,8 @@ pub fn run(a: Args) -> Result<()> {
         );
         b
     });
-    let h = hessian_by_gradients(&st, &spec, &mut |done, _| {
+    let clock = std::time::Instant::now();
+    let h = hessian_by_gradients_with(&st, &spec, concurrency, &mut |done, _| {
         if let Some(b) = &bar {
             b.set_position(done as u64);
         }
@@ -94,6 +160,12 @@ pub fn run(a: Args) -> Result<()> {
         b.finish_and_clear();
     }
     let h = h?;
+    if a.verbose {
+        eprintln!(
+            "Hessian: {total} gradients in {:.2} s wall",
+            clock.elapsed().as_secs_f64()
+        );
+    }
     let pg = detect_point_group(&st.molecule, DEFAULT_TOLERANCE);
     let an = harmonic_analysis(&st.molecule, &h, Some(&pg));
     let name = mol.name.clone();

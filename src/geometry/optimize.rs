@@ -8,7 +8,10 @@
 //!   replaced by max(|λ|, 0.005) so the step always goes downhill), scaled down to a trust
 //!   radius of 0.3 bohr on its longest atomic displacement; halved and retried when the
 //!   energy rises by more than 1e-6 Eh.
-//! - Point group of the start kept (`symmetrize`).
+//! - Point group of the start kept (`symmetrize`), unless `keep_symmetry` is false: then
+//!   nothing is symmetrised and the point group reported is that of the final structure
+//!   (a start that is exactly symmetric keeps its symmetry to rounding anyway, since its
+//!   gradient is symmetric: distort it to leave a saddle point).
 //! - Converged when all four criteria hold (common-practice thresholds): largest force
 //!   component 4.5e-4, RMS force 3.0e-4 Eh/bohr, largest step component 1.8e-3, RMS step
 //!   1.2e-3 bohr; or when the largest force component is below 1/100 of its threshold.
@@ -213,6 +216,8 @@ pub fn optimize(
             a.position = p;
         }
     }
+    // the group reported at the end: the start's when kept, else found again (empty here)
+    let pg_name: &str = if opts.keep_symmetry { &pg.name } else { "" };
     let gopts = GradientOptions::default();
     let mut n_gradients = 0;
     let evaluate = |mol: &Molecule,
@@ -251,16 +256,7 @@ pub fn optimize(
     steps.push(first);
     let converged_forces = |mf: f64, rf: f64| mf < opts.max_force && rf < opts.rms_force;
     if mf < opts.max_force / 100.0 {
-        return Ok(finish(
-            true,
-            mol,
-            cur,
-            g,
-            steps,
-            n_gradients,
-            &pg.name,
-            None,
-        ));
+        return Ok(finish(true, mol, cur, g, steps, n_gradients, pg_name, None));
     }
     for it in 1..=opts.max_iterations {
         let x: Vec<[f64; 3]> = mol.atoms.iter().map(|a| a.position).collect();
@@ -327,16 +323,7 @@ pub fn optimize(
         if (converged_forces(mf, rf) && ms < opts.max_step && rs < opts.rms_step)
             || mf < opts.max_force / 100.0
         {
-            return Ok(finish(
-                true,
-                mol,
-                cur,
-                g,
-                steps,
-                n_gradients,
-                &pg.name,
-                None,
-            ));
+            return Ok(finish(true, mol, cur, g, steps, n_gradients, pg_name, None));
         }
     }
     let last = steps.last().expect("at least one step");
@@ -361,7 +348,7 @@ pub fn optimize(
         g,
         steps,
         n_gradients,
-        &pg.name,
+        pg_name,
         Some(reason),
     ))
 }
@@ -377,6 +364,12 @@ fn finish(
     pg: &str,
     stalled: Option<String>,
 ) -> OptimizeResult {
+    let point_group = if pg.is_empty() {
+        // symmetry not kept: the group of the final structure
+        detect_point_group(&mol, DEFAULT_TOLERANCE).name
+    } else {
+        pg.to_string()
+    };
     OptimizeResult {
         converged,
         energy: state.wavefunction.energy,
@@ -384,7 +377,7 @@ fn finish(
         gradient: g,
         steps,
         n_gradients,
-        point_group: pg.to_string(),
+        point_group,
         state,
         stalled,
     }

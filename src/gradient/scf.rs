@@ -50,6 +50,9 @@ pub struct ScfGradient {
     /// −Σ W S'.
     pub overlap: Vec<[f64; 3]>,
     pub two_electron: Vec<[f64; 3]>,
+    /// Wall seconds of the parts: "fock" (J and K at the converged densities, for W),
+    /// "one-electron" (S', T', V'), "two-electron" (the derivative ERIs).
+    pub timings: Vec<(String, f64)>,
 }
 
 /// dE/dR of the SCF state `wf` of `mol` in `basis`.
@@ -77,6 +80,12 @@ pub fn scf_gradient(
     };
     let pt = &pa + &pb;
 
+    let clock = std::time::Instant::now();
+    let mut timings: Vec<(String, f64)> = Vec::new();
+    let lap = |name: &str, timings: &mut Vec<(String, f64)>| {
+        let before: f64 = timings.iter().map(|t| t.1).sum();
+        timings.push((name.to_string(), clock.elapsed().as_secs_f64() - before));
+    };
     // Fock matrices at the converged densities (for W)
     let h = core_hamiltonian(basis, mol);
     let engine = EriEngine::new(basis);
@@ -97,6 +106,7 @@ pub fn scf_gradient(
         &fb,
     );
 
+    lap("fock", &mut timings);
     let vnn = nuclear_repulsion_gradient(mol);
     let sites: Vec<ChargeSite> = mol
         .atoms
@@ -117,6 +127,7 @@ pub fn scf_gradient(
         .collect();
     let gs = overlap_gradient(basis, n_atoms, &w);
     let ovl: Vec<[f64; 3]> = gs.iter().map(|a| [-a[0], -a[1], -a[2]]).collect();
+    lap("one-electron", &mut timings);
     let deriv = EriDerivative::new(basis);
     let two = match wf.reference {
         Reference::Rhf => deriv.contract(basis, n_atoms, &pt, &[(0.5, &pt)], opts.screening),
@@ -128,6 +139,7 @@ pub fn scf_gradient(
             opts.screening,
         ),
     };
+    lap("two-electron", &mut timings);
     let total: Vec<[f64; 3]> = (0..n_atoms)
         .map(|a| std::array::from_fn(|k| vnn[a][k] + one[a][k] + ovl[a][k] + two[a][k]))
         .collect();
@@ -137,6 +149,7 @@ pub fn scf_gradient(
         one_electron: one,
         overlap: ovl,
         two_electron: two,
+        timings,
     })
 }
 

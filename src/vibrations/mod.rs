@@ -5,4 +5,7 @@ pub mod harmonic;
 pub mod hessian;
 
 pub use harmonic::{harmonic_analysis, HarmonicAnalysis, Mode};
-pub use hessian::{hessian_by_gradients, HESSIAN_STEP};
+pub use hessian::{
+    hessian_by_gradients, hessian_by_gradients_with, hessian_estimate, HessianEstimate,
+    HESSIAN_STEP,
+};
