@@ -252,7 +252,7 @@ pub fn assigned_pairs(
         let residual = peaks[j] - aligned[i];
         let ev = PairEvidence {
             margin_feature: confidence_from_margin(delta, ctx.tau_ev),
-            residual_over_sigma: ctx.sigma_ev.map(|s| residual.abs() / s.max(0.05)),
+            sigma_ev: ctx.sigma_ev,
             intensity_log_ratio: ratios[i][j],
             swaps: swapped.contains(&i),
         };

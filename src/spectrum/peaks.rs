@@ -99,6 +99,7 @@ fn half_width(x: &[f64], y: &[f64], k: usize) -> f64 {
     let half = 0.5 * y[k];
     let side = |dir: i64| -> Option<f64> {
         let mut j = k as i64;
+        let mut low = y[k];
         loop {
             let nj = j + dir;
             if nj < 0 || nj as usize >= y.len() {
@@ -110,8 +111,9 @@ fn half_width(x: &[f64], y: &[f64], k: usize) -> f64 {
                 let t = (y[a] - half) / (y[a] - y[b]).max(1e-300);
                 return Some((x[a] + t * (x[b] - x[a]) - x[k]).abs());
             }
-            if y[b] > y[a] {
-                return None; // valley before half height
+            low = low.min(y[b]);
+            if y[b] > low + 0.1 * y[k] {
+                return None; // a valley before half height (rises of 10 % are noise)
             }
             j = nj;
         }
