@@ -204,9 +204,9 @@ fn with_file(e: Error, path: &Path) -> Error {
     }
 }
 
-/// A trace read as binding energy whose window holds none of the predicted bands (within
-/// 3 eV) while read as kinetic energy for the photon it holds some: refused, naming both
-/// readings, rather than aligned by a large shift.
+/// A trace read as binding energy whose window (± 1 eV) holds fewer than half as many
+/// predicted bands as it holds read as kinetic energy for the photon (and at least two that
+/// way): refused, naming both readings, rather than aligned by a large shift.
 fn looks_kinetic(
     m: &Measured,
     bands: &[bandcast::ionization::Band],
@@ -216,7 +216,7 @@ fn looks_kinetic(
     let hv = photon.energy_ev();
     let lo = m.energy_ev[0];
     let hi = m.energy_ev[m.energy_ev.len() - 1];
-    let slack = 3.0;
+    let slack = 1.0;
     let reachable: Vec<f64> = bands.iter().map(|b| b.ie_ev).filter(|&e| e < hv).collect();
     let as_binding = reachable
         .iter()
@@ -226,13 +226,13 @@ fn looks_kinetic(
         .iter()
         .filter(|&&e| e >= hv - hi - slack && e <= hv - lo + slack)
         .count();
-    if as_binding == 0 && as_kinetic > 0 {
+    if as_kinetic >= 2 && as_kinetic > 2 * as_binding {
         return Err(Error::input_at(
             path,
             None,
             format!(
-                "the trace spans {lo:.2}–{hi:.2} eV: as binding energy it holds none of the \
-                 predicted bands, as kinetic energy for hν = {hv:.3} eV it holds {as_kinetic}; \
+                "the trace spans {lo:.2}–{hi:.2} eV: as binding energy it holds {as_binding} of \
+                 the predicted bands, as kinetic energy for hν = {hv:.3} eV it holds {as_kinetic}; \
                  the file is probably kinetic energy (--measured-axis kinetic converts it; \
                  --measured-axis binding reads it as binding energy anyway)"
             ),
