@@ -129,17 +129,26 @@ pub fn overlay_plot(run: &AssignRun) -> Plot {
     let pmax = pred_raw.iter().cloned().fold(0.0, f64::max);
     let pnorm = if pmax > 0.0 { 1.0 / pmax } else { 1.0 };
     let pred: Vec<f64> = pred_raw.iter().map(|v| v * pnorm).collect();
-    let marks = sticks
-        .iter()
-        .map(|s| StickMark {
-            x: align(s.binding_ev),
-            height: s.intensity
-                * profile(Shape::Voigt, 0.0, width_of(&s.label), s.lorentzian_fwhm_ev)
-                * pnorm,
-            label: s.label.clone(),
-            color: PALETTE[0].into(),
-        })
-        .collect();
+    // Coincident lines (within 0.05 eV) are one stick with their heights added, so two
+    // equivalent atoms make a stick twice as high.
+    let mut marks: Vec<StickMark> = Vec::new();
+    for s in sticks {
+        let x = align(s.binding_ev);
+        let h = s.intensity
+            * profile(Shape::Voigt, 0.0, width_of(&s.label), s.lorentzian_fwhm_ev)
+            * pnorm;
+        if let Some(m) = marks.iter_mut().find(|m| (m.x - x).abs() <= 0.05) {
+            m.height += h;
+            m.label = format!("{} + {}", m.label, s.label);
+        } else {
+            marks.push(StickMark {
+                x,
+                height: h,
+                label: s.label.clone(),
+                color: PALETTE[0].into(),
+            });
+        }
+    }
     Plot {
         title: "Measured and predicted (aligned)".into(),
         subtitle: format!(
