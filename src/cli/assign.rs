@@ -10,8 +10,8 @@ use bandcast::report::json::AssignJson;
 use bandcast::report::runs::AssignRun;
 use bandcast::report::text::assignment_table;
 use bandcast::report::write_atomic;
-use bandcast::spectrum::assignment::{assign_bands, AssignmentOptions};
-use bandcast::spectrum::measured::read_measured;
+use bandcast::spectrum::assignment::{assign_bands, check_trace, AssignmentOptions};
+use bandcast::spectrum::measured::{read_measured_with_header, Measured};
 use bandcast::spectrum::note::Note;
 use bandcast::spectrum::photon::{Axis, Photon};
 use bandcast::{Error, Result};
@@ -29,9 +29,9 @@ pub struct Args {
     /// Measured spectrum: two columns (energy in eV, intensity), text or CSV.
     #[arg(long, value_name = "DATA")]
     pub measured: PathBuf,
-    /// Energy scale of the measured file.
-    #[arg(long, value_name = "binding|kinetic", default_value = "binding", value_parser = parse_axis)]
-    pub measured_axis: Axis,
+    /// Energy scale of the measured file (default: what its header names, else binding).
+    #[arg(long, value_name = "binding|kinetic", value_parser = parse_axis)]
+    pub measured_axis: Option<Axis>,
     /// Photon source of the measurement (needed for a kinetic-energy file; bands it cannot
     /// reach are left out).
     #[arg(long, value_name = "he1|he2|mgka|alka|ENERGY_EV", value_parser = parse_photon)]
@@ -90,17 +90,48 @@ pub fn run(args: Args) -> Result<()> {
     let max_shift = positive("--max-shift", args.max_shift)?;
     args.predict.check()?;
     // The measured file first: a malformed file is reported before any computation.
-    let mut measured = read_measured(&args.measured)?;
-    if args.measured_axis == Axis::Kinetic {
+    let (raw, header) = read_measured_with_header(&args.measured)?;
+    let mut pre_notes = Vec::new();
+    let axis = match (args.measured_axis, header) {
+        (Some(a), Some(h)) if a != h => {
+            pre_notes.push(Note::HeaderAxisOverridden {
+                header: axis_name(h).into(),
+            });
+            a
+        }
+        (Some(a), _) => a,
+        (None, Some(Axis::Kinetic)) => {
+            if args.photon.is_none() {
+                return Err(Error::input_at(
+                    &args.measured,
+                    None,
+                    "the header names kinetic energy; give the photon source (--photon) to \
+                     convert it to binding energy, or --measured-axis binding to read it as \
+                     binding energy",
+                ));
+            }
+            Axis::Kinetic
+        }
+        (None, _) => Axis::Binding,
+    };
+    let measured = if axis == Axis::Kinetic {
         let Some(p) = args.photon else {
             return Err(Error::input(
                 "--measured-axis kinetic needs --photon to convert to binding energy",
             ));
         };
-        measured = measured.kinetic_to_binding(p.energy_ev());
-    }
-    let mol = args.molecule.load()?;
-    let prediction = args.predict.predict(&mol)?;
+        pre_notes.push(Note::KineticConverted {
+            photon_ev: p.energy_ev(),
+            reason: if args.measured_axis.is_some() {
+                "as asked".into()
+            } else {
+                "its header names kinetic energy".into()
+            },
+        });
+        raw.kinetic_to_binding(p.energy_ev())
+    } else {
+        raw
+    };
     let opts = AssignmentOptions {
         region: args.predict.region,
         photon: args.photon,
@@ -110,7 +141,16 @@ pub fn run(args: Args) -> Result<()> {
         max_shift_ev: max_shift,
         fit_scale: args.fit_scale,
     };
+    check_trace(&measured, &opts).map_err(|e| with_file(e, &args.measured))?;
+    let mol = args.molecule.load()?;
+    let prediction = args.predict.predict(&mol)?;
+    if args.measured_axis.is_none() && header.is_none() {
+        if let Some(p) = args.photon {
+            looks_kinetic(&measured, &prediction.bands, p, &args.measured)?;
+        }
+    }
     let mut assignment = assign_bands(&prediction.bands, &measured, &opts)?;
+    assignment.comparison.notes.splice(0..0, pre_notes);
     assignment
         .comparison
         .notes
@@ -143,4 +183,60 @@ fn first_comment(path: &Path) -> Option<String> {
         .find(|l| l.starts_with('#'))
         .map(|l| l.trim_start_matches('#').trim().to_string())
         .filter(|l| !l.is_empty())
+}
+
+fn axis_name(a: Axis) -> &'static str {
+    match a {
+        Axis::Binding => "binding",
+        Axis::Kinetic => "kinetic",
+    }
+}
+
+/// An input error of the trace without a file gets the measured file's name.
+fn with_file(e: Error, path: &Path) -> Error {
+    match e {
+        Error::Input {
+            file: None,
+            line,
+            message,
+        } => Error::input_at(path, line, message),
+        e => e,
+    }
+}
+
+/// A trace read as binding energy whose window (± 1 eV) holds fewer than half as many
+/// predicted bands as it holds read as kinetic energy for the photon (and at least two that
+/// way): refused, naming both readings, rather than aligned by a large shift.
+fn looks_kinetic(
+    m: &Measured,
+    bands: &[bandcast::ionization::Band],
+    photon: Photon,
+    path: &Path,
+) -> Result<()> {
+    let hv = photon.energy_ev();
+    let lo = m.energy_ev[0];
+    let hi = m.energy_ev[m.energy_ev.len() - 1];
+    let slack = 1.0;
+    let reachable: Vec<f64> = bands.iter().map(|b| b.ie_ev).filter(|&e| e < hv).collect();
+    let as_binding = reachable
+        .iter()
+        .filter(|&&e| e >= lo - slack && e <= hi + slack)
+        .count();
+    let as_kinetic = reachable
+        .iter()
+        .filter(|&&e| e >= hv - hi - slack && e <= hv - lo + slack)
+        .count();
+    if as_kinetic >= 2 && as_kinetic > 2 * as_binding {
+        return Err(Error::input_at(
+            path,
+            None,
+            format!(
+                "the trace spans {lo:.2}–{hi:.2} eV: as binding energy it holds {as_binding} of \
+                 the predicted bands, as kinetic energy for hν = {hv:.3} eV it holds {as_kinetic}; \
+                 the file is probably kinetic energy (--measured-axis kinetic converts it; \
+                 --measured-axis binding reads it as binding energy anyway)"
+            ),
+        ));
+    }
+    Ok(())
 }

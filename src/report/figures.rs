@@ -98,17 +98,28 @@ pub fn overlay_plot(run: &AssignRun) -> Plot {
         .map(|(a, b)| (a - b) * norm)
         .collect();
     let align = |e: f64| cmp.scale * e + cmp.shift_ev;
+    // Each assigned band is drawn with the width of its measured peak (the prediction has
+    // no vibrational envelope); others with the instrument width.
+    let width_of = |label: &str| -> f64 {
+        cmp.assignments
+            .iter()
+            .find(|a| a.label.split(" + ").any(|l| l == label))
+            .and_then(|a| cmp.peaks.iter().find(|p| p.energy_ev == a.measured_ev))
+            .map_or(fwhm, |p| p.fwhm_ev.max(fwhm))
+    };
+    let widths: Vec<f64> = sticks.iter().map(|s| width_of(&s.label)).collect();
     let pred_raw: Vec<f64> = x
         .iter()
         .map(|&e| {
             sticks
                 .iter()
-                .map(|s| {
+                .zip(&widths)
+                .map(|(s, &w)| {
                     s.intensity
                         * profile(
                             Shape::Voigt,
                             e - align(s.binding_ev),
-                            fwhm,
+                            w,
                             s.lorentzian_fwhm_ev,
                         )
                 })
@@ -118,26 +129,55 @@ pub fn overlay_plot(run: &AssignRun) -> Plot {
     let pmax = pred_raw.iter().cloned().fold(0.0, f64::max);
     let pnorm = if pmax > 0.0 { 1.0 / pmax } else { 1.0 };
     let pred: Vec<f64> = pred_raw.iter().map(|v| v * pnorm).collect();
-    let marks = sticks
-        .iter()
-        .map(|s| StickMark {
-            x: align(s.binding_ev),
-            height: s.intensity * profile(Shape::Voigt, 0.0, fwhm, s.lorentzian_fwhm_ev) * pnorm,
-            label: s.label.clone(),
-            color: PALETTE[0].into(),
-        })
-        .collect();
+    // Coincident lines (within 0.05 eV) are one stick with their heights added, so two
+    // equivalent atoms make a stick twice as high.
+    let mut marks: Vec<StickMark> = Vec::new();
+    for s in sticks {
+        let x = align(s.binding_ev);
+        let h = s.intensity
+            * profile(Shape::Voigt, 0.0, width_of(&s.label), s.lorentzian_fwhm_ev)
+            * pnorm;
+        if let Some(m) = marks.iter_mut().find(|m| (m.x - x).abs() <= 0.05) {
+            m.height += h;
+            m.label = format!("{} + {}", m.label, s.label);
+        } else {
+            marks.push(StickMark {
+                x,
+                height: h,
+                label: s.label.clone(),
+                color: PALETTE[0].into(),
+            });
+        }
+    }
     Plot {
         title: "Measured and predicted (aligned)".into(),
         subtitle: format!(
-            "prediction {} / {}, shifted by {:+.2} eV, scale {:.4}; measured: smoothed, background removed",
-            run.method, run.basis, cmp.shift_ev, cmp.scale
+            "prediction {} / {}, shifted by {:+.2} eV, scale {:.4}, bands drawn at their measured peak's width; measured: raw, fitted background, and smoothed minus background · verdict: {}",
+            run.method, run.basis, cmp.shift_ev, cmp.scale, cmp.verdict.name()
         ),
         x_label: "Binding energy (eV)".into(),
         y_label: "Intensity (normalised)".into(),
         series: vec![
             Series {
-                name: "measured".into(),
+                name: "raw trace".into(),
+                x: x.clone(),
+                y: cmp.raw.iter().map(|v| v * norm).collect(),
+                color: "#aaaaaa".into(),
+                stroke_width: 0.8,
+                fill: false,
+                dashed: false,
+            },
+            Series {
+                name: "fitted background".into(),
+                x: x.clone(),
+                y: cmp.background_curve.iter().map(|v| v * norm).collect(),
+                color: "#888888".into(),
+                stroke_width: 1.0,
+                fill: false,
+                dashed: true,
+            },
+            Series {
+                name: "measured (processed)".into(),
                 x: x.clone(),
                 y: meas,
                 color: "#333333".into(),

@@ -20,7 +20,7 @@ pub struct ReportContext {
 }
 
 const CSS: &str = "body{font-family:Helvetica,Arial,sans-serif;max-width:1000px;margin:24px auto;\
-color:#222;padding:0 16px}h1{font-size:22px;margin-bottom:4px}.meta{color:#555;font-size:14px}\
+color:#222;padding:0 16px}h1{font-size:22px;margin-bottom:4px}.verdict{padding:6px 10px;border-left:4px solid #888}.verdict.good{border-color:#2a2}.verdict.doubtful{border-color:#d90}.verdict.nomatch{border-color:#c22}.meta{color:#555;font-size:14px}\
 table{border-collapse:collapse;margin:12px 0;font-size:14px}th,td{border-bottom:1px solid #dde;\
 padding:5px 12px;text-align:right}th{background:#f2f4f7}td.l,th.l{text-align:left}\
 tr.low td{background:#fff4e0}.note{border-left:4px solid #d9731a;background:#fdf7ef;padding:8px 12px;\
@@ -62,6 +62,17 @@ pub fn assignment_report(ctx: &ReportContext, cmp: &Comparison, svg: &str) -> St
     let _ = writeln!(o, "<h1>Band assignment: {}</h1>", escape(&ctx.molecule));
     let _ = writeln!(
         o,
+        "<p class=\"verdict {}\"><b>Verdict: {}</b> &mdash; {}</p>",
+        match cmp.verdict {
+            crate::spectrum::verdict::Verdict::Good => "good",
+            crate::spectrum::verdict::Verdict::Doubtful => "doubtful",
+            crate::spectrum::verdict::Verdict::DoesNotMatch => "nomatch",
+        },
+        cmp.verdict.name(),
+        escape(&cmp.verdict_reason)
+    );
+    let _ = writeln!(
+        o,
         "<p class=\"meta\">Prediction: {} / {} &middot; {} region &middot; photon: {} &middot; measured: {}</p>",
         escape(&ctx.method),
         escape(&ctx.basis),
@@ -79,6 +90,18 @@ pub fn assignment_report(ctx: &ReportContext, cmp: &Comparison, svg: &str) -> St
         cmp.shift_ev.abs(),
         escape(&cmp.background),
         cmp.smoothing_window
+    );
+    let _ = writeln!(
+        o,
+        "<p class=\"meta\">Shift uncertainty: {} &middot; {} degree(s) of freedom left{} &middot; noise &sigma; {:.3e}, peaks need a prominence of {:.3e}</p>",
+        cmp.shift_sd_ev
+            .map_or("unknown".to_string(), |s| format!("&plusmn;{s:.3} eV")),
+        cmp.degrees_of_freedom.max(0),
+        cmp.shift_bounds_ev.map_or(String::new(), |(lo, hi)| format!(
+            " &middot; plausible shift for the method {lo:+.2} &hellip; {hi:+.2} eV"
+        )),
+        cmp.noise,
+        cmp.peak_threshold
     );
     o.push_str("<table><tr><th>measured (eV)</th><th class=\"l\">assigned band(s)</th><th>predicted (eV)</th><th>aligned (eV)</th><th>residual (eV)</th><th>confidence</th><th class=\"l\"></th></tr>\n");
     for a in &cmp.assignments {
@@ -128,8 +151,11 @@ pub fn assignment_report(ctx: &ReportContext, cmp: &Comparison, svg: &str) -> St
         o.push_str("</ul>\n");
     }
     o.push_str(
-        "<p class=\"small\">Confidence is the cost margin of each pair over the best assignment \
-         that forbids it, Δ/(Δ + 0.25 eV); below 0.5 it is flagged.</p>\n\
+        "<p class=\"small\">Confidence is a probability calibrated on synthetic He I traces \
+         (docs/spectrum-and-assign.md): from the cost margin of each pair over the best \
+         assignment that forbids it, the method's error and the intensity agreement. Below \
+         0.5, or when the pair changes as the prediction moves within its method's error, \
+         it is flagged low.</p>\n\
          <p class=\"note\">These are predictions from an approximate electronic-structure method. \
          They guide a measurement and its interpretation; they do not replace it. Check \
          assignments flagged low against other evidence (intensities at a second photon \

@@ -107,6 +107,28 @@ pub fn assignment_table(run: &AssignRun, hint: NoteHint) -> String {
         cmp.background,
         cmp.smoothing_window
     );
+    let _ = writeln!(
+        o,
+        "shift uncertainty: {};  {} degree(s) of freedom left;  noise σ {:.3e}, peaks need prominence ≥ {:.3e}",
+        cmp.shift_sd_ev
+            .map_or("unknown (no degree of freedom left)".to_string(), |s| format!("± {s:.3} eV")),
+        cmp.degrees_of_freedom.max(0),
+        cmp.noise,
+        cmp.peak_threshold
+    );
+    if let Some((lo, hi)) = cmp.shift_bounds_ev {
+        let _ = writeln!(
+            o,
+            "plausible shift for {}: {lo:+.2} … {hi:+.2} eV",
+            run.method
+        );
+    }
+    let _ = writeln!(
+        o,
+        "verdict: {} — {}",
+        cmp.verdict.name(),
+        cmp.verdict_reason
+    );
     o.push('\n');
     let w = cmp
         .assignments

@@ -10,6 +10,12 @@
 //! |shift| (then |scale − 1|). The best grid point is refined by least squares over its
 //! pairs (mean residual for the shift; linear regression when the scale is fitted, which
 //! needs three pairs or more), re-matching until the pairs stop changing.
+//!
+//! The uncertainty of the fitted shift is the standard error of the least-squares
+//! estimate, s/√n with s² = Σ residual²/(n − p) (p = 1 for a shift, 2 with a scale; for the
+//! scale fit the shift's error is taken at the pairs' mean energy); with no degree of freedom
+//! left (n = p) it is unknown. Fewer than two degrees of freedom is reported (a note): the
+//! fit then says little about how well the prediction matches.
 
 use serde::Serialize;
 
@@ -29,6 +35,10 @@ pub struct AlignResult {
     /// Cost of the matching at the final alignment.
     pub cost: f64,
     pub n_pairs: usize,
+    /// Degrees of freedom left: pairs − fitted parameters.
+    pub dof: i64,
+    /// Standard error of the shift (eV), None with no degree of freedom left.
+    pub shift_sd_ev: Option<f64>,
     /// Why the scale was not fitted although asked, if so.
     pub note: Option<Note>,
 }
@@ -36,17 +46,19 @@ pub struct AlignResult {
 fn matching_at(
     lines: &[PredictedLine],
     peaks: &[f64],
+    extra: Option<&[Vec<f64>]>,
     a: Alignment,
     opt: &MatchOptions,
 ) -> Matching {
     let aligned: Vec<f64> = lines.iter().map(|l| a.apply(l.energy_ev)).collect();
-    match_lines(&aligned, peaks, opt, None)
+    match_lines(&aligned, peaks, extra, opt, None)
 }
 
-/// Search the alignment.
+/// Search the alignment; `extra` is the intensity part of the pair costs (assign.rs).
 pub fn align(
     lines: &[PredictedLine],
     peaks: &[f64],
+    extra: Option<&[Vec<f64>]>,
     mopt: &MatchOptions,
     aopt: &AlignOptions,
 ) -> AlignResult {
@@ -70,7 +82,7 @@ pub fn align(
                 shift_ev: s + pivot * (1.0 - scale),
                 scale,
             };
-            let m = matching_at(lines, peaks, a, mopt);
+            let m = matching_at(lines, peaks, extra, a, mopt);
             let key = m.total_cost + 1e-6 * (s.abs() + 10.0 * (scale - 1.0).abs());
             if best.as_ref().is_none_or(|b| key < b.0) {
                 best = Some((key, m.total_cost, a));
@@ -79,7 +91,7 @@ pub fn align(
     }
     let (_, _, mut a) = best.expect("at least one grid point");
     let mut note = None;
-    let mut m = matching_at(lines, peaks, a, mopt);
+    let mut m = matching_at(lines, peaks, extra, a, mopt);
     for _ in 0..20 {
         if m.pairs.is_empty() {
             break;
@@ -112,7 +124,7 @@ pub fn align(
                 scale,
             }
         };
-        let m2 = matching_at(lines, peaks, new, mopt);
+        let m2 = matching_at(lines, peaks, extra, new, mopt);
         let same = m2.pairs == m.pairs;
         // keep the refinement only if it does not make the matching worse
         if m2.total_cost <= m.total_cost + 1e-9 || same {
@@ -134,14 +146,31 @@ pub fn align(
             fit_scale: false,
             ..*aopt
         };
-        let mut r = align(lines, peaks, mopt, &fallback);
+        let mut r = align(lines, peaks, extra, mopt, &fallback);
         r.note = note;
         return r;
     }
+    let n = m.pairs.len();
+    let p = if aopt.fit_scale && a.scale != 1.0 {
+        2
+    } else {
+        1
+    };
+    let dof = n as i64 - p as i64;
+    let shift_sd_ev = (dof > 0).then(|| {
+        let ss: f64 = m
+            .pairs
+            .iter()
+            .map(|&(i, j)| (peaks[j] - a.apply(lines[i].energy_ev)).powi(2))
+            .sum();
+        (ss / dof as f64).sqrt() / (n as f64).sqrt()
+    });
     AlignResult {
         alignment: a,
         cost: m.total_cost,
-        n_pairs: m.pairs.len(),
+        n_pairs: n,
+        dof,
+        shift_sd_ev,
         note,
     }
 }
@@ -162,14 +191,19 @@ mod tests {
             })
             .collect();
         let peaks = [12.6, 15.1, 18.8];
-        let mopt = MatchOptions { cap_ev: 1.5 };
+        let mopt = MatchOptions {
+            cap_ev: 1.5,
+            intensity_ev: 0.1,
+        };
         let aopt = AlignOptions {
             max_shift_ev: 5.0,
             step_ev: 0.02,
             fit_scale: false,
         };
-        let r = align(&lines, &peaks, &mopt, &aopt);
+        let r = align(&lines, &peaks, None, &mopt, &aopt);
         assert!((r.alignment.shift_ev - 1.6).abs() < 1e-9, "{r:?}");
         assert_eq!(r.n_pairs, 3);
+        assert_eq!(r.dof, 2);
+        assert!(r.shift_sd_ev.unwrap() < 1e-9);
     }
 }

@@ -1,24 +1,34 @@
 //! One-to-one assignment of predicted bands to measured peaks, with unmatched bands and
 //! peaks allowed, and a confidence for every pair.
 //!
-//! Cost of pairing band i (aligned energy a_i) with peak j (energy m_j): |m_j − a_i| (eV).
+//! Cost of pairing band i (aligned energy a_i) with peak j (energy m_j):
+//! |m_j − a_i| + λ · min(|ln r_ij|, 3) (eV), where r_ij compares relative intensities:
+//! (area of peak j / median peak area) over (intensity of band i / median band intensity),
+//! and λ = `intensity_ev` (0.1 eV per factor e by default). Band intensities are
+//! occupation × degeneracy × pole strength or one-hole weight (predicted.rs); He I
+//! intensities depart from that by factors of about two (cross sections differ by orbital
+//! character), so the term is weak: at most 0.3 eV, it decides between bands of similar
+//! position and lowers the margin of a pair whose intensity is far off.
 //! Leaving a band or a peak unmatched costs `cap/2` each, so a pair is only made when its
-//! residual is below `cap` (a pair saves cap − |d|). A band outside the measured window
+//! residual is below `cap`. A band outside the measured window
 //! costs the same to leave out as one inside, so no alignment gains by pushing bands out
 //! of the window; the constant cost of bands that lie outside for every shift changes
 //! nothing. This is solved exactly as a
 //! square assignment problem of size n + m with dummy rows and columns (common practice)
 //! by the Hungarian method (hungarian.rs).
 //!
-//! Confidence of a pair (i, j): Δ = C(i,j forbidden) − C(optimal) ≥ 0, the extra cost of
-//! the best assignment that does not pair i with j, mapped to [0, 1) by Δ / (Δ + τ) with
-//! τ = `confidence_scale` (default 0.25 eV, about the width of a valence band envelope).
-//! Δ = 0 (another choice is just as good) gives 0; a margin of τ gives 0.5; a margin of
-//! 1 eV gives 0.8. Pairs below 0.5 are flagged low-confidence. The global shift/scale is
-//! held fixed while the margin is computed.
+//! Evidence for a pair (i, j), turned into a confidence by `confidence.rs`: the margin
+//! Δ = C(i,j forbidden) − C(optimal) ≥ 0, the extra cost of the best assignment that does
+//! not pair i with j (global shift/scale held fixed); the residual against the method's
+//! single-band scatter; the intensity ratio; and whether the pair survives the prediction
+//! moving within its method's error: every two bands closer than twice the method's
+//! standard deviation σ are moved σ towards each other and past (i up by σ, k down by σ)
+//! and the matching is redone; a pair that changes is flagged low-confidence whatever its
+//! number.
 
 use serde::Serialize;
 
+use super::confidence::{calibrated, PairEvidence};
 use super::hungarian;
 
 /// A predicted band (or a group of bands closer than the merge tolerance).
@@ -48,6 +58,56 @@ impl Alignment {
 pub struct MatchOptions {
     /// Largest residual (eV) a pair may have.
     pub cap_ev: f64,
+    /// λ: cost (eV) per factor e between measured and predicted relative intensity.
+    pub intensity_ev: f64,
+}
+
+/// Largest |ln r| counted in the cost.
+pub const MAX_LOG_RATIO: f64 = 3.0;
+
+fn median(v: &[f64]) -> f64 {
+    let mut s: Vec<f64> = v.iter().cloned().filter(|x| *x > 0.0).collect();
+    if s.is_empty() {
+        return 0.0;
+    }
+    s.sort_by(|a, b| a.total_cmp(b));
+    let n = s.len();
+    if n % 2 == 1 {
+        s[n / 2]
+    } else {
+        0.5 * (s[n / 2 - 1] + s[n / 2])
+    }
+}
+
+/// ln r_ij = ln(peak area j / median area) − ln(band intensity i / median intensity);
+/// None when either intensity is unknown (zero).
+pub fn log_intensity_ratios(lines: &[PredictedLine], areas: &[f64]) -> Vec<Vec<Option<f64>>> {
+    let mi = median(&lines.iter().map(|l| l.intensity).collect::<Vec<_>>());
+    let ma = median(areas);
+    lines
+        .iter()
+        .map(|l| {
+            areas
+                .iter()
+                .map(|&a| {
+                    (l.intensity > 0.0 && a > 0.0 && mi > 0.0 && ma > 0.0)
+                        .then(|| (a / ma).ln() - (l.intensity / mi).ln())
+                })
+                .collect()
+        })
+        .collect()
+}
+
+/// The intensity part of the pair costs, λ · min(|ln r|, 3) (0 where unknown).
+pub fn intensity_costs(ratios: &[Vec<Option<f64>>], lambda_ev: f64) -> Vec<Vec<f64>> {
+    ratios
+        .iter()
+        .map(|row| {
+            row.iter()
+                .map(|r| r.map_or(0.0, |r| lambda_ev * r.abs().min(MAX_LOG_RATIO)))
+                .collect()
+        })
+        .collect()
 }
 
 /// The result of one matching.
@@ -63,6 +123,7 @@ const FORBIDDEN: f64 = 1e9;
 fn cost_matrix(
     aligned: &[f64],
     peaks: &[f64],
+    extra: Option<&[Vec<f64>]>,
     opt: &MatchOptions,
     forbid: Option<(usize, usize)>,
 ) -> Vec<Vec<f64>> {
@@ -75,7 +136,7 @@ fn cost_matrix(
         for j in 0..m {
             let d = (peaks[j] - aligned[i]).abs();
             if d < opt.cap_ev && forbid != Some((i, j)) {
-                c[i][j] = d;
+                c[i][j] = d + extra.map_or(0.0, |x| x[i][j]);
             }
         }
         // band i unmatched: its own dummy column m + i
@@ -92,10 +153,12 @@ fn cost_matrix(
     c
 }
 
-/// Optimal matching of `aligned` band energies to `peaks` (both eV).
+/// Optimal matching of `aligned` band energies to `peaks` (both eV); `extra` adds a cost
+/// per pair (the intensity term).
 pub fn match_lines(
     aligned: &[f64],
     peaks: &[f64],
+    extra: Option<&[Vec<f64>]>,
     opt: &MatchOptions,
     forbid: Option<(usize, usize)>,
 ) -> Matching {
@@ -108,7 +171,7 @@ pub fn match_lines(
             total_cost: cost,
         };
     }
-    let c = cost_matrix(aligned, peaks, opt, forbid);
+    let c = cost_matrix(aligned, peaks, extra, opt, forbid);
     let (cols, total) = hungarian::assign(&c);
     let pairs = (0..n)
         .filter_map(|i| (cols[i] < m).then_some((i, cols[i])))
@@ -119,7 +182,7 @@ pub fn match_lines(
     }
 }
 
-/// Map a cost margin Δ (eV) to a confidence in [0, 1).
+/// Map a cost margin Δ (eV) to [0, 1): Δ / (Δ + τ), the margin feature of the confidence.
 pub fn confidence_from_margin(delta_ev: f64, scale_ev: f64) -> f64 {
     let d = delta_ev.max(0.0);
     d / (d + scale_ev)
@@ -139,10 +202,29 @@ pub struct AssignedPair {
     pub aligned_ev: f64,
     /// measured − aligned.
     pub residual_ev: f64,
+    /// Calibrated probability that the pair is right (confidence.rs).
     pub confidence: f64,
+    /// Below 0.5, or the pair changes when the prediction moves within its method's error.
     pub low_confidence: bool,
     /// The band the peak would go to in the best assignment without this pair, if any.
     pub alternative: Option<String>,
+    /// Extra cost (eV) of the best assignment without this pair.
+    pub margin_ev: f64,
+    /// ln(measured relative area / predicted relative intensity), when both are known.
+    pub intensity_log_ratio: Option<f64>,
+    /// The pair changes when two bands move within their method's error.
+    pub swaps_within_error: bool,
+}
+
+/// What the confidence of a pair is computed from besides the matching.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct PairContext<'a> {
+    /// Peak areas (same order as the peaks), for the intensity term.
+    pub areas: &'a [f64],
+    /// Single-band scatter σ of the method (eV), if known.
+    pub sigma_ev: Option<f64>,
+    /// τ of the margin feature (eV).
+    pub tau_ev: f64,
 }
 
 /// Pairs of the optimal matching with their confidence; sorted by measured energy.
@@ -151,33 +233,84 @@ pub fn assigned_pairs(
     peaks: &[f64],
     align: Alignment,
     opt: &MatchOptions,
-    confidence_scale: f64,
+    ctx: &PairContext,
 ) -> (Vec<AssignedPair>, Matching) {
     let aligned: Vec<f64> = lines.iter().map(|l| align.apply(l.energy_ev)).collect();
-    let best = match_lines(&aligned, peaks, opt, None);
+    let ratios = log_intensity_ratios(lines, ctx.areas);
+    let extra = intensity_costs(&ratios, opt.intensity_ev);
+    let best = match_lines(&aligned, peaks, Some(&extra), opt, None);
+    let swapped = swap_sensitive(&aligned, peaks, &extra, opt, &best, ctx.sigma_ev);
     let mut rows = Vec::new();
     for &(i, j) in &best.pairs {
-        let alt = match_lines(&aligned, peaks, opt, Some((i, j)));
-        let delta = alt.total_cost - best.total_cost;
+        let alt = match_lines(&aligned, peaks, Some(&extra), opt, Some((i, j)));
+        let delta = (alt.total_cost - best.total_cost).max(0.0);
         let alternative = alt
             .pairs
             .iter()
             .find(|&&(_, jj)| jj == j)
             .map(|&(ii, _)| lines[ii].label.clone());
-        let conf = confidence_from_margin(delta, confidence_scale);
+        let residual = peaks[j] - aligned[i];
+        let ev = PairEvidence {
+            margin_feature: confidence_from_margin(delta, ctx.tau_ev),
+            sigma_ev: ctx.sigma_ev,
+            intensity_log_ratio: ratios[i][j],
+            swaps: swapped.contains(&i),
+        };
+        let conf = calibrated(&ev);
         rows.push(AssignedPair {
             measured_ev: peaks[j],
             label: lines[i].label.clone(),
             predicted_ev: lines[i].energy_ev,
             aligned_ev: aligned[i],
-            residual_ev: peaks[j] - aligned[i],
+            residual_ev: residual,
             confidence: conf,
-            low_confidence: conf < LOW_CONFIDENCE,
+            low_confidence: conf < LOW_CONFIDENCE || ev.swaps,
             alternative,
+            margin_ev: delta,
+            intensity_log_ratio: ratios[i][j],
+            swaps_within_error: ev.swaps,
         });
     }
     rows.sort_by(|a, b| a.measured_ev.total_cmp(&b.measured_ev));
     (rows, best)
+}
+
+/// Bands whose pair changes when two bands closer than 2σ move σ towards and past each
+/// other (the lower one up, the upper one down).
+fn swap_sensitive(
+    aligned: &[f64],
+    peaks: &[f64],
+    extra: &[Vec<f64>],
+    opt: &MatchOptions,
+    best: &Matching,
+    sigma: Option<f64>,
+) -> Vec<usize> {
+    let Some(s) = sigma else {
+        return Vec::new();
+    };
+    let peak_of = |m: &Matching, i: usize| m.pairs.iter().find(|p| p.0 == i).map(|p| p.1);
+    let mut out = Vec::new();
+    for i in 0..aligned.len() {
+        for k in 0..aligned.len() {
+            let gap = aligned[k] - aligned[i];
+            if k == i || !(gap >= 0.0 && gap < 2.0 * s) {
+                continue;
+            }
+            if peak_of(best, i).is_none() && peak_of(best, k).is_none() {
+                continue;
+            }
+            let mut moved = aligned.to_vec();
+            moved[i] += s;
+            moved[k] -= s;
+            let m = match_lines(&moved, peaks, Some(extra), opt, None);
+            for b in [i, k] {
+                if peak_of(&m, b) != peak_of(best, b) && !out.contains(&b) {
+                    out.push(b);
+                }
+            }
+        }
+    }
+    out
 }
 
 /// Merge predicted lines closer than `tol_ev` into groups ("a + b"), energies averaged
@@ -219,20 +352,31 @@ mod tests {
 
     #[test]
     fn leaves_far_bands_unmatched() {
-        let opt = MatchOptions { cap_ev: 1.0 };
-        let m = match_lines(&[12.0, 15.0, 18.0], &[12.1, 17.9], &opt, None);
+        let opt = MatchOptions {
+            cap_ev: 1.0,
+            intensity_ev: 0.1,
+        };
+        let m = match_lines(&[12.0, 15.0, 18.0], &[12.1, 17.9], None, &opt, None);
         assert_eq!(m.pairs, vec![(0, 0), (2, 1)]);
     }
 
     #[test]
     fn close_pair_is_low_confidence() {
-        let opt = MatchOptions { cap_ev: 1.5 };
+        let opt = MatchOptions {
+            cap_ev: 1.5,
+            intensity_ev: 0.1,
+        };
         let lines = vec![line("a", 13.0), line("b", 13.1)];
         let id = Alignment {
             shift_ev: 0.0,
             scale: 1.0,
         };
-        let (rows, _) = assigned_pairs(&lines, &[13.05], id, &opt, 0.25);
+        let ctx = PairContext {
+            areas: &[1.0],
+            sigma_ev: Some(0.3),
+            tau_ev: 0.25,
+        };
+        let (rows, _) = assigned_pairs(&lines, &[13.05], id, &opt, &ctx);
         assert_eq!(rows.len(), 1);
         assert!(rows[0].low_confidence, "{rows:?}");
         assert!(rows[0].alternative.is_some());

@@ -3,8 +3,9 @@
 //! measured peaks. Plain data in and out; the printers live in `report`.
 
 use super::assign::PredictedLine;
-use super::compare::{compare, CompareOptions, Comparison};
+use super::compare::{check_measured, compare, CompareOptions, Comparison};
 use super::measured::Measured;
+use super::method_error::MethodError;
 use super::note::Note;
 use super::photon::Photon;
 use super::predicted::{sticks_from_bands, IntensityModel, Stick, StickOptions};
@@ -63,6 +64,34 @@ pub struct Assignment {
     pub fwhm: f64,
 }
 
+impl AssignmentOptions {
+    /// The comparison options these give (the region's defaults where unset).
+    pub fn compare_options(&self) -> CompareOptions {
+        let photon = self.photon_or_default();
+        let fwhm = self
+            .fwhm_ev
+            .unwrap_or_else(|| photon.default_fwhm_ev(self.region));
+        let mut copt = CompareOptions::defaults(self.region, fwhm);
+        if let Some(p) = self.min_prominence {
+            copt.min_prominence = p;
+        }
+        if let Some(c) = self.max_residual_ev {
+            copt.cap_ev = c;
+        }
+        if let Some(s) = self.max_shift_ev {
+            copt.max_shift_ev = s;
+        }
+        copt.fit_scale = self.fit_scale;
+        copt
+    }
+}
+
+/// What `assign_bands` would refuse in the trace alone (inverted, no peak above the noise),
+/// before the prediction is computed.
+pub fn check_trace(measured: &Measured, opts: &AssignmentOptions) -> Result<()> {
+    check_measured(measured, &opts.compare_options())
+}
+
 /// Assign `bands` to the peaks of `measured` (binding-energy axis, increasing).
 pub fn assign_bands(
     bands: &[Band],
@@ -90,17 +119,11 @@ pub fn assign_bands(
             intensity: s.intensity,
         })
         .collect();
-    let mut copt = CompareOptions::defaults(opts.region, fwhm);
-    if let Some(p) = opts.min_prominence {
-        copt.min_prominence = p;
-    }
-    if let Some(c) = opts.max_residual_ev {
-        copt.cap_ev = c;
-    }
-    if let Some(s) = opts.max_shift_ev {
-        copt.max_shift_ev = s;
-    }
-    copt.fit_scale = opts.fit_scale;
+    let mut copt = opts.compare_options();
+    // the error statistics of the method that made the bands (all bands share one)
+    copt.method_error = bands
+        .first()
+        .and_then(|b| MethodError::of(&b.method, opts.region));
     let mut comparison = compare(&lines, measured, &copt)?;
     if !excluded.is_empty() {
         comparison.notes.push(Note::BandsAbovePhoton {

@@ -1,17 +1,23 @@
-//! The comparison chain: measured trace → smoothing → background → peaks → alignment →
-//! assignment. Plain data in, plain data out; printers live in `report`.
+//! The comparison chain: measured trace → smoothing → background → sanity (noise, inverted,
+//! negative: trace_check.rs) → peaks above the noise → alignment (with the method's
+//! plausible shift, method_error.rs) → assignment with calibrated confidences → verdict.
+//! Plain data in, plain data out; printers live in `report`.
 
 use serde::Serialize;
 
 use super::align::{align, AlignOptions};
 use super::assign::{
-    assigned_pairs, merge_close, Alignment, AssignedPair, MatchOptions, PredictedLine,
+    assigned_pairs, intensity_costs, log_intensity_ratios, merge_close, Alignment, AssignedPair,
+    MatchOptions, PairContext, PredictedLine,
 };
 use super::background;
 use super::measured::Measured;
+use super::method_error::MethodError;
 use super::note::Note;
 use super::peaks::{find_peaks, Peak};
 use super::smooth::savitzky_golay;
+use super::trace_check::{check_trace, NOISE_K};
+use super::verdict::{verdict, Verdict, VerdictInput};
 use crate::error::{Error, Result};
 use crate::ionization::Region;
 
@@ -30,6 +36,10 @@ pub struct CompareOptions {
     pub merge_tol_ev: f64,
     /// τ of the confidence map (assign.rs).
     pub confidence_scale_ev: f64,
+    /// λ of the intensity term of the pair cost (eV per factor e; assign.rs).
+    pub intensity_ev: f64,
+    /// Error statistics of the prediction method, when known.
+    pub method_error: Option<MethodError>,
 }
 
 impl CompareOptions {
@@ -51,6 +61,8 @@ impl CompareOptions {
             fit_scale: false,
             merge_tol_ev: 0.05,
             confidence_scale_ev: 0.25,
+            intensity_ev: 0.1,
+            method_error: None,
         }
     }
 }
@@ -68,7 +80,19 @@ pub struct UnseenBand {
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Comparison {
     pub shift_ev: f64,
+    /// Standard error of the shift (eV); None with no degree of freedom left.
+    pub shift_sd_ev: Option<f64>,
+    /// Plausible range of the shift for the method (eV), when the method is known.
+    pub shift_bounds_ev: Option<(f64, f64)>,
+    /// Pairs minus fitted parameters.
+    pub degrees_of_freedom: i64,
     pub scale: f64,
+    pub verdict: Verdict,
+    pub verdict_reason: String,
+    /// Noise standard deviation of the raw trace (trace_check.rs).
+    pub noise: f64,
+    /// Smallest prominence a peak needed (intensity units).
+    pub peak_threshold: f64,
     pub assignments: Vec<AssignedPair>,
     /// Measured peaks with no band.
     pub unassigned_peaks: Vec<Peak>,
@@ -83,18 +107,26 @@ pub struct Comparison {
     #[serde(skip)]
     pub energy_ev: Vec<f64>,
     #[serde(skip)]
+    pub raw: Vec<f64>,
+    #[serde(skip)]
     pub smoothed: Vec<f64>,
     #[serde(skip)]
     pub background_curve: Vec<f64>,
 }
 
-/// Compare predicted `lines` (binding energies) with the `measured` trace (binding-energy
-/// axis, increasing).
-pub fn compare(
-    lines: &[PredictedLine],
-    measured: &Measured,
-    opt: &CompareOptions,
-) -> Result<Comparison> {
+/// The trace side of the chain, before any predicted band is needed.
+struct Front {
+    m: usize,
+    smoothed: Vec<f64>,
+    bg: Vec<f64>,
+    bg_name: &'static str,
+    noise: f64,
+    peaks: Vec<Peak>,
+    peak_threshold: f64,
+    notes: Vec<Note>,
+}
+
+fn front(measured: &Measured, opt: &CompareOptions) -> Result<Front> {
     let x = &measured.energy_ev;
     let step = measured.mean_step();
     let m = ((0.25 * opt.fwhm_ev / step).round() as usize).clamp(2, 50);
@@ -105,28 +137,85 @@ pub fn compare(
         Region::Core => (background::shirley(x, &smoothed), "shirley"),
     };
     let signal: Vec<f64> = smoothed.iter().zip(&bg).map(|(a, b)| a - b).collect();
-    let peaks = find_peaks(x, &signal, opt.min_prominence);
+    let check = check_trace(&measured.intensity, &signal).map_err(Error::input)?;
+    let ymax = measured
+        .intensity
+        .iter()
+        .fold(0.0f64, |m, v| m.max(v.abs()));
+    // k × noise, and a floor of 1e-6 of the trace's level below which a ripple is rounding.
+    let min_abs = (NOISE_K * check.noise).max(1e-6 * ymax);
+    let range = signal.iter().cloned().fold(f64::NEG_INFINITY, f64::max)
+        - signal.iter().cloned().fold(f64::INFINITY, f64::min);
+    let peak_threshold = min_abs.max(opt.min_prominence * range.max(0.0));
+    let peaks = find_peaks(x, &signal, opt.min_prominence, min_abs);
     let mut notes = Vec::new();
+    if let Some((count, lowest)) = check.negative {
+        notes.push(Note::NegativeIntensities { count, lowest });
+    }
     if peaks.is_empty() {
         return Err(Error::computation(format!(
-            "no peaks found in the measured spectrum at a minimum prominence of {} % of \
-                 its range; a lower minimum prominence may find some",
-            100.0 * opt.min_prominence
+            "no peak stands above the noise, so nothing is assigned: the noise is estimated \
+             at σ = {:.3e} (from the second differences of the trace) and a peak needs a \
+             prominence of at least {NOISE_K}σ and {} % of the trace's range ({:.3e})",
+            check.noise,
+            100.0 * opt.min_prominence,
+            peak_threshold
         )));
     }
+    Ok(Front {
+        m,
+        smoothed,
+        bg,
+        bg_name,
+        noise: check.noise,
+        peaks,
+        peak_threshold,
+        notes,
+    })
+}
+
+/// Check a trace on its own (noise, inverted, a peak above the noise): what `compare` would
+/// refuse, found before any prediction is computed.
+pub fn check_measured(measured: &Measured, opt: &CompareOptions) -> Result<()> {
+    front(measured, opt).map(|_| ())
+}
+
+/// Compare predicted `lines` (binding energies) with the `measured` trace (binding-energy
+/// axis, increasing).
+pub fn compare(
+    lines: &[PredictedLine],
+    measured: &Measured,
+    opt: &CompareOptions,
+) -> Result<Comparison> {
+    let x = &measured.energy_ev;
+    let Front {
+        m,
+        smoothed,
+        bg,
+        bg_name,
+        noise,
+        peaks,
+        peak_threshold,
+        mut notes,
+    } = front(measured, opt)?;
     let groups = merge_close(lines, opt.merge_tol_ev);
     if groups.is_empty() {
         return Err(Error::computation("no predicted bands to compare with"));
     }
     let peak_e: Vec<f64> = peaks.iter().map(|p| p.energy_ev).collect();
+    let areas: Vec<f64> = peaks.iter().map(|p| p.area).collect();
     let window = (x[0], x[x.len() - 1]);
-    let mopt = MatchOptions { cap_ev: opt.cap_ev };
+    let mopt = MatchOptions {
+        cap_ev: opt.cap_ev,
+        intensity_ev: opt.intensity_ev,
+    };
+    let extra = intensity_costs(&log_intensity_ratios(&groups, &areas), opt.intensity_ev);
     let aopt = AlignOptions {
         max_shift_ev: opt.max_shift_ev,
         step_ev: 0.02,
         fit_scale: opt.fit_scale,
     };
-    let ar = align(&groups, &peak_e, &mopt, &aopt);
+    let ar = align(&groups, &peak_e, Some(&extra), &mopt, &aopt);
     if let Some(n) = &ar.note {
         notes.push(n.clone());
     }
@@ -136,16 +225,48 @@ pub fn compare(
             limit_ev: opt.max_shift_ev,
         });
     }
-    let (pairs, best) = assigned_pairs(&groups, &peak_e, a, &mopt, opt.confidence_scale_ev);
+    let params = if a.scale != 1.0 { 2 } else { 1 };
+    if ar.dof < 2 {
+        notes.push(Note::FewDegreesOfFreedom {
+            pairs: ar.n_pairs,
+            parameters: params,
+        });
+    }
+    let shift_bounds = opt.method_error.map(|m| m.shift_bounds_ev());
+    // the shift at the pairs' mean energy (with a scale the intercept alone means little)
+    let mut shift_plausible = true;
+    if let (Some(me), Some((lo, hi))) = (opt.method_error, shift_bounds) {
+        let mean_pred = if groups.is_empty() {
+            0.0
+        } else {
+            groups.iter().map(|g| g.energy_ev).sum::<f64>() / groups.len() as f64
+        };
+        let eff = a.apply(mean_pred) - mean_pred;
+        if eff < lo || eff > hi {
+            shift_plausible = opt.region == Region::Core;
+            notes.push(Note::ShiftImplausible {
+                shift_ev: eff,
+                method: me.method.to_string(),
+                low_ev: lo,
+                high_ev: hi,
+            });
+        }
+    }
+    let ctx = PairContext {
+        areas: &areas,
+        sigma_ev: opt.method_error.map(|m| m.sd_ev),
+        tau_ev: opt.confidence_scale_ev,
+    };
+    let (pairs, best) = assigned_pairs(&groups, &peak_e, a, &mopt, &ctx);
     let matched_bands: Vec<usize> = best.pairs.iter().map(|p| p.0).collect();
     let matched_peaks: Vec<usize> = best.pairs.iter().map(|p| p.1).collect();
-    let unassigned_peaks = peaks
+    let unassigned_peaks: Vec<Peak> = peaks
         .iter()
         .enumerate()
         .filter(|(j, _)| !matched_peaks.contains(j))
         .map(|(_, p)| p.clone())
         .collect();
-    let unseen_bands = groups
+    let unseen_bands: Vec<UnseenBand> = groups
         .iter()
         .enumerate()
         .filter(|(i, _)| !matched_bands.contains(i))
@@ -159,9 +280,44 @@ pub fn compare(
             }
         })
         .collect();
+    let area_of = |e: f64| {
+        peaks
+            .iter()
+            .find(|p| p.energy_ev == e)
+            .map_or(0.0, |p| p.area)
+    };
+    let vin = VerdictInput {
+        pairs: pairs
+            .iter()
+            .map(|p| {
+                (
+                    p.confidence,
+                    p.low_confidence,
+                    area_of(p.measured_ev),
+                    p.intensity_log_ratio.map(f64::abs),
+                )
+            })
+            .collect(),
+        unassigned_areas: unassigned_peaks.iter().map(|p| p.area).collect(),
+        unseen_inside: unseen_bands
+            .iter()
+            .filter(|u| u.inside_window)
+            .map(|u| u.label.clone())
+            .collect(),
+        shift_plausible,
+        dof: ar.dof,
+    };
+    let (verdict, verdict_reason) = verdict(&vin);
     Ok(Comparison {
         shift_ev: a.shift_ev,
+        shift_sd_ev: ar.shift_sd_ev,
+        shift_bounds_ev: shift_bounds,
+        degrees_of_freedom: ar.dof,
         scale: a.scale,
+        verdict,
+        verdict_reason,
+        noise,
+        peak_threshold,
         assignments: pairs,
         unassigned_peaks,
         unseen_bands,
@@ -170,6 +326,7 @@ pub fn compare(
         smoothing_window: 2 * m + 1,
         notes,
         energy_ev: x.clone(),
+        raw: measured.intensity.clone(),
         smoothed,
         background_curve: bg,
     })

@@ -7,7 +7,9 @@
 //!
 //! Comparison: `measured` (reading a trace) → `smooth` (Savitzky–Golay) → `background`
 //! (linear, Shirley) → `peaks` (prominence) → `align` (global shift/scale) → `assign`
-//! (one-to-one matching by `hungarian`, confidences); `compare` runs the whole chain and
+//! (one-to-one matching by `hungarian`, evidence per pair) → `confidence` (calibrated
+//! probability) → `verdict`; `trace_check` (noise, inverted traces) and `method_error`
+//! (plausible shifts) feed it; `compare` runs the whole chain and
 //! `assignment` feeds it predicted bands. Notes of both are typed values (`note`).
 pub mod align;
 pub mod assign;
@@ -16,17 +18,21 @@ pub mod background;
 pub mod broaden;
 pub mod build;
 pub mod compare;
+pub mod confidence;
 pub mod cross_section;
 pub mod faddeeva;
 pub mod hungarian;
 pub mod lineshape;
 pub mod measured;
+pub mod method_error;
 pub mod mixture;
 pub mod note;
 pub mod peaks;
 pub mod photon;
 pub mod predicted;
 pub mod smooth;
+pub mod trace_check;
+pub mod verdict;
 
 pub use lineshape::Shape;
 pub use photon::{Axis, Photon};

@@ -22,6 +22,21 @@ pub enum Note {
     ScaleNotFitted { pairs: usize },
     /// The fitted shift sits at the edge of the searched range.
     ShiftAtSearchEdge { limit_ev: f64 },
+    /// Raw intensities well below zero (beyond the noise).
+    NegativeIntensities { count: usize, lowest: f64 },
+    /// The fitted shift lies outside what the method's error statistics make plausible.
+    ShiftImplausible {
+        shift_ev: f64,
+        method: String,
+        low_ev: f64,
+        high_ev: f64,
+    },
+    /// Fewer than two degrees of freedom left after the alignment fit.
+    FewDegreesOfFreedom { pairs: usize, parameters: usize },
+    /// A kinetic-energy trace was converted to binding energy with the photon energy.
+    KineticConverted { photon_ev: f64, reason: String },
+    /// The header names one axis, the command was told another.
+    HeaderAxisOverridden { header: String },
     /// A note or warning of the prediction itself.
     Prediction(Notice),
 }
@@ -48,6 +63,11 @@ impl Note {
             Note::BandsAbovePhoton { .. } => "bands_above_photon",
             Note::ScaleNotFitted { .. } => "scale_not_fitted",
             Note::ShiftAtSearchEdge { .. } => "shift_at_search_edge",
+            Note::NegativeIntensities { .. } => "negative_intensities",
+            Note::ShiftImplausible { .. } => "shift_implausible",
+            Note::FewDegreesOfFreedom { .. } => "few_degrees_of_freedom",
+            Note::KineticConverted { .. } => "kinetic_converted",
+            Note::HeaderAxisOverridden { .. } => "header_axis_overridden",
             Note::Prediction(n) => n.code(),
         }
     }
@@ -78,6 +98,37 @@ impl fmt::Display for Note {
             Note::ShiftAtSearchEdge { limit_ev } => write!(
                 f,
                 "the shift sits at the edge of the search range (±{limit_ev} eV): widen the range"
+            ),
+            Note::NegativeIntensities { count, lowest } => write!(
+                f,
+                "{count} point(s) of the trace lie well below zero (lowest {lowest:.3e}): an \
+                 offset or a background subtracted twice? Peak heights and areas are affected"
+            ),
+            Note::ShiftImplausible {
+                shift_ev,
+                method,
+                low_ev,
+                high_ev,
+            } => write!(
+                f,
+                "the fitted shift {shift_ev:+.2} eV lies outside {low_ev:+.2} … {high_ev:+.2} eV, \
+                 the range {method}'s measured errors make plausible: the bands may be matched \
+                 to the wrong peaks, the trace may belong to another molecule, or its energy \
+                 scale is off (charging, reference)"
+            ),
+            Note::FewDegreesOfFreedom { pairs, parameters } => write!(
+                f,
+                "the alignment fits {parameters} parameter(s) to {pairs} pair(s): fewer than two \
+                 degrees of freedom are left, so the residuals say little about the match"
+            ),
+            Note::KineticConverted { photon_ev, reason } => write!(
+                f,
+                "the trace was read as kinetic energy ({reason}) and converted to binding \
+                 energy = {photon_ev:.3} eV − kinetic energy"
+            ),
+            Note::HeaderAxisOverridden { header } => write!(
+                f,
+                "the file's header names {header} energy, but the trace was read as asked"
             ),
             Note::Prediction(n) => n.fmt(f),
         }

@@ -16,6 +16,10 @@ pub struct Peak {
     /// Height of the (smoothed, background-free) trace at the maximum.
     pub height: f64,
     pub prominence: f64,
+    /// Full width at half height (eV).
+    pub fwhm_ev: f64,
+    /// Area estimate, 1.0645 × height × FWHM.
+    pub area: f64,
     /// Grid index of the maximum.
     #[serde(skip)]
     pub index: usize,
@@ -47,7 +51,7 @@ fn prominence(y: &[f64], i: usize) -> f64 {
 
 /// Peaks of `y` on the increasing grid `x`, strongest prominence first in ties of order;
 /// returned sorted by energy.
-pub fn find_peaks(x: &[f64], y: &[f64], min_prominence: f64) -> Vec<Peak> {
+pub fn find_peaks(x: &[f64], y: &[f64], min_prominence: f64, min_abs: f64) -> Vec<Peak> {
     let n = y.len();
     if n < 3 {
         return Vec::new();
@@ -70,11 +74,14 @@ pub fn find_peaks(x: &[f64], y: &[f64], min_prominence: f64) -> Vec<Peak> {
             if j + 1 < n && y[j + 1] < y[i] {
                 let k = (i + j) / 2;
                 let p = prominence(y, k);
-                if p >= min_prominence * range {
+                if p >= min_prominence * range && p >= min_abs {
+                    let w = half_width(x, y, k);
                     out.push(Peak {
                         energy_ev: refine(x, y, k),
                         height: y[k],
                         prominence: p,
+                        fwhm_ev: w,
+                        area: 1.0645 * y[k].max(0.0) * w,
                         index: k,
                     });
                 }
@@ -85,6 +92,41 @@ pub fn find_peaks(x: &[f64], y: &[f64], min_prominence: f64) -> Vec<Peak> {
         }
     }
     out
+}
+
+/// Full width at half height of the maximum at `k` (see the module text).
+fn half_width(x: &[f64], y: &[f64], k: usize) -> f64 {
+    let half = 0.5 * y[k];
+    let side = |dir: i64| -> Option<f64> {
+        let mut j = k as i64;
+        let mut low = y[k];
+        loop {
+            let nj = j + dir;
+            if nj < 0 || nj as usize >= y.len() {
+                return None;
+            }
+            let (a, b) = (j as usize, nj as usize);
+            if y[b] <= half {
+                // interpolate between a (above) and b (below)
+                let t = (y[a] - half) / (y[a] - y[b]).max(1e-300);
+                return Some((x[a] + t * (x[b] - x[a]) - x[k]).abs());
+            }
+            low = low.min(y[b]);
+            if y[b] > low + 0.1 * y[k] {
+                return None; // a valley before half height (rises of 10 % are noise)
+            }
+            j = nj;
+        }
+    };
+    match (side(-1), side(1)) {
+        (Some(l), Some(r)) => l + r,
+        (Some(l), None) => 2.0 * l,
+        (None, Some(r)) => 2.0 * r,
+        (None, None) => {
+            let step = (x[x.len() - 1] - x[0]) / (x.len() - 1) as f64;
+            2.0 * step
+        }
+    }
 }
 
 /// Vertex of the parabola through (x[k−1..=k+1], y[k−1..=k+1]).
@@ -122,8 +164,10 @@ mod tests {
                     + 0.002 * (e * 40.0).sin()
             })
             .collect();
-        let p = find_peaks(&x, &y, 0.05);
+        let p = find_peaks(&x, &y, 0.05, 0.0);
         assert_eq!(p.len(), 2, "{p:?}");
+        // exp(−(e/0.2)²) has FWHM 2·0.2·√ln2 = 0.333 eV
+        assert!((p[0].fwhm_ev - 0.333).abs() < 0.01, "{p:?}");
         assert!((p[0].energy_ev - 12.62).abs() < 0.01);
         assert!((p[1].energy_ev - 14.74).abs() < 0.01);
     }
