@@ -168,3 +168,52 @@ fn vibrations_memory_refused_before_work() {
     assert!(err.contains("too small"), "{err}");
     let _ = std::fs::remove_dir_all(&dir);
 }
+
+/// Symmetry shared with `core` and `ionize` (issue: one detection, one tolerance): a water
+/// 0.01 Å off C2v is symmetrised before the Hessian, reported with its largest displacement,
+/// and its modes carry C2v irreps — two a1 and one b (exact condition for a C2v triatomic).
+#[test]
+fn near_symmetric_input_is_symmetrised_before_the_hessian() {
+    let dir = std::env::temp_dir().join(format!("bandcast-vib-sym-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let f = dir.join("water.xyz");
+    std::fs::write(
+        &f,
+        "3\nwater\nO 0 0 0.1173\nH 0 0.7572 -0.4692\nH 0.004 -0.7662 -0.4692\n",
+    )
+    .unwrap();
+    let out = std::process::Command::new(env!("CARGO_BIN_EXE_bandcast"))
+        .args([
+            "vibrations",
+            f.to_str().unwrap(),
+            "--basis",
+            "sto-3g",
+            "--json",
+        ])
+        .output()
+        .unwrap();
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(0), "{err}");
+    assert!(err.contains("symmetrised to C2v"), "{err}");
+    let j: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    assert_eq!(j["point_group"], "C2v");
+    let d = j["symmetrised_displacement_angstrom"].as_f64().unwrap();
+    assert!(d > 0.001 && d < 0.02, "{d}");
+    let irreps: Vec<String> = j["modes"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|m| m["irrep"].as_str().unwrap().to_lowercase())
+        .collect();
+    assert_eq!(
+        irreps.iter().filter(|i| i.starts_with("a1")).count(),
+        2,
+        "{irreps:?}"
+    );
+    assert_eq!(
+        irreps.iter().filter(|i| i.starts_with('b')).count(),
+        1,
+        "{irreps:?}"
+    );
+    let _ = std::fs::remove_dir_all(&dir);
+}

@@ -3,9 +3,11 @@
 
 use std::io::IsTerminal;
 
+use bandcast::analysis::symmetry::symmetrize::{symmetrize, MOVED_BOHR};
 use bandcast::analysis::symmetry::{detect_point_group, DEFAULT_TOLERANCE};
 use bandcast::gradient::{scf_gradient, GradientOptions};
 use bandcast::system::format_bytes;
+use bandcast::units::BOHR_TO_ANGSTROM;
 use bandcast::vibrations::{
     harmonic_analysis, hessian_by_gradients_with, hessian_estimate, Mode, HESSIAN_STEP,
 };
@@ -64,6 +66,9 @@ struct JsonOut<'a> {
     modes: &'a [Mode],
     zero_point_ev: f64,
     imaginary: bool,
+    /// Largest displacement (Å) made to symmetrise the input within the detection
+    /// tolerance; null when no atom moved.
+    symmetrised_displacement_angstrom: Option<f64>,
 }
 
 pub fn run(a: Args) -> Result<()> {
@@ -75,6 +80,22 @@ pub fn run(a: Args) -> Result<()> {
         }
     }
     let (mol, mut spec) = a.state.state()?;
+    // A structure symmetric within the tolerance `core` and `ionize` use is made exactly
+    // symmetric, so the modes carry clean irreps and equivalent displacements agree.
+    let (mol, symmetrised) = {
+        let (sym, disp, group) = symmetrize(&mol, DEFAULT_TOLERANCE);
+        if disp > MOVED_BOHR {
+            eprintln!(
+                "note: symmetrised to {} (tolerance {DEFAULT_TOLERANCE} bohr): largest \
+                 displacement {:.4} Å",
+                group.name,
+                disp * BOHR_TO_ANGSTROM
+            );
+            (sym, Some(disp * BOHR_TO_ANGSTROM))
+        } else {
+            (mol, None)
+        }
+    };
     // memory before any work: Hessian plus the working set of each displaced gradient
     let n_basis = bandcast::basis::load(&spec.basis, &spec.molecule_at(&mol)?, None)?.n_basis;
     let threads = rayon::current_num_threads();
@@ -180,6 +201,7 @@ pub fn run(a: Args) -> Result<()> {
             modes: &an.modes,
             zero_point_ev: an.zero_point_ev,
             imaginary: an.n_imaginary > 0,
+            symmetrised_displacement_angstrom: symmetrised,
         };
         super::output::emit_json(
             &serde_json::to_string_pretty(&j).map_err(|e| Error::computation(e.to_string()))?,
