@@ -112,13 +112,7 @@ impl PredictArgs {
     }
 
     fn memory_bytes(&self) -> Result<Option<usize>> {
-        match self.memory {
-            Some(g) if !(g.is_finite() && g > 0.0) => Err(Error::input(format!(
-                "--memory {g}: the budget must be a positive number of GiB"
-            ))),
-            Some(g) => Ok(Some((g * (1u64 << 30) as f64) as usize)),
-            None => Ok(None),
-        }
+        memory_gib_to_bytes(self.memory)
     }
 
     /// Load the basis for `mol`, predict its bands, and (with --verbose) say on stderr what ran.
@@ -246,6 +240,35 @@ pub fn check_output_dir(path: Option<&Path>) -> Result<()> {
 }
 
 /// `--verbose`: each stage's memory estimate (made before any work) on stderr, in GiB.
+/// `--memory GIB` (one unit in every command) as bytes; None when not given.
+pub fn memory_gib_to_bytes(gib: Option<f64>) -> Result<Option<usize>> {
+    match gib {
+        Some(g) if !(g.is_finite() && g > 0.0) => Err(Error::input(format!(
+            "--memory {g}: the budget must be a positive number of GiB"
+        ))),
+        Some(g) => Ok(Some((g * (1u64 << 30) as f64) as usize)),
+        None => Ok(None),
+    }
+}
+
+/// Refuse (exit 2) before any work when a stage that must run does not fit the budget.
+pub fn refuse_if_over(
+    name: &str,
+    estimates: &[bandcast::system::StageEstimate],
+    budget: f64,
+    cheaper: &str,
+) -> Result<()> {
+    if let Some(e) = estimates.iter().find(|e| !e.optional && e.bytes > budget) {
+        return Err(Error::TooLarge(format!(
+            "{name}: {} needs about {}, more than the memory budget of {}; {cheaper}",
+            e.stage,
+            bandcast::system::format_gib(e.bytes),
+            bandcast::system::format_gib(budget)
+        )));
+    }
+    Ok(())
+}
+
 pub fn print_estimates(name: &str, estimates: &[bandcast::system::StageEstimate], budget: f64) {
     eprintln!(
         "{name}: memory estimates before any work (budget {}):",

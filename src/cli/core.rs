@@ -97,7 +97,13 @@ pub struct Args {
     /// already computed (by default those take its numbers).
     #[arg(long)]
     pub all_holes: bool,
-    /// Stage timings (each neutral and each hole, wall and CPU seconds) on stderr.
+    /// Memory budget in GiB for every stage (SCF store, ΔMP2 transform, coupled cluster);
+    /// a job that cannot fit is refused before any work (default: half of the machine's
+    /// memory, at most three quarters of what is available).
+    #[arg(long, value_name = "GIB")]
+    pub memory: Option<f64>,
+    /// Memory estimates before any work, then stage timings (each neutral and each hole,
+    /// wall and CPU seconds) on stderr.
     #[arg(long)]
     pub verbose: bool,
     /// Machine-readable result on stdout.
@@ -184,6 +190,7 @@ pub fn options(args: &Args) -> Result<CoreOptions> {
             CoreMethod::DccsdT => Some(crate::core_level::delta_cc::DeltaCc::CcsdT),
             _ => None,
         },
+        memory_bytes: super::common::memory_gib_to_bytes(args.memory)?,
     })
 }
 
@@ -191,18 +198,24 @@ pub fn run(args: Args) -> Result<()> {
     let mol = args.molecule.load()?;
     let set = basis::load(&args.basis, &mol, None)?;
     let opts = options(&args)?;
-    if args.verbose {
+    {
         use bandcast::predict::{CoreMethod as Cm, MethodChoice, Request};
         let mut req = Request::new(&mol, &set, bandcast::ionization::Region::Core);
         if opts.mp2 {
             req.method = MethodChoice::Core(Cm::Dmp2);
         }
+        req.options.memory_bytes = opts.memory_bytes;
         let budget = req.memory_bytes() as f64;
-        super::common::print_estimates(
+        let estimates = bandcast::predict::memory_estimates(&req)?;
+        if args.verbose {
+            super::common::print_estimates(&mol.name, &estimates, budget);
+        }
+        super::common::refuse_if_over(
             &mol.name,
-            &bandcast::predict::memory_estimates(&req)?,
+            &estimates,
             budget,
-        );
+            "a smaller basis (or --method dscf) needs less",
+        )?;
     }
     let bar = if std::io::stderr().is_terminal() {
         let b = indicatif::ProgressBar::new(0);

@@ -46,6 +46,14 @@ pub struct Args {
     /// symmetric start has a symmetric gradient and stays symmetric.
     #[arg(long)]
     pub no_symmetry: bool,
+    /// Memory budget in GiB (SCF, gradient and the quasi-Newton Hessian); a run that cannot
+    /// fit is refused before any work; what is left goes to stored integrals (default: half
+    /// of the machine's memory, at most three quarters of what is available).
+    #[arg(long, value_name = "GIB")]
+    pub memory: Option<f64>,
+    /// Memory estimate before any work and each step (energy, largest force) on stderr.
+    #[arg(long)]
+    pub verbose: bool,
     /// Print JSON instead of text.
     #[arg(long)]
     pub json: bool,
@@ -70,7 +78,38 @@ struct JsonOut<'a> {
 }
 
 pub fn run(a: Args) -> Result<()> {
-    let (mol, spec) = a.state.state()?;
+    let budget_bytes = super::common::memory_gib_to_bytes(a.memory)?;
+    let (mol, mut spec) = a.state.state()?;
+    // memory before any work: one SCF and gradient working set (the estimate of the
+    // harmonic analysis for one displacement) plus the quasi-Newton Hessian and its update
+    let n_basis = bandcast::basis::load(&spec.basis, &spec.molecule_at(&mol)?, None)?.n_basis;
+    let n3 = 3 * mol.atoms.len();
+    let per_gradient =
+        bandcast::vibrations::hessian_estimate(mol.atoms.len(), n_basis, 1, 0.0).per_gradient_bytes;
+    let minimum = per_gradient + 8.0 * (3 * n3 * n3) as f64;
+    let budget = budget_bytes.unwrap_or_else(bandcast::system::default_memory_budget) as f64;
+    if a.verbose {
+        eprintln!(
+            "{}: memory estimate before any work (budget {}): {n_basis} basis functions; SCF \
+             and gradient working set {}, quasi-Newton Hessian {}; stored integrals use what \
+             is left when they fit",
+            mol.name,
+            bandcast::system::format_gib(budget),
+            bandcast::system::format_gib(per_gradient),
+            bandcast::system::format_gib(8.0 * (3 * n3 * n3) as f64),
+        );
+    }
+    if minimum > budget {
+        return Err(Error::TooLarge(format!(
+            "{}: an optimisation needs at least {} for {n_basis} basis functions, more than \
+             the memory budget of {}; a smaller basis needs less",
+            mol.name,
+            bandcast::system::format_gib(minimum),
+            bandcast::system::format_gib(budget)
+        )));
+    }
+    spec.scf.memory_budget_bytes = (budget - minimum) as usize;
+    let verbose = a.verbose;
     let out = a.out.clone().unwrap_or_else(|| {
         let f = &a.state.molecule.file;
         let stem = f
@@ -86,6 +125,12 @@ pub fn run(a: Args) -> Result<()> {
         b
     });
     let mut progress = |s: &OptStep| {
+        if verbose {
+            eprintln!(
+                "step {}: E = {:.10} Eh, largest force {:.2e} Eh/bohr",
+                s.iteration, s.energy, s.max_force
+            );
+        }
         if let Some(b) = &bar {
             b.set_message(format!(
                 "step {} E = {:.8} Eh, largest force {:.1e} Eh/bohr",

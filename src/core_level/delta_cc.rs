@@ -60,8 +60,9 @@ pub struct CcEnergies {
     pub shift_binding_ev: Option<f64>,
 }
 
-fn options(which: DeltaCc, excluded: [Vec<usize>; 2]) -> OpenShellOptions {
+fn options(which: DeltaCc, excluded: [Vec<usize>; 2], memory: Option<usize>) -> OpenShellOptions {
     OpenShellOptions {
+        memory_budget: memory.map(|b| b as f64),
         frozen_core: FrozenCore::None,
         excluded_virtuals: excluded,
         triples: which.triples(),
@@ -77,12 +78,13 @@ pub fn neutral(
     basis: &BasisSet,
     wf: &Wavefunction,
     which: DeltaCc,
+    memory: Option<usize>,
 ) -> Result<OpenShellResult> {
     open_shell::run(
         mol,
         basis,
         wf,
-        &options(which, [vec![], vec![]]),
+        &options(which, [vec![], vec![]], memory),
         &mut |_| {},
     )
 }
@@ -113,13 +115,20 @@ pub fn delta(
     ion: &Wavefunction,
     neutral: &OpenShellResult,
     which: DeltaCc,
+    memory: Option<usize>,
 ) -> Result<(f64, Option<f64>)> {
     let cation = mol.clone().with_charge_multiplicity(mol.charge + 1, 2)?;
     let mut excluded = [Vec::new(), Vec::new()];
     if let Some((s, p)) = hole_orbital(ion) {
         excluded[s].push(p);
     }
-    let r = open_shell::run(&cation, basis, ion, &options(which, excluded), &mut |_| {})?;
+    let r = open_shell::run(
+        &cation,
+        basis,
+        ion,
+        &options(which, excluded, memory),
+        &mut |_| {},
+    )?;
     let dccsd = ev(r.e_ccsd() - neutral.e_ccsd());
     let dccsdt = match (r.e_ccsd_t(), neutral.e_ccsd_t()) {
         (Some(a), Some(b)) => Some(ev(a - b)),

@@ -123,7 +123,8 @@ pub fn ionise_atom(
     };
     let mut cc = super::delta_cc::CcEnergies::default();
     if let (Some(ncc), Some(which)) = (ctx.neutral_cc, ctx.opts.cc) {
-        let (s, t) = super::delta_cc::delta(ctx.mol, ctx.basis, wf, ncc, which)?;
+        let (s, t) =
+            super::delta_cc::delta(ctx.mol, ctx.basis, wf, ncc, which, ctx.opts.memory_bytes)?;
         cc.dccsd_ev = Some(s);
         cc.dccsdt_ev = t;
     }

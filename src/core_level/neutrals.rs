@@ -26,11 +26,12 @@ use super::population::sqrt_overlap;
 use super::result::{CoreTimings, StageTiming};
 use super::shared_eri::{shell_map, MixedSource, PlainQuartets};
 
-/// Memory the stored two-electron integrals of a run may take (bytes): the machine-dependent
-/// rule of `bandcast scf` (`system::default_memory_budget`); above it the Fock
-/// matrices are built integral-direct.
-pub fn memory_budget_bytes() -> usize {
-    crate::system::default_memory_budget()
+/// Memory the stored two-electron integrals of a run may take (bytes): `--memory` when
+/// given, else the machine-dependent rule of `bandcast scf` (`system::default_memory_budget`);
+/// above it the Fock matrices are built integral-direct.
+pub fn memory_budget_bytes(opts: &CoreOptions) -> usize {
+    opts.memory_bytes
+        .unwrap_or_else(crate::system::default_memory_budget)
 }
 
 /// CPU seconds since `start`, when the probe works.
@@ -52,7 +53,7 @@ pub fn shared_quartets(
     let threshold = ScfOptions::default().screening;
     let t = std::time::Instant::now();
     let c0 = cpu_seconds();
-    let cache = (PlainQuartets::estimate_bytes(plain, threshold) <= memory_budget_bytes() / 2)
+    let cache = (PlainQuartets::estimate_bytes(plain, threshold) <= memory_budget_bytes(opts) / 2)
         .then(|| PlainQuartets::new(plain, threshold));
     timings.shared_s = t.elapsed().as_secs_f64();
     timings.shared_cpu_s = cpu_diff(c0);

@@ -115,6 +115,9 @@ pub struct CoreOptions {
     pub photon_ev: Option<f64>,
     /// ΔCCSD or ΔCCSD(T) beside ΔSCF (`delta_cc.rs`), when asked.
     pub cc: Option<super::delta_cc::DeltaCc>,
+    /// Memory budget (bytes) for the stored integrals and the SCF of every hole; None: the
+    /// machine-dependent default of `system::default_memory_budget`.
+    pub memory_bytes: Option<usize>,
 }
 
 impl Default for CoreOptions {
@@ -132,6 +135,7 @@ impl Default for CoreOptions {
             shell: ShellChoice::Auto,
             photon_ev: None,
             cc: None,
+            memory_bytes: None,
         }
     }
 }

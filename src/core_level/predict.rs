@@ -141,7 +141,7 @@ fn compute_holes(
     let mut failures = Vec::new();
     let mut done = 0usize;
     let shared = shared_quartets(plain, plan, opts, timings);
-    let budget = memory_budget_bytes() - shared.as_ref().map_or(0, |c| c.bytes());
+    let budget = memory_budget_bytes(opts).saturating_sub(shared.as_ref().map_or(0, |c| c.bytes()));
     let inputs = NeutralInputs {
         mol,
         plain,
@@ -156,7 +156,13 @@ fn compute_holes(
         out.neutral_energies.push(n.wf.energy);
         out.neutral_mp2s.push(n.mp2);
         let neutral_cc = match opts.cc {
-            Some(which) => Some(super::delta_cc::neutral(mol, &n.basis, &n.wf, which)?),
+            Some(which) => Some(super::delta_cc::neutral(
+                mol,
+                &n.basis,
+                &n.wf,
+                which,
+                opts.memory_bytes,
+            )?),
             None => None,
         };
         let ctx = HoleContext {

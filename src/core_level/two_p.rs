@@ -342,7 +342,8 @@ fn second_shell(
     let cpu_start = cpu_seconds();
     let mut timings = CoreTimings::default();
     let shared = shared_quartets(&basis, &plan, &popts, &mut timings);
-    let budget = memory_budget_bytes() - shared.as_ref().map_or(0, |c| c.bytes());
+    let budget =
+        memory_budget_bytes(&popts).saturating_sub(shared.as_ref().map_or(0, |c| c.bytes()));
     let inputs = NeutralInputs {
         mol,
         plain: &basis,

@@ -158,6 +158,7 @@ fn predict_core(req: &Request, progress: &(dyn Fn(Progress) + Sync)) -> Result<P
         mp2: method == CoreMethod::Dmp2,
         thorough: !req.options.quick,
         photon_ev: req.options.photon_ev,
+        memory_bytes: req.options.memory_bytes,
         ..CoreOptions::default()
     };
     if let Some(atoms) = &req.options.atoms {
