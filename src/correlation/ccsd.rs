@@ -156,7 +156,6 @@ pub fn solve(
     let mut t2 = t2_0;
     let mut e_old = energy(ints, &t1, &t2);
     let mut diis = Diis::new(opts.diis_size);
-    let n1 = o * v;
     let mut de = f64::INFINITY;
     for it in 1..=opts.max_iter {
         let (r1, r2) = residual(ints, &t1, &t2);
@@ -176,15 +175,7 @@ pub fn solve(
                 residual_norm: rnorm,
             });
         }
-        let mut step = Vec::with_capacity(n1 + t2.len());
-        step.extend(r1.data.iter().zip(&d1.data).map(|(r, d)| r / d));
-        step.extend(r2.data.iter().zip(&d2.data).map(|(r, d)| r / d));
-        let mut x = Vec::with_capacity(step.len());
-        x.extend_from_slice(&t1.data);
-        x.extend_from_slice(&t2.data);
-        let xn = diis.extrapolate(x, step);
-        t1.data.copy_from_slice(&xn[..n1]);
-        t2.data.copy_from_slice(&xn[n1..]);
+        super::tensor::diis_amplitude_step(&mut diis, &mut t1, &mut t2, [&r1, &r2], [&d1, &d2]);
         // keep the pair symmetry t_ij^ab = t_ji^ba exact
         let sym = pair_transpose(&t2);
         for (a, b) in t2.data.iter_mut().zip(&sym.data) {

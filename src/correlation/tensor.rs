@@ -438,6 +438,28 @@ fn einsum_inner(spec: &str, a: &Tensor, b: &Tensor) -> (Tensor, f64) {
     }
 }
 
+/// One amplitude update of a coupled-cluster iteration (closed- and open-shell alike): the
+/// quasi-Newton step r/D of singles and doubles, extrapolated by DIIS over the joined
+/// amplitude vector.
+pub fn diis_amplitude_step(
+    diis: &mut crate::scf::diis::VectorDiis,
+    t1: &mut Tensor,
+    t2: &mut Tensor,
+    r: [&Tensor; 2],
+    d: [&Tensor; 2],
+) {
+    let n1 = t1.data.len();
+    let mut step = Vec::with_capacity(n1 + t2.data.len());
+    step.extend(r[0].data.iter().zip(&d[0].data).map(|(r, d)| r / d));
+    step.extend(r[1].data.iter().zip(&d[1].data).map(|(r, d)| r / d));
+    let mut x = Vec::with_capacity(step.len());
+    x.extend_from_slice(&t1.data);
+    x.extend_from_slice(&t2.data);
+    let xn = diis.extrapolate(x, step);
+    t1.data.copy_from_slice(&xn[..n1]);
+    t2.data.copy_from_slice(&xn[n1..]);
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

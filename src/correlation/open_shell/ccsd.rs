@@ -201,7 +201,6 @@ pub fn solve(
     log(&format!("MP2-like first-order energy {e_mp2:.10} Eh"));
     let mut e_old = energy(sys, &t1, &t2);
     let mut diis = VectorDiis::new(opts.diis_size);
-    let n1 = o * v;
     let mut de = f64::INFINITY;
     for it in 1..=opts.max_iter {
         let (r1, r2) = residual(sys, &t1, &t2);
@@ -220,15 +219,13 @@ pub fn solve(
                 residual_norm: rnorm,
             });
         }
-        let mut step = Vec::with_capacity(n1 + t2.len());
-        step.extend(r1.data.iter().zip(&d1.data).map(|(r, d)| r / d));
-        step.extend(r2.data.iter().zip(&d2.data).map(|(r, d)| r / d));
-        let mut x = Vec::with_capacity(step.len());
-        x.extend_from_slice(&t1.data);
-        x.extend_from_slice(&t2.data);
-        let xn = diis.extrapolate(x, step);
-        t1.data.copy_from_slice(&xn[..n1]);
-        t2.data.copy_from_slice(&xn[n1..]);
+        crate::correlation::tensor::diis_amplitude_step(
+            &mut diis,
+            &mut t1,
+            &mut t2,
+            [&r1, &r2],
+            [&d1, &d2],
+        );
         let e_new = energy(sys, &t1, &t2);
         de = e_new - e_old;
         log(&format!(
