@@ -87,7 +87,7 @@ pub fn run(a: Args) -> Result<()> {
         if disp > MOVED_BOHR {
             eprintln!(
                 "note: symmetrised to {} (tolerance {DEFAULT_TOLERANCE} bohr): largest \
-                 displacement {:.4} Å",
+                 displacement {:.1e} Å",
                 group.name,
                 disp * BOHR_TO_ANGSTROM
             );
