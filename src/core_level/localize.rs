@@ -106,18 +106,7 @@ pub fn localise_core_hole(
     let n_ao = c.nrows();
     for (slot, &col) in block.iter().enumerate() {
         let e = nb - 1 - slot;
-        // Fix the sign so the largest AO coefficient on the target is positive (makes the
-        // result independent of the eigen solver's sign choice).
-        let mut v: Vec<f64> = (0..n_ao)
-            .map(|mu| (0..nb).map(|i| c[(mu, block[i])] * x[(i, e)]).sum())
-            .collect();
-        let big = aos
-            .iter()
-            .map(|&mu| v[mu])
-            .fold(0.0f64, |a, b| if b.abs() > a.abs() { b } else { a });
-        if big < 0.0 {
-            v.iter_mut().for_each(|t| *t = -*t);
-        }
+        let v = block_combination(c, &block, |i| x[(i, e)], &aos);
         for mu in 0..n_ao {
             out[(mu, col)] = v[mu];
         }
@@ -130,6 +119,28 @@ pub fn localise_core_hole(
         canonical: seed,
         block,
     }
+}
+
+/// The orbital Σ_i C[:, block[i]] · coef(i), its sign fixed so that its largest coefficient
+/// on the atom's functions `aos` is positive (independent of the eigen solver's sign
+/// choice). Shared by the 1s localisation here and the 2s/2p hole set (`shell_hole.rs`).
+pub(crate) fn block_combination(
+    c: &Mat<f64>,
+    block: &[usize],
+    coef: impl Fn(usize) -> f64,
+    aos: &[usize],
+) -> Vec<f64> {
+    let mut v: Vec<f64> = (0..c.nrows())
+        .map(|mu| (0..block.len()).map(|i| c[(mu, block[i])] * coef(i)).sum())
+        .collect();
+    let big = aos
+        .iter()
+        .map(|&mu| v[mu])
+        .fold(0.0f64, |a, b| if b.abs() > a.abs() { b } else { a });
+    if big < 0.0 {
+        v.iter_mut().for_each(|t| *t = -*t);
+    }
+    v
 }
 
 #[cfg(test)]

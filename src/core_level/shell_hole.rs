@@ -181,17 +181,7 @@ pub fn localise_shell(
     let mut out = c.clone();
     let aos = atom_aos(basis, atom);
     for (slot, xb) in cols.iter().enumerate() {
-        let mut v: Vec<f64> = (0..n_ao)
-            .map(|mu| (0..nb).map(|i| c[(mu, block[i])] * xb[i]).sum())
-            .collect();
-        // Sign: largest coefficient on the atom positive (independent of the eigen solver).
-        let big = aos
-            .iter()
-            .map(|&mu| v[mu])
-            .fold(0.0f64, |a, b| if b.abs() > a.abs() { b } else { a });
-        if big < 0.0 {
-            v.iter_mut().for_each(|t| *t = -*t);
-        }
+        let v = super::localize::block_combination(c, &block, |i| xb[i], &aos);
         for mu in 0..n_ao {
             out[(mu, block[slot])] = v[mu];
         }
