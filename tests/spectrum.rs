@@ -134,6 +134,7 @@ fn band(label: &str, ie: f64, makeup: &[(&str, &str, f64)], region: Region) -> B
         region,
         atom: None,
         lifetime_fwhm_ev: None,
+        environment: None,
     }
 }
 

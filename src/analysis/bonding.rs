@@ -7,9 +7,8 @@
 //!   q_i = Σ_{A<B bonded} Σ_{μ∈A, ν∈B} 2 C_μi C_νi S_μν,
 //!
 //! for one electron in the orbital; for a degenerate set the mean over its orbitals.
-//! Atoms are bonded when closer than 1.25 × the sum of their covalent radii (B. Cordero et
-//! al., "Covalent radii revisited", Dalton Trans. (2008) 2832; values typed from memory,
-//! C sp3 radius, low-spin radii for Mn, Fe, Co).
+//! Bonded atoms come from `chem::bonds` (closer than 1.25 × the sum of their covalent
+//! radii).
 //!
 //! Thresholds (`BONDING_THRESHOLD`, `STRONG_THRESHOLD`): q > +0.08 bonding, q < −0.08
 //! antibonding, otherwise nonbonding; |q| < 0.2 is called "weakly". Tuned on HF/cc-pVDZ
@@ -30,9 +29,8 @@
 //! guide for reading a spectrum, not a prediction of the band shape.
 
 use crate::basis::BasisSet;
-use crate::chem::molecule::distance;
+use crate::chem::bonds::bonded_pairs;
 use crate::chem::Molecule;
-use crate::units::ANGSTROM_TO_BOHR;
 use bandcast_linalg::Mat;
 use serde::Serialize;
 
@@ -40,8 +38,6 @@ use serde::Serialize;
 pub const BONDING_THRESHOLD: f64 = 0.08;
 /// |q| below which a bonding/antibonding orbital is called "weakly" so.
 pub const STRONG_THRESHOLD: f64 = 0.2;
-/// Bonded when R < BOND_FACTOR × (r_A + r_B).
-pub const BOND_FACTOR: f64 = 1.25;
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
 #[serde(rename_all = "lowercase")]
@@ -72,38 +68,6 @@ impl Character {
             Character::Nonbonding => "nonbonding: short progression, sharp band",
         }
     }
-}
-
-/// Covalent radius in Å, Cordero et al. (2008), H–Kr (from memory); None beyond.
-pub fn covalent_radius_angstrom(z: u32) -> Option<f64> {
-    const R: [f64; 36] = [
-        0.31, 0.28, // H He
-        1.28, 0.96, 0.84, 0.76, 0.71, 0.66, 0.57, 0.58, // Li–Ne
-        1.66, 1.41, 1.21, 1.11, 1.07, 1.05, 1.02, 1.06, // Na–Ar
-        2.03, 1.76, 1.70, 1.60, 1.53, 1.39, 1.39, 1.32, 1.26, 1.24, 1.32, 1.22, // K–Zn
-        1.22, 1.20, 1.19, 1.20, 1.20, 1.16, // Ga–Kr
-    ];
-    R.get((z as usize).checked_sub(1)?).copied()
-}
-
-/// Bonded atom pairs (A < B).
-pub fn bonded_pairs(mol: &Molecule) -> Vec<(usize, usize)> {
-    let mut v = Vec::new();
-    for (b, ab) in mol.atoms.iter().enumerate() {
-        for (a, aa) in mol.atoms[..b].iter().enumerate() {
-            let (Some(ra), Some(rb)) = (
-                covalent_radius_angstrom(aa.z),
-                covalent_radius_angstrom(ab.z),
-            ) else {
-                continue;
-            };
-            let limit = BOND_FACTOR * (ra + rb) * ANGSTROM_TO_BOHR;
-            if distance(&aa.position, &ab.position) < limit {
-                v.push((a, b));
-            }
-        }
-    }
-    v
 }
 
 /// Mean bonded overlap population q of the orbitals `mo_indices` (see the module docs).
@@ -192,28 +156,9 @@ pub fn character(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::chem::Atom;
 
     #[test]
-    fn bonds_by_covalent_radii() {
-        // Water at its experimental geometry (O–H 0.958 Å): two O–H bonds, no H–H bond
-        // (H···H 1.51 Å > 1.25 × 0.62 Å).
-        let a = ANGSTROM_TO_BOHR;
-        let m = Molecule::new(vec![
-            Atom {
-                z: 8,
-                position: [0.0, 0.0, 0.0],
-            },
-            Atom {
-                z: 1,
-                position: [0.7571 * a, 0.0, 0.5861 * a],
-            },
-            Atom {
-                z: 1,
-                position: [-0.7571 * a, 0.0, 0.5861 * a],
-            },
-        ]);
-        assert_eq!(bonded_pairs(&m), vec![(0, 1), (0, 2)]);
+    fn classification_thresholds() {
         assert_eq!(classify(0.3), Character::Bonding);
         assert_eq!(classify(-0.3), Character::Antibonding);
         assert_eq!(classify(0.01), Character::Nonbonding);

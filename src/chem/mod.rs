@@ -1,7 +1,10 @@
 //! Chemistry basics: elements, molecules, the structure readers (XYZ, MOL/SDF), the
-//! frozen-core rule, and a standard-geometry alkane builder (`alkane`).
+//! frozen-core rule, a standard-geometry alkane builder (`alkane`), bonds from covalent
+//! radii (`bonds`) and the chemical environment of each atom (`environment`).
 pub mod alkane;
+pub mod bonds;
 pub mod elements;
+pub mod environment;
 #[cfg(test)]
 pub mod fixtures;
 pub mod frozen_core;

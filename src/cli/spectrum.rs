@@ -5,7 +5,8 @@
 
 use std::path::{Path, PathBuf};
 
-use bandcast::report::figures::spectrum_plot;
+use bandcast::report::figures::spectrum_figure;
+use bandcast::report::html::spectrum_page;
 use bandcast::report::json::SpectrumJson;
 use bandcast::report::runs::{InputInfo, SpectrumRun};
 use bandcast::report::text::spectrum_table;
@@ -82,9 +83,10 @@ pub struct Args {
     /// With --vibronic: basis of the correlated vertical energies (default: --basis).
     #[arg(long, value_name = "NAME", requires = "vibronic")]
     pub vertical_basis: Option<String>,
-    /// With --vibronic: write a self-contained HTML page (the figure with its sticks and a
-    /// table per band).
-    #[arg(long, value_name = "OUT.html", requires = "vibronic")]
+    /// Write a self-contained HTML page: the figure (one panel per element for core levels
+    /// of several elements) and the bands with their chemical environments; with
+    /// --vibronic, the figure with its sticks and a table per band.
+    #[arg(long, value_name = "OUT.html")]
     pub html: Option<PathBuf>,
     // --- end vibronic ---
 }
@@ -112,6 +114,7 @@ pub fn run(args: Args) -> Result<()> {
     let fwhm = check_fwhm(args.fwhm)?;
     check_output_dir(args.svg.as_deref())?;
     check_output_dir(args.csv.as_deref())?;
+    check_output_dir(args.html.as_deref())?;
     args.predict.check()?;
     let inputs = parse_inputs(&args.files)?;
     // --- vibronic bands (cli/vibronic.rs) ---
@@ -121,7 +124,6 @@ pub fn run(args: Args) -> Result<()> {
                 "--vibronic draws one molecule: give one file",
             ));
         }
-        check_output_dir(args.html.as_deref())?;
         let mol = args.state.load(&inputs[0].path)?;
         let set = super::vibronic::Settings {
             basis: &args.predict.basis,
@@ -198,7 +200,10 @@ pub fn run(args: Args) -> Result<()> {
         inputs: infos,
     };
     if let Some(p) = &args.svg {
-        write_atomic(p, spectrum_plot(&run, args.flip_axis).render().as_bytes())?;
+        write_atomic(p, spectrum_figure(&run, args.flip_axis).as_bytes())?;
+    }
+    if let Some(p) = &args.html {
+        write_atomic(p, spectrum_page(&run, args.flip_axis).as_bytes())?;
     }
     if let Some(p) = &args.csv {
         write_atomic(p, curve_csv(&spectrum.curve).as_bytes())?;
@@ -206,10 +211,11 @@ pub fn run(args: Args) -> Result<()> {
     if args.json {
         return print_json(&SpectrumJson::new(&run));
     }
-    let written: Vec<(&str, &Path)> = [("svg", &args.svg), ("csv", &args.csv)]
-        .into_iter()
-        .filter_map(|(w, p)| p.as_deref().map(|p| (w, p)))
-        .collect();
+    let written: Vec<(&str, &Path)> =
+        [("svg", &args.svg), ("csv", &args.csv), ("html", &args.html)]
+            .into_iter()
+            .filter_map(|(w, p)| p.as_deref().map(|p| (w, p)))
+            .collect();
     print!("{}", spectrum_table(&run, &written, &|_| None));
     Ok(())
 }

@@ -8,6 +8,7 @@ use bandcast_linalg::Mat;
 
 use crate::basis::BasisSet;
 use crate::chem::elements::symbol;
+use crate::chem::environment::environments;
 use crate::chem::Molecule;
 use crate::correlation::mp2::mp2_energy;
 use crate::error::{Error, Result};
@@ -135,6 +136,7 @@ pub fn ionise_atom(
         atom: atom + 1,
         element: symbol(z).to_string(),
         label: format!("{label} 1s"),
+        environment: environments(ctx.mol).swap_remove(atom),
         shell: "1s".into(),
         koopmans_ev: ev(koopmans),
         dscf_ev,

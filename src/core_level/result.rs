@@ -38,6 +38,9 @@ pub struct CoreLevel {
     pub element: String,
     /// Printed label: "C2 1s".
     pub label: String,
+    /// Chemical environment of the atom from its bonded neighbours ("O–C(=O)–O", "CH3";
+    /// `chem::environment`).
+    pub environment: String,
     pub shell: String,
     /// −ε of the canonical 1s orbital with most weight on the atom (eV).
     pub koopmans_ev: f64,
@@ -218,6 +221,7 @@ fn level_band(l: &CoreLevel) -> Band {
                 },
                 region: Region::Core,
                 atom: Some(l.atom - 1),
+                environment: Some(l.environment.clone()),
                 lifetime_fwhm_ev: l.lifetime_fwhm_ev,
             }
         }
@@ -239,6 +243,7 @@ mod tests {
             atom,
             element: "C".into(),
             label: format!("C{atom} 1s"),
+            environment: "CH4".into(),
             shell: "1s".into(),
             koopmans_ev: dscf + 14.0,
             dscf_ev: dscf,

@@ -18,6 +18,7 @@
 
 use crate::basis::BasisSet;
 use crate::chem::elements::symbol;
+use crate::chem::environment::environments;
 use crate::chem::Molecule;
 use crate::error::{Error, Result};
 use crate::ionization::band::Band;
@@ -586,6 +587,7 @@ fn atom_levels(
         atom: atom + 1,
         element: symbol(z).to_string(),
         label: format!("{label} {}", shell.name()),
+        environment: environments(ctx.mol).swap_remove(atom),
         shell: shell.name().into(),
         koopmans_ev: spatial[0].koopmans_ev,
         dscf_ev: spatial[0].dscf_ev,

@@ -38,6 +38,9 @@ pub struct Band {
     pub region: Region,
     /// Atom (0-based) for core levels.
     pub atom: Option<usize>,
+    /// Chemical environment of that atom from its bonded neighbours ("C=O", "CH3";
+    /// `chem::environment`), for core levels; None for valence bands.
+    pub environment: Option<String>,
     /// Lorentzian lifetime FWHM in eV (core levels), None when not known.
     pub lifetime_fwhm_ev: Option<f64>,
 }

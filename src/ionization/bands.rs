@@ -157,6 +157,7 @@ pub fn make_band(set: &OrbitalSet, energy: BandEnergy, notes: &OrbitalNotes, met
         region: Region::Valence,
         atom: None,
         lifetime_fwhm_ev: None,
+        environment: None,
     }
 }
 

@@ -131,6 +131,7 @@ mod tests {
             region: Region::Valence,
             atom: None,
             lifetime_fwhm_ev: None,
+            environment: None,
         }
     }
 

@@ -1,22 +1,78 @@
-//! The plots of `spectrum` and `assign`, as `svg::Plot` values built from the results.
+//! The plots of `spectrum` and `assign`, as `svg::Plot` values built from the results, and
+//! the figures (`spectrum_figure`, `overlay_figure`): one plot, or for XPS of several
+//! elements one panel per element and shell, each over its own energy range.
 
 use super::runs::{AssignRun, SpectrumRun};
-use super::svg::{Plot, Series, StickMark, PALETTE};
+use super::svg::{render_panels, Plot, Series, StickMark, PALETTE};
+use crate::spectrum::broaden::{auto_grid, broaden, Curve};
 use crate::spectrum::lineshape::{profile, Shape};
 use crate::spectrum::photon::Axis;
+use crate::spectrum::predicted::Stick;
+
+/// Height of one element's panel (px).
+const PANEL_HEIGHT: f64 = 400.0;
+
+/// The sticks of each core level ("C 1s", "O 1s"), by increasing energy of the level;
+/// empty unless there are two levels or more.
+fn core_groups(sticks: &[Stick]) -> Vec<(String, Vec<Stick>)> {
+    let mut groups: Vec<(String, Vec<Stick>)> = Vec::new();
+    for s in sticks {
+        let Some(name) = &s.core_level else {
+            return Vec::new();
+        };
+        match groups.iter_mut().find(|g| &g.0 == name) {
+            Some(g) => g.1.push(s.clone()),
+            None => groups.push((name.clone(), vec![s.clone()])),
+        }
+    }
+    if groups.len() < 2 {
+        return Vec::new();
+    }
+    let low = |g: &(String, Vec<Stick>)| g.1.iter().map(|s| s.binding_ev).fold(f64::MAX, f64::min);
+    groups.sort_by(|a, b| low(a).total_cmp(&low(b)));
+    groups
+}
+
+/// The SVG figure of `spectrum`: one plot, or one panel per core level when the spectrum
+/// holds several (each panel broadened on its own grid).
+pub fn spectrum_figure(run: &SpectrumRun, flip: bool) -> String {
+    let b = run.spectrum;
+    let groups = core_groups(&b.sticks);
+    if groups.is_empty() {
+        return spectrum_plot(run, flip).render();
+    }
+    let panels: Vec<Plot> = groups
+        .iter()
+        .filter_map(|(name, sticks)| {
+            let grid = auto_grid(sticks, run.axis, None)?;
+            let curve = broaden(sticks, b.shape, run.axis, grid, &b.curve.component_names);
+            let mut p = plot_of(run, sticks, &curve, flip);
+            p.title = name.clone();
+            p.height = PANEL_HEIGHT;
+            Some(p)
+        })
+        .collect();
+    render_panels(&run.title(), &run.subtitle(), &panels)
+}
 
 /// The plot of a spectrum: the total (and each molecule of a mixture, dashed) with a stick
 /// per band. `flip` draws the energy axis the other way round.
 pub fn spectrum_plot(run: &SpectrumRun, flip: bool) -> Plot {
     let b = run.spectrum;
+    plot_of(run, &b.sticks, &b.curve, flip)
+}
+
+/// The plot of `sticks` and their `curve` (all of a spectrum, or one panel's).
+fn plot_of(run: &SpectrumRun, sticks: &[Stick], curve: &Curve, flip: bool) -> Plot {
+    let b = run.spectrum;
     let axis = run.axis;
-    let multi = b.curve.components.len() > 1;
+    let multi = curve.components.len() > 1;
     let mut series = Vec::new();
     if multi {
-        for (k, c) in b.curve.components.iter().enumerate() {
+        for (k, c) in curve.components.iter().enumerate() {
             series.push(Series {
-                name: b.curve.component_names[k].clone(),
-                x: b.curve.energy_ev.clone(),
+                name: curve.component_names[k].clone(),
+                x: curve.energy_ev.clone(),
                 y: c.clone(),
                 color: PALETTE[(k + 1) % PALETTE.len()].into(),
                 stroke_width: 1.2,
@@ -27,15 +83,14 @@ pub fn spectrum_plot(run: &SpectrumRun, flip: bool) -> Plot {
     }
     series.push(Series {
         name: if multi { "total".into() } else { String::new() },
-        x: b.curve.energy_ev.clone(),
-        y: b.curve.total.clone(),
+        x: curve.energy_ev.clone(),
+        y: curve.total.clone(),
         color: PALETTE[0].into(),
         stroke_width: 2.0,
         fill: true,
         dashed: false,
     });
-    let sticks = b
-        .sticks
+    let sticks = sticks
         .iter()
         .map(|s| StickMark {
             x: match axis {
@@ -46,12 +101,10 @@ pub fn spectrum_plot(run: &SpectrumRun, flip: bool) -> Plot {
             height: s.intensity * profile(b.shape, 0.0, s.gaussian_fwhm_ev, s.lorentzian_fwhm_ev),
             // in a mixture the colour tells the molecule (legend); the label keeps the band
             label: if multi {
-                s.label
-                    .split_once(": ")
-                    .map(|x| x.1.to_string())
-                    .unwrap_or_else(|| s.label.clone())
+                let l = s.display_label();
+                l.split_once(": ").map(|x| x.1.to_string()).unwrap_or(l)
             } else {
-                s.label.clone()
+                s.display_label()
             },
             color: if multi {
                 PALETTE[(s.component + 1) % PALETTE.len()].into()
@@ -72,7 +125,7 @@ pub fn spectrum_plot(run: &SpectrumRun, flip: bool) -> Plot {
         series,
         sticks,
         increase_left,
-        x_range: Some((b.curve.energy_ev[0], *b.curve.energy_ev.last().unwrap())),
+        x_range: Some((curve.energy_ev[0], *curve.energy_ev.last().unwrap())),
         width: 900.0,
         height: 560.0,
     }
@@ -139,12 +192,12 @@ pub fn overlay_plot(run: &AssignRun) -> Plot {
             * pnorm;
         if let Some(m) = marks.iter_mut().find(|m| (m.x - x).abs() <= 0.05) {
             m.height += h;
-            m.label = format!("{} + {}", m.label, s.label);
+            m.label = format!("{} + {}", m.label, s.display_label());
         } else {
             marks.push(StickMark {
                 x,
                 height: h,
-                label: s.label.clone(),
+                label: s.display_label(),
                 color: PALETTE[0].into(),
             });
         }
@@ -201,4 +254,39 @@ pub fn overlay_plot(run: &AssignRun) -> Plot {
         width: 900.0,
         height: 520.0,
     }
+}
+
+/// The SVG figure of `assign`: the overlay, or one panel per core level when the prediction
+/// holds several, each over its own aligned lines (± 4 FWHM, at least 3 eV) within the trace.
+pub fn overlay_figure(run: &AssignRun) -> String {
+    let groups = core_groups(&run.assignment.sticks);
+    let whole = overlay_plot(run);
+    if groups.is_empty() {
+        return whole.render();
+    }
+    let cmp = &run.assignment.comparison;
+    let (t0, t1) = (cmp.energy_ev[0], *cmp.energy_ev.last().unwrap());
+    let margin = (4.0 * run.assignment.fwhm).max(3.0);
+    let panels: Vec<Plot> = groups
+        .iter()
+        .map(|(name, sticks)| {
+            let aligned = sticks
+                .iter()
+                .map(|s| cmp.scale * s.binding_ev + cmp.shift_ev);
+            let lo = aligned.clone().fold(f64::MAX, f64::min) - margin;
+            let hi = aligned.fold(f64::MIN, f64::max) + margin;
+            let (lo, hi) = if lo.max(t0) < hi.min(t1) {
+                (lo.max(t0), hi.min(t1))
+            } else {
+                (lo, hi)
+            };
+            Plot {
+                title: name.clone(),
+                x_range: Some((lo, hi)),
+                height: PANEL_HEIGHT,
+                ..whole.clone()
+            }
+        })
+        .collect();
+    render_panels(&whole.title, &whole.subtitle, &panels)
 }

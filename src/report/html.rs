@@ -3,7 +3,7 @@
 
 use std::fmt::Write;
 
-use super::figures::overlay_plot;
+use super::figures::overlay_figure;
 use super::runs::{region_name, AssignRun};
 use super::svg::escape;
 use crate::spectrum::compare::Comparison;
@@ -47,12 +47,22 @@ pub fn assignment_page(run: &AssignRun) -> String {
         },
         region: region_name(run.region).into(),
     };
-    let plot = overlay_plot(run);
-    assignment_report(&ctx, &run.assignment.comparison, &plot.render())
+    assignment_report(
+        &ctx,
+        &run.assignment.comparison,
+        &overlay_figure(run),
+        &|l| run.display_label(l),
+    )
 }
 
-/// The report page. `svg` is an inline SVG document (from `svg::Plot::render`).
-pub fn assignment_report(ctx: &ReportContext, cmp: &Comparison, svg: &str) -> String {
+/// The report page. `svg` is an inline SVG document (from `figures::overlay_figure`);
+/// `label` turns a pair's label into the one shown (with the chemical environment).
+pub fn assignment_report(
+    ctx: &ReportContext,
+    cmp: &Comparison,
+    svg: &str,
+    label: &dyn Fn(&str) -> String,
+) -> String {
     let mut o = String::new();
     let _ = write!(
         o,
@@ -118,7 +128,7 @@ pub fn assignment_report(ctx: &ReportContext, cmp: &Comparison, svg: &str) -> St
             "<tr{}><td>{:.2}</td><td class=\"l\">{}</td><td>{:.2}</td><td>{:.2}</td><td>{:+.2}</td><td>{:.2}</td><td class=\"l\">{}</td></tr>",
             if a.low_confidence { " class=\"low\"" } else { "" },
             a.measured_ev,
-            escape(&a.label),
+            escape(&label(&a.label)),
             a.predicted_ev,
             a.aligned_ev,
             tidy(a.residual_ev),
@@ -137,7 +147,7 @@ pub fn assignment_report(ctx: &ReportContext, cmp: &Comparison, svg: &str) -> St
         let _ = writeln!(
             o,
             "<tr><td></td><td class=\"l\">{} <i>(no peak)</i></td><td>{:.2}</td><td>{:.2}</td><td></td><td></td><td class=\"l\"></td></tr>",
-            escape(&b.label),
+            escape(&label(&b.label)),
             b.predicted_ev,
             b.aligned_ev
         );
@@ -160,6 +170,64 @@ pub fn assignment_report(ctx: &ReportContext, cmp: &Comparison, svg: &str) -> St
          They guide a measurement and its interpretation; they do not replace it. Check \
          assignments flagged low against other evidence (intensities at a second photon \
          energy, isotope or substitution series, angular distributions).</p>\n",
+    );
+    o.push_str("</body></html>\n");
+    o
+}
+
+/// The page of `bandcast spectrum --html`: the figure (one panel per core level when there
+/// are several), the bands with their chemical environments, the bands left out and notes.
+pub fn spectrum_page(run: &super::runs::SpectrumRun, flip: bool) -> String {
+    let b = run.spectrum;
+    let title = run.title();
+    let mut o = String::new();
+    let _ = write!(
+        o,
+        "<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\"><title>{}</title><style>{CSS}</style></head><body>\n",
+        escape(&title)
+    );
+    let _ = writeln!(o, "<h1>{}</h1>", escape(&title));
+    let _ = writeln!(o, "<p class=\"meta\">{}</p>", escape(&run.subtitle()));
+    o.push_str(&super::figures::spectrum_figure(run, flip));
+    let imax = b.sticks.iter().map(|s| s.intensity).fold(0.0, f64::max);
+    let mut sorted: Vec<_> = b.sticks.iter().collect();
+    sorted.sort_by(|x, y| x.binding_ev.total_cmp(&y.binding_ev));
+    o.push_str("<table><tr><th class=\"l\">band</th><th class=\"l\">environment</th><th>BE (eV)</th><th>KE (eV)</th><th>rel. int.</th><th>&Gamma;<sub>L</sub> (eV)</th></tr>\n");
+    for s in sorted {
+        let _ = writeln!(
+            o,
+            "<tr><td class=\"l\">{}</td><td class=\"l\">{}</td><td>{:.2}</td><td>{:.2}</td><td>{:.1}</td><td>{:.2}</td></tr>",
+            escape(&s.label),
+            escape(s.environment.as_deref().unwrap_or("")),
+            s.binding_ev,
+            s.kinetic_ev,
+            if imax > 0.0 { 100.0 * s.intensity / imax } else { 0.0 },
+            s.lorentzian_fwhm_ev
+        );
+    }
+    for e in &b.excluded {
+        let _ = writeln!(
+            o,
+            "<tr><td class=\"l\">{}</td><td class=\"l\"></td><td>{:.2}</td><td colspan=\"3\" class=\"l\"><i>not reached: {}</i></td></tr>",
+            escape(&e.label),
+            e.binding_ev,
+            escape(&e.reason)
+        );
+    }
+    o.push_str("</table>\n");
+    if !b.notes.is_empty() {
+        o.push_str("<ul class=\"small\">");
+        for n in &b.notes {
+            let _ = write!(o, "<li>{}</li>", escape(&n.to_string()));
+        }
+        o.push_str("</ul>\n");
+    }
+    o.push_str(
+        "<p class=\"small\">Environments are named from each atom's bonded neighbours \
+         (covalent radii, standard valences), as XPS components are usually named; they label \
+         the lines, they are not computed from the wavefunction.</p>\n\
+         <p class=\"note\">These are predictions from an approximate electronic-structure method. \
+         They guide a measurement and its interpretation; they do not replace it.</p>\n",
     );
     o.push_str("</body></html>\n");
     o

@@ -81,6 +81,16 @@ pub struct AssignJson<'a> {
     pub notes: Vec<String>,
     /// The same notes with their stable codes.
     pub note_details: &'a [Note],
+    /// Chemical environment of each core-level band, from its atom's bonded neighbours
+    /// (`chem::environment`); empty for valence bands.
+    pub environments: Vec<EnvironmentJson<'a>>,
+}
+
+/// A band and the chemical environment of its atom.
+#[derive(Serialize)]
+pub struct EnvironmentJson<'a> {
+    pub band: &'a str,
+    pub environment: &'a str,
 }
 
 impl<'a> AssignJson<'a> {
@@ -94,6 +104,17 @@ impl<'a> AssignJson<'a> {
             comparison: c,
             notes: messages(&c.notes),
             note_details: &c.notes,
+            environments: run
+                .assignment
+                .sticks
+                .iter()
+                .filter_map(|s| {
+                    s.environment.as_deref().map(|e| EnvironmentJson {
+                        band: &s.label,
+                        environment: e,
+                    })
+                })
+                .collect(),
         }
     }
 }

@@ -78,6 +78,24 @@ pub struct AssignRun<'a> {
     pub measured_comment: Option<String>,
 }
 
+impl AssignRun<'_> {
+    /// A pair's label with the chemical environment of each core level in it:
+    /// "C3 1s + C4 1s" → "C3 1s (C=O) + C4 1s (C–O)". Valence labels are unchanged.
+    pub fn display_label(&self, label: &str) -> String {
+        label
+            .split(" + ")
+            .map(|part| {
+                self.assignment
+                    .sticks
+                    .iter()
+                    .find(|s| s.label == part)
+                    .map_or_else(|| part.to_string(), |s| s.display_label())
+            })
+            .collect::<Vec<_>>()
+            .join(" + ")
+    }
+}
+
 pub fn region_name(r: Region) -> &'static str {
     match r {
         Region::Valence => "valence",

@@ -137,6 +137,12 @@ type LabelGroup = (f64, f64, Vec<String>, String);
 impl Plot {
     /// Render to a standalone SVG document (no external resources).
     pub fn render(&self) -> String {
+        self.render_clip("plotarea")
+    }
+
+    /// Render with `clip` as the id of the plot-area clip path (unique per panel when
+    /// several plots share one document).
+    fn render_clip(&self, clip: &str) -> String {
         let mut f = self.frame();
         let vis = self.visible_sticks(&f);
         let groups = label_groups(&f, &vis);
@@ -150,9 +156,9 @@ impl Plot {
         let room = ((6.0 * longest + 14.0) / f.ph).clamp(0.12, 0.6);
         f.ytop = self.y_max(&f) / (1.0 - room);
         let mut o = String::new();
-        self.header(&mut o, &f);
+        self.header(&mut o, &f, clip);
         self.axes(&mut o, &f);
-        self.curves(&mut o, &f);
+        self.curves(&mut o, &f, clip);
         sticks(&mut o, &f, &vis);
         self.stick_labels(&mut o, &f, &groups, &label_x);
         self.legend(&mut o, &f);
@@ -226,7 +232,7 @@ impl Plot {
     }
 
     /// Document start, background, title, subtitle and the clip region of the plot area.
-    fn header(&self, o: &mut String, f: &Frame) {
+    fn header(&self, o: &mut String, f: &Frame, clip: &str) {
         let (w, h, ml, mt, pw, ph) = (f.w, f.h, f.ml, f.mt, f.pw, f.ph);
         let _ = writeln!(
             o,
@@ -251,7 +257,7 @@ impl Plot {
         // clip region for curves
         let _ = writeln!(
             o,
-            r#"<defs><clipPath id="plotarea"><rect x="{ml}" y="{mt}" width="{pw}" height="{ph}"/></clipPath></defs>"#
+            r#"<defs><clipPath id="{clip}"><rect x="{ml}" y="{mt}" width="{pw}" height="{ph}"/></clipPath></defs>"#
         );
     }
 
@@ -326,7 +332,7 @@ impl Plot {
     }
 
     /// Every series as a path (with a light fill under it when asked).
-    fn curves(&self, o: &mut String, f: &Frame) {
+    fn curves(&self, o: &mut String, f: &Frame, clip: &str) {
         for s in &self.series {
             let mut d = String::new();
             let mut first = true;
@@ -351,7 +357,7 @@ impl Plot {
                 let (a, b) = (xs[0], xs[xs.len() - 1]);
                 let _ = writeln!(
                     o,
-                    r#"<path d="{d}L{:.2},{:.2} L{:.2},{:.2} Z" fill="{}" fill-opacity="0.12" stroke="none" clip-path="url(#plotarea)"/>"#,
+                    r#"<path d="{d}L{:.2},{:.2} L{:.2},{:.2} Z" fill="{}" fill-opacity="0.12" stroke="none" clip-path="url(#{clip})"/>"#,
                     f.px(b),
                     f.py(0.0),
                     f.px(a),
@@ -366,7 +372,7 @@ impl Plot {
             };
             let _ = writeln!(
                 o,
-                r#"<path d="{d}" fill="none" stroke="{}" stroke-width="{}"{dash} stroke-linejoin="round" clip-path="url(#plotarea)"/>"#,
+                r#"<path d="{d}" fill="none" stroke="{}" stroke-width="{}"{dash} stroke-linejoin="round" clip-path="url(#{clip})"/>"#,
                 s.color, s.stroke_width
             );
         }
@@ -429,6 +435,51 @@ impl Plot {
             ly += 16.0;
         }
     }
+}
+
+/// Several plots stacked in one SVG document under a common title: one panel per element
+/// of an XPS spectrum, each with its own energy range (its `title` names the panel, its
+/// `subtitle` is not drawn: the figure's is).
+pub fn render_panels(title: &str, subtitle: &str, panels: &[Plot]) -> String {
+    let width = panels.iter().map(|p| p.width).fold(0.0, f64::max);
+    let top = 50.0;
+    let height = top + panels.iter().map(|p| p.height).sum::<f64>();
+    let mut o = String::new();
+    let _ = writeln!(
+        o,
+        r#"<svg xmlns="http://www.w3.org/2000/svg" width="{width}" height="{height}" viewBox="0 0 {width} {height}" font-family="Helvetica, Arial, sans-serif">"#
+    );
+    let _ = writeln!(
+        o,
+        r##"<rect x="0" y="0" width="{width}" height="{height}" fill="#ffffff"/>"##
+    );
+    let _ = writeln!(
+        o,
+        r##"<text x="60" y="24" font-size="16" font-weight="bold" fill="#222">{}</text>"##,
+        escape(title)
+    );
+    let _ = writeln!(
+        o,
+        r##"<text x="60" y="42" font-size="11.5" fill="#555">{}</text>"##,
+        escape(subtitle)
+    );
+    let mut y = top;
+    for (k, p) in panels.iter().enumerate() {
+        let panel = Plot {
+            subtitle: String::new(),
+            ..p.clone()
+        };
+        let svg = panel.render_clip(&format!("plotarea{}", k + 1));
+        // the panel as a nested <svg> placed at its offset
+        let _ = write!(
+            o,
+            "{}",
+            svg.replacen("<svg ", &format!(r#"<svg x="0" y="{y}" "#), 1)
+        );
+        y += p.height;
+    }
+    o.push_str("</svg>\n");
+    o
 }
 
 /// Sticks as vertical lines from the axis.

@@ -39,7 +39,7 @@ pub fn spectrum_table(run: &SpectrumRun, written: &[(&str, &Path)], hint: NoteHi
     let wlabel = b
         .sticks
         .iter()
-        .map(|s| s.label.chars().count())
+        .map(|s| s.display_label().chars().count())
         .max()
         .unwrap_or(4)
         .max(4);
@@ -54,7 +54,7 @@ pub fn spectrum_table(run: &SpectrumRun, written: &[(&str, &Path)], hint: NoteHi
         let _ = writeln!(
             o,
             "  {:<wlabel$}  {:>10.2}  {:>10.2}  {:>9.1}  {:>9.2}",
-            s.label,
+            s.display_label(),
             s.binding_ev,
             s.kinetic_ev,
             if imax > 0.0 {
@@ -133,11 +133,11 @@ pub fn assignment_table(run: &AssignRun, hint: NoteHint) -> String {
     let w = cmp
         .assignments
         .iter()
-        .map(|a| a.label.chars().count())
+        .map(|a| run.display_label(&a.label).chars().count())
         .chain(
             cmp.unseen_bands
                 .iter()
-                .map(|b| b.label.chars().count() + 10),
+                .map(|b| run.display_label(&b.label).chars().count() + 10),
         )
         .max()
         .unwrap_or(8)
@@ -160,7 +160,7 @@ pub fn assignment_table(run: &AssignRun, hint: NoteHint) -> String {
             o,
             "  {:>9.2}  {:<w$}  {:>9.2}  {:>9.2}  {:>+8.2}  {:>10.2}{flag}",
             a.measured_ev,
-            a.label,
+            run.display_label(&a.label),
             a.predicted_ev,
             a.aligned_ev,
             tidy(a.residual_ev),
@@ -175,7 +175,7 @@ pub fn assignment_table(run: &AssignRun, hint: NoteHint) -> String {
             o,
             "  {:>9}  {:<w$}  {:>9.2}  {:>9.2}",
             "",
-            format!("{} (no peak)", b.label),
+            format!("{} (no peak)", run.display_label(&b.label)),
             b.predicted_ev,
             b.aligned_ev
         );
@@ -322,7 +322,17 @@ pub fn core_table(r: &CoreResult) -> String {
         .core_levels
         .iter()
         .any(|l| l.relativistic_correction_ev.is_some());
-    s.push_str("level      Koopmans/eV  ΔSCF/eV");
+    let we = r
+        .core_levels
+        .iter()
+        .map(|l| l.environment.chars().count())
+        .max()
+        .unwrap_or(0)
+        .max(11);
+    s.push_str(&format!(
+        "level      {:<we$}  Koopmans/eV  ΔSCF/eV",
+        "environment"
+    ));
     if has_rel {
         s.push_str("  rel./eV  ΔSCF+rel/eV");
     }
@@ -343,8 +353,8 @@ pub fn core_table(r: &CoreResult) -> String {
     s.push_str("  shift/eV   ⟨S²⟩   hole  localised  kept start\n");
     for l in &r.core_levels {
         s.push_str(&format!(
-            "{:<10} {:>11.2} {:>8.2}",
-            l.label, l.koopmans_ev, l.dscf_ev
+            "{:<10} {:<we$}  {:>11.2} {:>8.2}",
+            l.label, l.environment, l.koopmans_ev, l.dscf_ev
         ));
         if has_rel {
             s.push_str(&format!(

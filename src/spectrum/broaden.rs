@@ -123,6 +123,8 @@ mod tests {
             gaussian_fwhm_ev: 0.3,
             lorentzian_fwhm_ev: 0.0,
             component: 0,
+            environment: None,
+            core_level: None,
         }
     }
 

@@ -46,6 +46,24 @@ pub struct Stick {
     pub lorentzian_fwhm_ev: f64,
     /// Index of the input (molecule) this line belongs to.
     pub component: usize,
+    /// Chemical environment of a core level's atom ("C=O", `chem::environment`); absent
+    /// for valence bands.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub environment: Option<String>,
+    /// Element and shell of a core line ("C 1s", "S 2p"; None for valence bands): figures
+    /// draw one panel per value, each over its own energy range.
+    #[serde(skip)]
+    pub core_level: Option<String>,
+}
+
+impl Stick {
+    /// The label with the environment, as figures and tables show it: "C3 1s (C=O)".
+    pub fn display_label(&self) -> String {
+        match &self.environment {
+            Some(e) if !e.is_empty() => format!("{} ({e})", self.label),
+            _ => self.label.clone(),
+        }
+    }
 }
 
 /// A band left out of the spectrum and why.
@@ -135,9 +153,28 @@ pub fn sticks_from_bands(
             gaussian_fwhm_ev: opts.gaussian_fwhm_ev,
             lorentzian_fwhm_ev: lorentz,
             component: opts.component,
+            environment: b.environment.clone(),
+            core_level: core_level_name(b),
         });
     }
     (sticks, excluded)
+}
+
+/// Element and shell of a core band from its label ("C3 1s" → "C 1s", "S1 2p3/2" → "S 2p").
+fn core_level_name(b: &Band) -> Option<String> {
+    if b.region != Region::Core {
+        return None;
+    }
+    let z = core_z(b)?;
+    let shell: String = b
+        .label
+        .split_whitespace()
+        .nth(1)
+        .unwrap_or("1s")
+        .chars()
+        .take(2)
+        .collect();
+    Some(format!("{} {shell}", crate::chem::elements::symbol(z)))
 }
 
 /// Element of a core band from its label ("C3 1s" → 6).

@@ -20,8 +20,8 @@
 //! (typically a few tenths of an eV, sign depending on the orbital), so the absolute
 //! positions are guides; the band shapes depend on the geometry change and the frequencies.
 
-use crate::analysis::bonding::bonded_pairs;
 use crate::analysis::symmetry::{detect_point_group, label_orbitals, DEFAULT_TOLERANCE};
+use crate::chem::bonds::bonded_pairs;
 use crate::chem::masses::most_abundant_isotope_mass;
 use crate::chem::molecule::distance;
 use crate::chem::Molecule;
