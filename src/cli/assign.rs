@@ -12,6 +12,7 @@ use bandcast::report::text::assignment_table;
 use bandcast::report::write_atomic;
 use bandcast::spectrum::assignment::{assign_bands, check_trace, AssignmentOptions};
 use bandcast::spectrum::measured::{read_measured_with_header, Measured};
+use bandcast::spectrum::method_error::BasisClass;
 use bandcast::spectrum::note::Note;
 use bandcast::spectrum::photon::{Axis, Photon};
 use bandcast::{Error, Result};
@@ -140,6 +141,7 @@ pub fn run(args: Args) -> Result<()> {
         max_residual_ev: max_residual,
         max_shift_ev: max_shift,
         fit_scale: args.fit_scale,
+        basis: BasisClass::of(&args.predict.basis),
     };
     check_trace(&measured, &opts).map_err(|e| with_file(e, &args.measured))?;
     let mol = args.molecule.load()?;

@@ -5,10 +5,10 @@
 use super::assign::PredictedLine;
 use super::compare::{check_measured, compare, CompareOptions, Comparison};
 use super::measured::Measured;
-use super::method_error::MethodError;
+use super::method_error::{BasisClass, MethodError};
 use super::note::Note;
 use super::photon::Photon;
-use super::predicted::{sticks_from_bands, IntensityModel, Stick, StickOptions};
+use super::predicted::{core_z, sticks_from_bands, IntensityModel, Stick, StickOptions};
 use crate::error::Result;
 use crate::ionization::{Band, Region};
 
@@ -29,6 +29,8 @@ pub struct AssignmentOptions {
     pub max_shift_ev: Option<f64>,
     /// Fit a linear scale as well as a shift.
     pub fit_scale: bool,
+    /// Which error statistics the prediction's basis set gets (`method_error.rs`).
+    pub basis: BasisClass,
 }
 
 impl AssignmentOptions {
@@ -41,6 +43,7 @@ impl AssignmentOptions {
             max_residual_ev: None,
             max_shift_ev: None,
             fit_scale: false,
+            basis: BasisClass::Larger,
         }
     }
 
@@ -120,10 +123,14 @@ pub fn assign_bands(
         })
         .collect();
     let mut copt = opts.compare_options();
-    // the error statistics of the method that made the bands (all bands share one)
+    // the error statistics of the method that made the bands (all bands share one), in
+    // the prediction's class of basis set and for the elements of its core levels
+    let mut elements: Vec<u32> = bands.iter().filter_map(core_z).collect();
+    elements.sort_unstable();
+    elements.dedup();
     copt.method_error = bands
         .first()
-        .and_then(|b| MethodError::of(&b.method, opts.region));
+        .and_then(|b| MethodError::for_basis(&b.method, opts.region, opts.basis, &elements));
     let mut comparison = compare(&lines, measured, &copt)?;
     if !excluded.is_empty() {
         comparison.notes.push(Note::BandsAbovePhoton {

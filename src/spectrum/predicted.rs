@@ -178,7 +178,7 @@ fn core_level_name(b: &Band) -> Option<String> {
 }
 
 /// Element of a core band from its label ("C3 1s" → 6).
-fn core_z(b: &Band) -> Option<u32> {
+pub fn core_z(b: &Band) -> Option<u32> {
     let sym: String = b
         .label
         .chars()
