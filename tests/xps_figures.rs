@@ -1,0 +1,155 @@
+//! XPS figures and labels end to end: one panel per element and shell, each over its own
+//! binding-energy range, and core levels named by their chemical environment (common
+//! practice of naming XPS components by functional group: methanol's carbon is C–O, its
+//! oxygen C–O–H; FEC's carbonate carbon O–C(=O)–O) in JSON, tables, SVG and HTML.
+
+mod common;
+
+use std::process::Command;
+
+fn bandcast(args: &[&str]) -> std::process::Output {
+    let out = Command::new(env!("CARGO_BIN_EXE_bandcast"))
+        .args(args)
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    out
+}
+
+/// The numeric tick labels of one SVG panel.
+fn ticks(svg: &str) -> Vec<f64> {
+    svg.split("text-anchor=\"middle\" fill=\"#333\">")
+        .skip(1)
+        .filter_map(|s| s.split('<').next()?.parse().ok())
+        .collect()
+}
+
+#[test]
+fn methanol_core_spectrum_has_a_panel_per_element_and_environments() {
+    let svg = common::temp_path("xps", "methanol.svg");
+    let html = common::temp_path("xps", "methanol.html");
+    let out = bandcast(&[
+        "spectrum",
+        concat!(env!("CARGO_MANIFEST_DIR"), "/tests/data/gw100/methanol.xyz"),
+        "--basis",
+        "sto-3g",
+        "--region",
+        "core",
+        "--quick",
+        "--photon",
+        "alka",
+        "--svg",
+        svg.to_str().unwrap(),
+        "--html",
+        html.to_str().unwrap(),
+        "--json",
+    ]);
+    let j: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let env: Vec<(&str, &str)> = j["bands"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|b| {
+            (
+                b["label"].as_str().unwrap(),
+                b["environment"].as_str().unwrap(),
+            )
+        })
+        .collect();
+    assert_eq!(env, [("C1 1s", "C–O"), ("O2 1s", "C–O–H")]);
+    let text = std::fs::read_to_string(&svg).unwrap();
+    // two nested panels, C 1s (lower binding energy) first, each with its own clip path
+    let panels: Vec<&str> = text.split("<svg x=\"0\" y=").skip(1).collect();
+    assert_eq!(panels.len(), 2, "{text}");
+    assert!(panels[0].contains(">C 1s<") && panels[1].contains(">O 1s<"));
+    assert!(text.contains("id=\"plotarea1\"") && text.contains("id=\"plotarea2\""));
+    // each panel's axis covers its own level only: C 1s near 285–300 eV, O 1s near 530 eV
+    let (c, o) = (ticks(panels[0]), ticks(panels[1]));
+    assert!(
+        !c.is_empty() && c.iter().all(|&t| (270.0..320.0).contains(&t)),
+        "{c:?}"
+    );
+    assert!(
+        !o.is_empty() && o.iter().all(|&t| (510.0..560.0).contains(&t)),
+        "{o:?}"
+    );
+    assert!(text.contains("C1 1s (C–O)") && text.contains("O2 1s (C–O–H)"));
+    let page = std::fs::read_to_string(&html).unwrap();
+    assert!(page.contains("<td class=\"l\">C–O–H</td>") && page.contains(">O 1s<"));
+    for p in [svg, html] {
+        let _ = std::fs::remove_file(p);
+    }
+}
+
+#[test]
+fn one_element_is_one_plot() {
+    let svg = common::temp_path("xps", "methanol-c.svg");
+    bandcast(&[
+        "spectrum",
+        concat!(env!("CARGO_MANIFEST_DIR"), "/tests/data/gw100/methanol.xyz"),
+        "--basis",
+        "sto-3g",
+        "--region",
+        "core",
+        "--element",
+        "C",
+        "--quick",
+        "--photon",
+        "alka",
+        "--svg",
+        svg.to_str().unwrap(),
+    ]);
+    let text = std::fs::read_to_string(&svg).unwrap();
+    assert_eq!(text.matches("<svg").count(), 1);
+    let _ = std::fs::remove_file(svg);
+}
+
+#[test]
+fn assign_names_the_environments() {
+    // The demo's synthetic FEC C 1s trace (examples/demo-synthetic-c1s.csv, invented demo
+    // data): only the labels are checked here.
+    let html = common::temp_path("xps", "fec.html");
+    let m = concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/examples/demo-synthetic-c1s.csv"
+    );
+    let fec = concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/molecules/fluoroethylene-carbonate.xyz"
+    );
+    let args = [
+        "assign",
+        fec,
+        "--basis",
+        "sto-3g",
+        "--region",
+        "core",
+        "--element",
+        "C",
+        "--quick",
+        "--photon",
+        "alka",
+        "--measured",
+        m,
+    ];
+    let mut with_json = args.to_vec();
+    with_json.extend(["--json", "--html", html.to_str().unwrap()]);
+    let out = bandcast(&with_json);
+    let j: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let envs = j["environments"].as_array().unwrap();
+    assert!(envs
+        .iter()
+        .any(|e| e["band"] == "C1 1s" && e["environment"] == "O–C(=O)–O"));
+    assert!(envs
+        .iter()
+        .any(|e| e["band"] == "C5 1s" && e["environment"] == "F–C–O"));
+    let page = std::fs::read_to_string(&html).unwrap();
+    assert!(page.contains("C1 1s (O–C(=O)–O)"));
+    let text = String::from_utf8(bandcast(&args).stdout).unwrap();
+    assert!(text.contains("C6 1s (C–O)"), "{text}");
+    let _ = std::fs::remove_file(html);
+}
