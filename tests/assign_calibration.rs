@@ -95,15 +95,30 @@ fn make_case(
     drop: Option<usize>,
     koopmans_order: bool,
 ) -> Case {
+    make_case_with(mol, method, noise, resolution, rng, &[drop], koopmans_order, 0.3)
+}
+
+/// `make_case` with several bands left out and a calibration shift up to ± `cal_max` eV.
+#[allow(clippy::too_many_arguments)]
+fn make_case_with(
+    mol: &[Band],
+    method: &'static str,
+    noise: f64,
+    resolution: f64,
+    rng: &mut Rng,
+    drops: &[Option<usize>],
+    koopmans_order: bool,
+    cal_max: f64,
+) -> Case {
     let me = MethodError::of(method, Region::Valence).unwrap();
-    let cal = 0.3 * (2.0 * rng.uniform() - 1.0);
+    let cal = cal_max * (2.0 * rng.uniform() - 1.0);
     let lo = mol.iter().map(|b| b.ie).fold(f64::INFINITY, f64::min) - 2.0;
     let hi = (mol.iter().map(|b| b.ie).fold(0.0, f64::max) + 2.0).min(21.0);
     let n = ((hi - lo) / 0.01).round() as usize + 1;
     let mut truth = Vec::new();
     let mut comps = Vec::new();
     for (k, b) in mol.iter().enumerate() {
-        if drop == Some(k) {
+        if drops.contains(&Some(k)) {
             continue;
         }
         let w = (b.fwhm * b.fwhm + resolution * resolution).sqrt();
@@ -202,6 +217,70 @@ fn dataset(parity: u64) -> Vec<([f64; 5], bool, f64)> {
         }
     }
     out
+}
+
+/// Harder traces (held-back parity only): noise 10 % of the highest band, resolution 0.5 eV
+/// (neighbouring bands merge), calibration shifts up to ± 0.6 eV and two bands left out in
+/// one trace of two. Predictions as in `dataset`.
+fn hard_dataset() -> Vec<([f64; 5], bool, f64)> {
+    let all = bands();
+    let mut out = Vec::new();
+    let mut seed = 7001;
+    for mol_name in MOLECULES {
+        let mol: Vec<Band> = all
+            .iter()
+            .filter(|b| b.molecule == mol_name)
+            .cloned()
+            .collect();
+        for method in METHODS {
+            for rep in 0..6 {
+                seed += 2;
+                let mut rng = Rng(seed * 0x9E37_79B9_7F4A_7C15 | 1);
+                let n = mol.len() as f64;
+                let drops = if rep % 2 == 1 {
+                    vec![
+                        Some((rng.uniform() * n) as usize),
+                        Some((rng.uniform() * n) as usize),
+                    ]
+                } else {
+                    vec![None]
+                };
+                let case = make_case_with(&mol, method, 0.1, 0.5, &mut rng, &drops, false, 0.6);
+                let Ok(c) = compare(&case.lines, &case.measured, &{
+                    let mut o = CompareOptions::defaults(Region::Valence, 0.3);
+                    o.method_error = MethodError::of(case.method, Region::Valence);
+                    o
+                }) else {
+                    continue;
+                };
+                for p in &c.assignments {
+                    out.push((
+                        [0.0; 5],
+                        right(&case, p.measured_ev, &p.label),
+                        p.confidence,
+                    ));
+                }
+            }
+        }
+    }
+    out
+}
+
+#[test]
+#[ignore = "measures the low bins with harder traces added; see docs/spectrum-and-assign.md"]
+fn low_bins_with_harder_traces() {
+    let mut data = dataset(1);
+    data.extend(hard_dataset());
+    let t = table(&data);
+    eprintln!("with harder traces: bin | pairs | mean confidence | fraction right");
+    for r in &t {
+        eprintln!("{:.1}–{:.1} | {} | {:.3} | {:.3}", r.0, r.1, r.2, r.3, r.4);
+    }
+    for r in &t {
+        if r.2 >= 25 {
+            assert!((r.3 - r.4).abs() <= 0.1, "bin {:.1}–{:.1}: {r:?}", r.0, r.1);
+        }
+    }
 }
 
 /// Reliability table: (bin low, bin high, count, mean confidence, fraction right).
