@@ -153,3 +153,53 @@ fn assign_names_the_environments() {
     assert!(text.contains("C6 1s (C–O)"), "{text}");
     let _ = std::fs::remove_file(html);
 }
+
+#[test]
+fn assign_draws_a_panel_per_element() {
+    // A rendering check only: an invented two-peak trace (C 1s and O 1s regions, 3 eV above
+    // methanol's STO-3G levels) so that the prediction holds two elements.
+    let data = common::temp_path("xps", "methanol-xps.csv");
+    let html = common::temp_path("xps", "methanol-assign.html");
+    let mut text =
+        String::from("# invented rendering-test trace, not a measurement\nenergy,intensity\n");
+    for i in 0..=5300 {
+        let x = 280.0 + 0.05 * i as f64;
+        let mut v = 10.0 + 0.5 * (7.3 * x).sin();
+        for p in [291.0, 537.0] {
+            v += 100.0 * (-0.5 * ((x - p) / 0.45f64).powi(2)).exp();
+        }
+        text.push_str(&format!("{x:.2},{v:.4}\n"));
+    }
+    std::fs::write(&data, text).unwrap();
+    bandcast(&[
+        "assign",
+        concat!(env!("CARGO_MANIFEST_DIR"), "/tests/data/gw100/methanol.xyz"),
+        "--basis",
+        "sto-3g",
+        "--region",
+        "core",
+        "--quick",
+        "--photon",
+        "alka",
+        "--measured",
+        data.to_str().unwrap(),
+        "--html",
+        html.to_str().unwrap(),
+    ]);
+    let page = std::fs::read_to_string(&html).unwrap();
+    let panels: Vec<&str> = page.split("<svg x=\"0\" y=").skip(1).collect();
+    assert_eq!(panels.len(), 2);
+    assert!(panels[0].contains(">C 1s<") && panels[1].contains(">O 1s<"));
+    let (c, o) = (ticks(panels[0]), ticks(panels[1]));
+    assert!(
+        !c.is_empty() && c.iter().all(|&t| (280.0..305.0).contains(&t)),
+        "{c:?}"
+    );
+    assert!(
+        !o.is_empty() && o.iter().all(|&t| (520.0..546.0).contains(&t)),
+        "{o:?}"
+    );
+    for p in [data, html] {
+        let _ = std::fs::remove_file(p);
+    }
+}
