@@ -30,14 +30,14 @@
 //! not pair i with j (global shift/scale held fixed); the residual against the method's
 //! single-band scatter; the intensity ratio; and whether the pair survives the prediction
 //! moving within its method's error: every two bands closer than twice the method's
-//! standard deviation σ are moved σ towards each other and past (i up by σ, k down by σ)
+//! standard deviation σ (0.7 eV, Koopmans', for a method without error statistics) are moved σ towards each other and past (i up by σ, k down by σ)
 //! and the matching is redone; a pair that changes is flagged low-confidence whatever its
 //! number.
 
 use serde::Serialize;
 
 use super::band_shape::{PredictedShape, ShapeCheck, MAX_SHAPE_LOG};
-use super::confidence::{calibrated, PairEvidence};
+use super::confidence::{calibrated, PairEvidence, UNKNOWN_SIGMA_EV};
 use super::hungarian;
 
 /// A predicted band (or a group of bands closer than the merge tolerance).
@@ -280,7 +280,9 @@ pub fn assigned_pairs(
     let mut extra = intensity_costs(&ratios, opt.intensity_ev);
     add_shape_costs(&mut extra, ctx.shapes, opt.shape_ev);
     let best = match_lines(&aligned, peaks, Some(&extra), opt, None);
-    let swapped = swap_sensitive(&aligned, peaks, &extra, opt, &best, ctx.sigma_ev);
+    // a method without error statistics is taken as scattered as Koopmans' (confidence.rs)
+    let swap_sigma = Some(ctx.sigma_ev.unwrap_or(UNKNOWN_SIGMA_EV));
+    let swapped = swap_sensitive(&aligned, peaks, &extra, opt, &best, swap_sigma);
     let mut rows = Vec::new();
     for &(i, j) in &best.pairs {
         let alt = match_lines(&aligned, peaks, Some(&extra), opt, Some((i, j)));
