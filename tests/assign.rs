@@ -54,11 +54,7 @@ fn synthetic(
 
 fn lines(v: &[(&str, f64)]) -> Vec<PredictedLine> {
     v.iter()
-        .map(|(l, e)| PredictedLine {
-            label: l.to_string(),
-            energy_ev: *e,
-            intensity: 2.0,
-        })
+        .map(|(l, e)| PredictedLine::new(*l, *e, 2.0))
         .collect()
 }
 
@@ -203,11 +199,7 @@ fn predicted_lines(xyz: &str, basis: &str) -> Vec<PredictedLine> {
     );
     sticks
         .iter()
-        .map(|s| PredictedLine {
-            label: s.label.clone(),
-            energy_ev: s.binding_ev,
-            intensity: s.intensity,
-        })
+        .map(|s| PredictedLine::new(s.label.clone(), s.binding_ev, s.intensity))
         .collect()
 }
 

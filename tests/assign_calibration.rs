@@ -7,7 +7,11 @@
 //! Predictions: an honest "prediction with method error" model — published position +
 //! the method's mean error + normal scatter of the method's standard deviation
 //! (spectrum/method_error.rs: koopmans, ep2, eom-mp2, eom-ccsd), intensities occupation ×
-//! degeneracy. A pair is right when its band is one of the true bands under the peak.
+//! degeneracy, widths the estimate from the orbital's bonding character
+//! (spectrum/band_shape.rs; the file's `character` column) — as `assign` predicts them
+//! without a vibronic envelope. The comparison is run at the trace's instrument resolution
+//! (the `--fwhm` a user gives). A pair is right when its band is one of the true bands under
+//! the peak.
 //!
 //! `fit_confidence` (ignored; run by hand) fits the coefficients of spectrum/confidence.rs
 //! on the training half (even seeds); `calibration_on_held_back_half` checks the committed
@@ -16,8 +20,9 @@
 
 use bandcast::ionization::Region;
 use bandcast::spectrum::assign::PredictedLine;
+use bandcast::spectrum::band_shape::{intrinsic_fwhm_estimate, PredictedShape};
 use bandcast::spectrum::compare::{compare, CompareOptions, Comparison};
-use bandcast::spectrum::confidence::{features, logistic, PairEvidence};
+use bandcast::spectrum::confidence::{features, logistic, PairEvidence, FEATURES};
 use bandcast::spectrum::measured::Measured;
 use bandcast::spectrum::method_error::MethodError;
 
@@ -45,6 +50,7 @@ struct Band {
     area: f64,
     fwhm: f64,
     koopmans: Option<f64>,
+    character: String,
 }
 
 fn bands() -> Vec<Band> {
@@ -61,6 +67,7 @@ fn bands() -> Vec<Band> {
                 area: f[4].parse().unwrap(),
                 fwhm: f[5].parse().unwrap(),
                 koopmans: f[6].parse().ok(),
+                character: f[7].into(),
             }
         })
         .collect()
@@ -82,6 +89,8 @@ struct Case {
     /// True band positions in the trace (after the calibration shift), labels, FWHM.
     truth: Vec<(f64, String, f64)>,
     method: &'static str,
+    /// Instrument FWHM (eV).
+    resolution: f64,
 }
 
 /// Trace every 0.01 eV over [first − 2, last + 2] eV.
@@ -156,6 +165,9 @@ fn make_case_with(
                 _ => b.ie + me.mean_ev + me.sd_ev * rng.normal(),
             },
             intensity: 2.0 * b.degeneracy,
+            shape: Some(PredictedShape::Width(intrinsic_fwhm_estimate(Some(
+                &b.character,
+            )))),
         })
         .collect();
     Case {
@@ -166,11 +178,12 @@ fn make_case_with(
         lines,
         truth,
         method,
+        resolution,
     }
 }
 
 fn run(case: &Case) -> Comparison {
-    let mut opt = CompareOptions::defaults(Region::Valence, 0.3);
+    let mut opt = CompareOptions::defaults(Region::Valence, case.resolution);
     opt.method_error = MethodError::of(case.method, Region::Valence);
     compare(&case.lines, &case.measured, &opt).expect("synthetic trace has peaks")
 }
@@ -187,7 +200,7 @@ fn right(case: &Case, measured_ev: f64, label: &str) -> bool {
 }
 
 /// (features, right, confidence) of every pair of the cases with seeds of the given parity.
-fn dataset(parity: u64) -> Vec<([f64; 5], bool, f64)> {
+fn dataset(parity: u64) -> Vec<([f64; FEATURES], bool, f64)> {
     let all = bands();
     let mut out = Vec::new();
     let mut seed = 1000 + parity;
@@ -213,6 +226,7 @@ fn dataset(parity: u64) -> Vec<([f64; 5], bool, f64)> {
                                 sigma_ev: MethodError::of(method, Region::Valence).map(|m| m.sd_ev),
                                 intensity_log_ratio: p.intensity_log_ratio,
                                 swaps: p.swaps_within_error,
+                                shape_mismatch: p.shape.as_ref().map(|s| s.mismatch),
                             };
                             out.push((
                                 features(&ev),
@@ -299,7 +313,7 @@ fn low_bins_with_harder_traces() {
 }
 
 /// Reliability table: (bin low, bin high, count, mean confidence, fraction right).
-fn table(data: &[([f64; 5], bool, f64)]) -> Vec<(f64, f64, usize, f64, f64)> {
+fn table(data: &[([f64; FEATURES], bool, f64)]) -> Vec<(f64, f64, usize, f64, f64)> {
     (0..5)
         .map(|k| {
             let (lo, hi) = (0.2 * k as f64, 0.2 * (k + 1) as f64);
@@ -339,53 +353,54 @@ fn calibration_on_held_back_half() {
 fn fit_confidence() {
     let data = dataset(0);
     // Newton's method for the logistic log-likelihood with a small ridge (1e-3).
-    let mut b = [0.0f64; 5];
+    let mut b = [0.0f64; FEATURES];
     for _ in 0..50 {
-        let mut g = [0.0f64; 5];
-        let mut h = [[0.0f64; 5]; 5];
+        let mut g = [0.0f64; FEATURES];
+        let mut h = [[0.0f64; FEATURES]; FEATURES];
         for (x, y, _) in &data {
             let p = logistic(&b, x);
             let r = (if *y { 1.0 } else { 0.0 }) - p;
-            for i in 0..5 {
+            for i in 0..FEATURES {
                 g[i] += r * x[i];
-                for j in 0..5 {
+                for j in 0..FEATURES {
                     h[i][j] += p * (1.0 - p) * x[i] * x[j];
                 }
             }
         }
-        for i in 0..5 {
+        for i in 0..FEATURES {
             g[i] -= 1e-3 * b[i];
             h[i][i] += 1e-3;
         }
         let step = solve(h, g);
-        for i in 0..5 {
+        for i in 0..FEATURES {
             b[i] += step[i];
         }
     }
     let n_right = data.iter().filter(|d| d.1).count();
     println!("pairs {} right {}", data.len(), n_right);
-    println!("pub const COEF: [f64; 5] = {b:?};");
+    println!("pub const COEF: [f64; FEATURES] = {b:?};");
 }
 
-/// Gaussian elimination with partial pivoting for the 5×5 Newton step.
-fn solve(mut a: [[f64; 5]; 5], mut v: [f64; 5]) -> [f64; 5] {
-    for c in 0..5 {
-        let p = (c..5)
+/// Gaussian elimination with partial pivoting for the Newton step.
+fn solve(mut a: [[f64; FEATURES]; FEATURES], mut v: [f64; FEATURES]) -> [f64; FEATURES] {
+    const N: usize = FEATURES;
+    for c in 0..N {
+        let p = (c..N)
             .max_by(|&i, &j| a[i][c].abs().total_cmp(&a[j][c].abs()))
             .unwrap();
         a.swap(c, p);
         v.swap(c, p);
-        for r in c + 1..5 {
+        for r in c + 1..N {
             let f = a[r][c] / a[c][c];
-            for k in c..5 {
+            for k in c..N {
                 a[r][k] -= f * a[c][k];
             }
             v[r] -= f * v[c];
         }
     }
-    let mut x = [0.0; 5];
-    for r in (0..5).rev() {
-        let s: f64 = (r + 1..5).map(|k| a[r][k] * x[k]).sum();
+    let mut x = [0.0; N];
+    for r in (0..N).rev() {
+        let s: f64 = (r + 1..N).map(|k| a[r][k] * x[k]).sum();
         x[r] = (v[r] - s) / a[r][r];
     }
     x

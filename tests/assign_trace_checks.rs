@@ -154,11 +154,7 @@ fn scale_on_three_peaks_warns_of_few_degrees_of_freedom() {
     };
     let lines: Vec<PredictedLine> = [("1b1", 13.85), ("3a1", 15.9), ("1b2", 19.5)]
         .iter()
-        .map(|&(l, e)| PredictedLine {
-            label: l.into(),
-            energy_ev: e,
-            intensity: 2.0,
-        })
+        .map(|&(l, e)| PredictedLine::new(l, e, 2.0))
         .collect();
     let mut opt = CompareOptions::defaults(Region::Valence, 0.3);
     opt.fit_scale = true;

@@ -5,12 +5,13 @@
 
 use std::path::{Path, PathBuf};
 
+use bandcast::ionization::Region;
 use bandcast::report::html::assignment_page;
 use bandcast::report::json::AssignJson;
 use bandcast::report::runs::AssignRun;
 use bandcast::report::text::assignment_table;
 use bandcast::report::write_atomic;
-use bandcast::spectrum::assignment::{assign_bands, check_trace, AssignmentOptions};
+use bandcast::spectrum::assignment::{assign_bands_with_envelopes, check_trace, AssignmentOptions};
 use bandcast::spectrum::measured::{read_measured_with_header, Measured};
 use bandcast::spectrum::method_error::BasisClass;
 use bandcast::spectrum::note::Note;
@@ -59,6 +60,25 @@ pub struct Args {
     /// Write a self-contained HTML report.
     #[arg(long, value_name = "OUT.html")]
     pub html: Option<PathBuf>,
+    // --- vibronic envelopes (cli/vibronic.rs) ---
+    /// Compute the vibrational structure of the lowest bands (--vibronic-count, default 3;
+    /// harmonic Franck–Condon with Duschinsky rotation, as in `ionize --vibronic`) and match
+    /// by shape too: the envelope's width, and where the trace's resolution (--fwhm) resolves
+    /// the progression, its spacing and number of visible quanta. Valence only.
+    #[arg(long)]
+    pub vibronic: bool,
+    /// Number of bands with --vibronic.
+    #[arg(long, value_name = "N", requires = "vibronic")]
+    pub vibronic_count: Option<usize>,
+    /// With --vibronic: populate the neutral's vibrational levels at this temperature in
+    /// kelvin (Boltzmann), adding hot-band lines below the 0–0 line. Default 0 K.
+    #[arg(long, value_name = "K", requires = "vibronic")]
+    pub temperature: Option<f64>,
+    /// With --vibronic: basis of the correlated vertical energies of the vibronic bands
+    /// (default: --basis; only their shapes are used in the match).
+    #[arg(long, value_name = "NAME", requires = "vibronic")]
+    pub vertical_basis: Option<String>,
+    // --- end vibronic ---
 }
 
 fn positive(name: &str, v: Option<f64>) -> Result<Option<f64>> {
@@ -90,6 +110,12 @@ pub fn run(args: Args) -> Result<()> {
     let max_residual = positive("--max-residual", args.max_residual)?;
     let max_shift = positive("--max-shift", args.max_shift)?;
     args.predict.check()?;
+    if args.vibronic && args.predict.region != Region::Valence {
+        return Err(Error::input(
+            "--vibronic compares the vibrational structure of valence bands; it does not apply \
+             to core levels",
+        ));
+    }
     // The measured file first: a malformed file is reported before any computation.
     let (raw, header) = read_measured_with_header(&args.measured)?;
     let mut pre_notes = Vec::new();
@@ -151,7 +177,23 @@ pub fn run(args: Args) -> Result<()> {
             looks_kinetic(&measured, &prediction.bands, p, &args.measured)?;
         }
     }
-    let mut assignment = assign_bands(&prediction.bands, &measured, &opts)?;
+    // --- vibronic envelopes (cli/vibronic.rs) ---
+    let vibronic = if args.vibronic {
+        let set = super::vibronic::Settings {
+            basis: &args.predict.basis,
+            count: args.vibronic_count,
+            temperature_k: args.temperature.unwrap_or(0.0),
+            vertical_basis: args.vertical_basis.as_deref(),
+            memory_gib: args.predict.memory,
+            verbose: args.predict.verbose,
+        };
+        super::vibronic::compute(&mol, &set)?.1
+    } else {
+        Vec::new()
+    };
+    // --- end vibronic ---
+    let mut assignment =
+        assign_bands_with_envelopes(&prediction.bands, &vibronic, &measured, &opts)?;
     assignment.comparison.notes.splice(0..0, pre_notes);
     assignment
         .comparison

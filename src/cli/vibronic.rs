@@ -192,7 +192,9 @@ fn duration(s: f64) -> String {
     }
 }
 
-fn compute(mol: &Molecule, set: &Settings) -> Result<(Neutral, Vec<VibronicBand>)> {
+/// The vibronic bands of `mol` with the cost estimate, memory refusal and progress of every
+/// command that computes them (ionize, spectrum, assign).
+pub fn compute(mol: &Molecule, set: &Settings) -> Result<(Neutral, Vec<VibronicBand>)> {
     let n = set.count.unwrap_or(DEFAULT_COUNT);
     if n == 0 {
         return Err(Error::input("--count must be at least 1"));

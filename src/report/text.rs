@@ -180,9 +180,48 @@ pub fn assignment_table(run: &AssignRun, hint: NoteHint) -> String {
             b.aligned_ev
         );
     }
+    shape_lines(&mut o, cmp);
     note_lines(&mut o, &cmp.notes, hint);
     o.push_str("Predictions guide a measurement; they do not replace it.\n");
     o
+}
+
+/// Per pair, the measured and predicted band width and, with a vibronic envelope, the
+/// progression (spacing and visible quanta) or that the trace does not resolve it.
+fn shape_lines(o: &mut String, cmp: &crate::spectrum::compare::Comparison) {
+    let with: Vec<_> = cmp
+        .assignments
+        .iter()
+        .filter_map(|a| a.shape.as_ref().map(|s| (a, s)))
+        .collect();
+    if with.is_empty() {
+        return;
+    }
+    let _ = writeln!(o, "\nband shapes (measured / predicted):");
+    for (a, s) in with {
+        let mut line = format!(
+            "  {:>9.2}  {}: width {:.2} / {:.2} eV",
+            a.measured_ev, a.label, s.width_measured_ev, s.width_predicted_ev
+        );
+        if let Some(p) = &s.progression {
+            if p.resolved {
+                let sp = |d: Option<f64>| d.map_or("–".to_string(), |d| format!("{d:.3}"));
+                line.push_str(&format!(
+                    "; progression spacing {} / {} eV, {} / {} visible quanta",
+                    sp(p.measured_spacing_ev),
+                    sp(p.predicted_spacing_ev),
+                    p.measured_maxima,
+                    p.predicted_maxima
+                ));
+            } else {
+                line.push_str(
+                    "; progression not resolved at this resolution (envelope width only)",
+                );
+            }
+        }
+        line.push_str(&format!("; mismatch {:.2}", s.mismatch));
+        let _ = writeln!(o, "{line}");
+    }
 }
 
 /// The `bandcast ionize` table: title, reference, bands (? where the order is in doubt),

@@ -184,16 +184,13 @@ mod tests {
         let lines: Vec<PredictedLine> = [11.0, 13.5, 17.2]
             .iter()
             .enumerate()
-            .map(|(i, &e)| PredictedLine {
-                label: format!("b{i}"),
-                energy_ev: e,
-                intensity: 1.0,
-            })
+            .map(|(i, &e)| PredictedLine::new(format!("b{i}"), e, 1.0))
             .collect();
         let peaks = [12.6, 15.1, 18.8];
         let mopt = MatchOptions {
             cap_ev: 1.5,
             intensity_ev: 0.1,
+            shape_ev: 0.1,
         };
         let aopt = AlignOptions {
             max_shift_ev: 5.0,

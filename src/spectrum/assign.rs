@@ -2,13 +2,21 @@
 //! peaks allowed, and a confidence for every pair.
 //!
 //! Cost of pairing band i (aligned energy a_i) with peak j (energy m_j):
-//! |m_j − a_i| + λ · min(|ln r_ij|, 3) (eV), where r_ij compares relative intensities:
+//! |m_j − a_i| + λ · min(|ln r_ij|, 3) + λ_s · min(s_ij, 2) (eV), where r_ij compares
+//! relative intensities:
 //! (area of peak j / median peak area) over (intensity of band i / median band intensity),
 //! and λ = `intensity_ev` (0.1 eV per factor e by default). Band intensities are
 //! occupation × degeneracy × pole strength or one-hole weight (predicted.rs); He I
 //! intensities depart from that by factors of about two (cross sections differ by orbital
 //! character), so the term is weak: at most 0.3 eV, it decides between bands of similar
-//! position and lowers the margin of a pair whose intensity is far off.
+//! position and lowers the margin of a pair whose intensity is far off. s_ij is the shape
+//! mismatch of band_shape.rs (width; with a vibronic envelope at a resolution that shows
+//! the progression, also its spacing and number of visible quanta), λ_s = `shape_ev`
+//! (0.2 eV per factor e by default, chosen on the calibration set's training half: 0.1 and
+//! 0.2 eV both raise the fraction right by about 1.5 points over 0, 0.2 calibrates
+//! better): at most 0.4 eV, so a width estimated from the bonding character (good to a
+//! factor of about two) decides between bands of similar position and lowers the margin
+//! of a pair whose shape is far off, without overruling a clear position.
 //! Leaving a band or a peak unmatched costs `cap/2` each, so a pair is only made when its
 //! residual is below `cap`. A band outside the measured window
 //! costs the same to leave out as one inside, so no alignment gains by pushing bands out
@@ -22,13 +30,14 @@
 //! not pair i with j (global shift/scale held fixed); the residual against the method's
 //! single-band scatter; the intensity ratio; and whether the pair survives the prediction
 //! moving within its method's error: every two bands closer than twice the method's
-//! standard deviation σ are moved σ towards each other and past (i up by σ, k down by σ)
+//! standard deviation σ (0.7 eV, Koopmans', for a method without error statistics) are moved σ towards each other and past (i up by σ, k down by σ)
 //! and the matching is redone; a pair that changes is flagged low-confidence whatever its
 //! number.
 
 use serde::Serialize;
 
-use super::confidence::{calibrated, PairEvidence};
+use super::band_shape::{PredictedShape, ShapeCheck, MAX_SHAPE_LOG};
+use super::confidence::{calibrated, PairEvidence, UNKNOWN_SIGMA_EV};
 use super::hungarian;
 
 /// A predicted band (or a group of bands closer than the merge tolerance).
@@ -38,6 +47,20 @@ pub struct PredictedLine {
     /// Predicted binding energy (eV), before alignment.
     pub energy_ev: f64,
     pub intensity: f64,
+    /// What is known of the band's shape (width estimate or vibronic envelope), if anything.
+    pub shape: Option<PredictedShape>,
+}
+
+impl PredictedLine {
+    /// A line with no shape information.
+    pub fn new(label: impl Into<String>, energy_ev: f64, intensity: f64) -> Self {
+        PredictedLine {
+            label: label.into(),
+            energy_ev,
+            intensity,
+            shape: None,
+        }
+    }
 }
 
 /// Affine map from predicted to measured energies: aligned = scale · predicted + shift.
@@ -60,6 +83,8 @@ pub struct MatchOptions {
     pub cap_ev: f64,
     /// λ: cost (eV) per factor e between measured and predicted relative intensity.
     pub intensity_ev: f64,
+    /// λ_s: cost (eV) per unit of shape mismatch (band_shape.rs).
+    pub shape_ev: f64,
 }
 
 /// Largest |ln r| counted in the cost.
@@ -108,6 +133,17 @@ pub fn intensity_costs(ratios: &[Vec<Option<f64>>], lambda_ev: f64) -> Vec<Vec<f
                 .collect()
         })
         .collect()
+}
+
+/// The shape part of the pair costs, λ_s · min(s, 2), added to `extra` (0 where unknown).
+pub fn add_shape_costs(extra: &mut [Vec<f64>], shapes: &[Vec<Option<ShapeCheck>>], lambda_ev: f64) {
+    for (row, srow) in extra.iter_mut().zip(shapes) {
+        for (c, s) in row.iter_mut().zip(srow) {
+            if let Some(s) = s {
+                *c += lambda_ev * s.mismatch.min(MAX_SHAPE_LOG);
+            }
+        }
+    }
 }
 
 /// The result of one matching.
@@ -214,6 +250,8 @@ pub struct AssignedPair {
     pub intensity_log_ratio: Option<f64>,
     /// The pair changes when two bands move within their method's error.
     pub swaps_within_error: bool,
+    /// Width (and vibronic progression) of the pair, measured against predicted.
+    pub shape: Option<ShapeCheck>,
 }
 
 /// What the confidence of a pair is computed from besides the matching.
@@ -225,6 +263,8 @@ pub struct PairContext<'a> {
     pub sigma_ev: Option<f64>,
     /// τ of the margin feature (eV).
     pub tau_ev: f64,
+    /// Shape comparison of every band (rows) with every peak (columns); empty when none.
+    pub shapes: &'a [Vec<Option<ShapeCheck>>],
 }
 
 /// Pairs of the optimal matching with their confidence; sorted by measured energy.
@@ -237,9 +277,12 @@ pub fn assigned_pairs(
 ) -> (Vec<AssignedPair>, Matching) {
     let aligned: Vec<f64> = lines.iter().map(|l| align.apply(l.energy_ev)).collect();
     let ratios = log_intensity_ratios(lines, ctx.areas);
-    let extra = intensity_costs(&ratios, opt.intensity_ev);
+    let mut extra = intensity_costs(&ratios, opt.intensity_ev);
+    add_shape_costs(&mut extra, ctx.shapes, opt.shape_ev);
     let best = match_lines(&aligned, peaks, Some(&extra), opt, None);
-    let swapped = swap_sensitive(&aligned, peaks, &extra, opt, &best, ctx.sigma_ev);
+    // a method without error statistics is taken as scattered as Koopmans' (confidence.rs)
+    let swap_sigma = Some(ctx.sigma_ev.unwrap_or(UNKNOWN_SIGMA_EV));
+    let swapped = swap_sensitive(&aligned, peaks, &extra, opt, &best, swap_sigma);
     let mut rows = Vec::new();
     for &(i, j) in &best.pairs {
         let alt = match_lines(&aligned, peaks, Some(&extra), opt, Some((i, j)));
@@ -250,11 +293,13 @@ pub fn assigned_pairs(
             .find(|&&(_, jj)| jj == j)
             .map(|&(ii, _)| lines[ii].label.clone());
         let residual = peaks[j] - aligned[i];
+        let shape = ctx.shapes.get(i).and_then(|r| r.get(j)).cloned().flatten();
         let ev = PairEvidence {
             margin_feature: confidence_from_margin(delta, ctx.tau_ev),
             sigma_ev: ctx.sigma_ev,
             intensity_log_ratio: ratios[i][j],
             swaps: swapped.contains(&i),
+            shape_mismatch: shape.as_ref().map(|s| s.mismatch),
         };
         let conf = calibrated(&ev);
         rows.push(AssignedPair {
@@ -269,6 +314,7 @@ pub fn assigned_pairs(
             margin_ev: delta,
             intensity_log_ratio: ratios[i][j],
             swaps_within_error: ev.swaps,
+            shape,
         });
     }
     rows.sort_by(|a, b| a.measured_ev.total_cmp(&b.measured_ev));
@@ -323,10 +369,13 @@ pub fn merge_close(lines: &[PredictedLine], tol_ev: f64) -> Vec<PredictedLine> {
         if let Some((last, first_e)) = out.last_mut() {
             if l.energy_ev - *first_e <= tol_ev {
                 let w = last.intensity + l.intensity;
-                if w > 0.0 {
-                    last.energy_ev =
-                        (last.energy_ev * last.intensity + l.energy_ev * l.intensity) / w;
-                }
+                let merged_e = if w > 0.0 {
+                    (last.energy_ev * last.intensity + l.energy_ev * l.intensity) / w
+                } else {
+                    last.energy_ev
+                };
+                last.shape = merge_shapes(last, &l, merged_e);
+                last.energy_ev = merged_e;
                 last.intensity = w;
                 last.label = format!("{} + {}", last.label, l.label);
                 continue;
@@ -338,16 +387,42 @@ pub fn merge_close(lines: &[PredictedLine], tol_ev: f64) -> Vec<PredictedLine> {
     out.into_iter().map(|(l, _)| l).collect()
 }
 
+/// The shape of two lines merged at `at` (eV): the wider width estimate; vibronic sticks
+/// put together, each line's sticks weighted by its intensity; none when the kinds differ.
+fn merge_shapes(a: &PredictedLine, b: &PredictedLine, at: f64) -> Option<PredictedShape> {
+    match (&a.shape, &b.shape) {
+        (Some(PredictedShape::Width(x)), Some(PredictedShape::Width(y))) => {
+            Some(PredictedShape::Width(x.max(*y)))
+        }
+        (Some(PredictedShape::Vibronic(x)), Some(PredictedShape::Vibronic(y))) => {
+            let w = (a.intensity + b.intensity).max(1e-300);
+            let mut sticks = Vec::new();
+            for (line, v) in [(a, x), (b, y)] {
+                let total: f64 = v.sticks.iter().map(|s| s.1).sum::<f64>().max(1e-300);
+                let f = line.intensity / w / total;
+                sticks.extend(
+                    v.sticks
+                        .iter()
+                        .map(|&(e, i)| (e + line.energy_ev - at, i * f)),
+                );
+            }
+            let main = if a.intensity >= b.intensity { x } else { y };
+            Some(PredictedShape::Vibronic(super::band_shape::VibronicShape {
+                sticks,
+                spacing_ev: main.spacing_ev,
+                resolved: main.resolved,
+            }))
+        }
+        _ => None,
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
 
     fn line(label: &str, e: f64) -> PredictedLine {
-        PredictedLine {
-            label: label.into(),
-            energy_ev: e,
-            intensity: 1.0,
-        }
+        PredictedLine::new(label, e, 1.0)
     }
 
     #[test]
@@ -355,6 +430,7 @@ mod tests {
         let opt = MatchOptions {
             cap_ev: 1.0,
             intensity_ev: 0.1,
+            shape_ev: 0.1,
         };
         let m = match_lines(&[12.0, 15.0, 18.0], &[12.1, 17.9], None, &opt, None);
         assert_eq!(m.pairs, vec![(0, 0), (2, 1)]);
@@ -365,6 +441,7 @@ mod tests {
         let opt = MatchOptions {
             cap_ev: 1.5,
             intensity_ev: 0.1,
+            shape_ev: 0.1,
         };
         let lines = vec![line("a", 13.0), line("b", 13.1)];
         let id = Alignment {
@@ -375,6 +452,7 @@ mod tests {
             areas: &[1.0],
             sigma_ev: Some(0.3),
             tau_ev: 0.25,
+            shapes: &[],
         };
         let (rows, _) = assigned_pairs(&lines, &[13.05], id, &opt, &ctx);
         assert_eq!(rows.len(), 1);

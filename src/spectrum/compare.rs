@@ -7,10 +7,13 @@ use serde::Serialize;
 
 use super::align::{align, AlignOptions};
 use super::assign::{
-    assigned_pairs, intensity_costs, log_intensity_ratios, merge_close, Alignment, AssignedPair,
-    MatchOptions, PairContext, PredictedLine,
+    add_shape_costs, assigned_pairs, intensity_costs, log_intensity_ratios, merge_close, Alignment,
+    AssignedPair, MatchOptions, PairContext, PredictedLine,
 };
 use super::background;
+use super::band_shape::{
+    compare_shapes, fine_maxima, gaussian_smooth, predicted_fine, Fine, PredictedShape, ShapeCheck,
+};
 use super::measured::Measured;
 use super::method_error::MethodError;
 use super::note::Note;
@@ -38,6 +41,8 @@ pub struct CompareOptions {
     pub confidence_scale_ev: f64,
     /// λ of the intensity term of the pair cost (eV per factor e; assign.rs).
     pub intensity_ev: f64,
+    /// λ_s of the shape term of the pair cost (eV per unit of mismatch; band_shape.rs).
+    pub shape_ev: f64,
     /// Error statistics of the prediction method, when known.
     pub method_error: Option<MethodError>,
 }
@@ -62,6 +67,7 @@ impl CompareOptions {
             merge_tol_ev: 0.05,
             confidence_scale_ev: 0.25,
             intensity_ev: 0.1,
+            shape_ev: 0.2,
             method_error: None,
         }
     }
@@ -121,6 +127,10 @@ struct Front {
     bg: Vec<f64>,
     bg_name: &'static str,
     noise: f64,
+    /// Smoothed trace minus background.
+    signal: Vec<f64>,
+    /// Smallest prominence (and height within a band) above the noise.
+    min_abs: f64,
     peaks: Vec<Peak>,
     peak_threshold: f64,
     notes: Vec<Note>,
@@ -168,6 +178,8 @@ fn front(measured: &Measured, opt: &CompareOptions) -> Result<Front> {
         bg,
         bg_name,
         noise: check.noise,
+        signal,
+        min_abs,
         peaks,
         peak_threshold,
         notes,
@@ -194,6 +206,8 @@ pub fn compare(
         bg,
         bg_name,
         noise,
+        signal,
+        min_abs,
         peaks,
         peak_threshold,
         mut notes,
@@ -202,14 +216,28 @@ pub fn compare(
     if groups.is_empty() {
         return Err(Error::computation("no predicted bands to compare with"));
     }
+    let mut bl = band_level(
+        &groups,
+        x,
+        &signal,
+        peaks,
+        min_abs,
+        opt,
+        measured.mean_step(),
+    );
+    notes.append(&mut bl.notes);
+    let shapes = shape_matrix(&groups, x, &signal, min_abs, &bl);
+    let peaks = bl.peaks;
     let peak_e: Vec<f64> = peaks.iter().map(|p| p.energy_ev).collect();
     let areas: Vec<f64> = peaks.iter().map(|p| p.area).collect();
     let window = (x[0], x[x.len() - 1]);
     let mopt = MatchOptions {
         cap_ev: opt.cap_ev,
         intensity_ev: opt.intensity_ev,
+        shape_ev: opt.shape_ev,
     };
-    let extra = intensity_costs(&log_intensity_ratios(&groups, &areas), opt.intensity_ev);
+    let mut extra = intensity_costs(&log_intensity_ratios(&groups, &areas), opt.intensity_ev);
+    add_shape_costs(&mut extra, &shapes, opt.shape_ev);
     let aopt = AlignOptions {
         max_shift_ev: opt.max_shift_ev,
         step_ev: 0.02,
@@ -256,6 +284,7 @@ pub fn compare(
         areas: &areas,
         sigma_ev: opt.method_error.map(|m| m.sd_ev),
         tau_ev: opt.confidence_scale_ev,
+        shapes: &shapes,
     };
     let (pairs, best) = assigned_pairs(&groups, &peak_e, a, &mopt, &ctx);
     let matched_bands: Vec<usize> = best.pairs.iter().map(|p| p.0).collect();
@@ -330,4 +359,145 @@ pub fn compare(
         smoothed,
         background_curve: bg,
     })
+}
+
+/// The peaks the bands are matched with, and the resolutions the shapes are compared at.
+struct BandLevel {
+    peaks: Vec<Peak>,
+    /// The curve the band-level peaks were found on (the processed trace, or it smoothed
+    /// further when a progression is resolved).
+    band_signal: Vec<f64>,
+    /// Instrument FWHM (eV).
+    resolution_ev: f64,
+    /// Resolution of `band_signal`: √(instrument² + further smoothing²) (eV).
+    band_resolution_ev: f64,
+    step_ev: f64,
+    notes: Vec<Note>,
+}
+
+/// When the trace resolves a predicted progression, every member of it would be a peak of
+/// its own: the bands are then found on the trace smoothed by a Gaussian 1.25 × the
+/// largest resolved spacing wide (two equal lines d apart merge below FWHM d/0.849;
+/// band_shape.rs), and the fine structure is read inside each band on the processed trace.
+fn band_level(
+    groups: &[PredictedLine],
+    x: &[f64],
+    signal: &[f64],
+    peaks: Vec<Peak>,
+    min_abs: f64,
+    opt: &CompareOptions,
+    step_ev: f64,
+) -> BandLevel {
+    let mut resolved = Vec::new();
+    let mut unresolved = Vec::new();
+    let mut spacing: f64 = 0.0;
+    for g in groups {
+        if let Some(PredictedShape::Vibronic(v)) = &g.shape {
+            match (v.resolved, v.spacing_ev) {
+                (true, Some(d)) => {
+                    resolved.push(g.label.clone());
+                    spacing = spacing.max(d);
+                }
+                _ => unresolved.push(g.label.clone()),
+            }
+        }
+    }
+    let mut notes = Vec::new();
+    if !unresolved.is_empty() {
+        notes.push(Note::ProgressionsUnresolved {
+            bands: unresolved,
+            fwhm_ev: opt.fwhm_ev,
+        });
+    }
+    let plain = |peaks| BandLevel {
+        peaks,
+        band_signal: signal.to_vec(),
+        resolution_ev: opt.fwhm_ev,
+        band_resolution_ev: opt.fwhm_ev,
+        step_ev,
+        notes: Vec::new(),
+    };
+    if resolved.is_empty() {
+        return BandLevel {
+            notes,
+            ..plain(peaks)
+        };
+    }
+    let kernel = 1.25 * spacing;
+    let smooth = gaussian_smooth(signal, step_ev, kernel);
+    let band_peaks = find_peaks(x, &smooth, opt.min_prominence, min_abs);
+    if band_peaks.is_empty() {
+        return BandLevel {
+            notes,
+            ..plain(peaks)
+        };
+    }
+    notes.push(Note::ProgressionsResolved {
+        bands: resolved,
+        smoothing_ev: kernel,
+    });
+    BandLevel {
+        peaks: band_peaks,
+        band_signal: smooth,
+        resolution_ev: opt.fwhm_ev,
+        band_resolution_ev: (opt.fwhm_ev.powi(2) + kernel * kernel).sqrt(),
+        step_ev,
+        notes,
+    }
+}
+
+/// Grid range of the band whose maximum is at `k` on `y`: outwards until the curve falls
+/// below a fifth of the maximum or turns up again (a valley).
+fn band_range(y: &[f64], k: usize) -> (usize, usize) {
+    let floor = 0.2 * y[k];
+    let mut lo = k;
+    while lo > 0 && y[lo - 1] > floor && y[lo - 1] <= y[lo] {
+        lo -= 1;
+    }
+    let mut hi = k;
+    while hi + 1 < y.len() && y[hi + 1] > floor && y[hi + 1] <= y[hi] {
+        hi += 1;
+    }
+    (lo, hi)
+}
+
+/// The shape comparison of every band with a shape against every peak (band_shape.rs).
+fn shape_matrix(
+    groups: &[PredictedLine],
+    x: &[f64],
+    signal: &[f64],
+    min_abs: f64,
+    bl: &BandLevel,
+) -> Vec<Vec<Option<ShapeCheck>>> {
+    if groups.iter().all(|g| g.shape.is_none()) {
+        return Vec::new();
+    }
+    let vibronic = groups
+        .iter()
+        .any(|g| matches!(g.shape, Some(PredictedShape::Vibronic(_))));
+    let measured: Vec<Fine> = bl
+        .peaks
+        .iter()
+        .map(|p| Fine {
+            fwhm_ev: p.fwhm_ev,
+            maxima: if vibronic {
+                let (lo, hi) = band_range(&bl.band_signal, p.index);
+                fine_maxima(&x[lo..=hi], &signal[lo..=hi], min_abs)
+            } else {
+                vec![p.energy_ev]
+            },
+        })
+        .collect();
+    groups
+        .iter()
+        .map(|g| {
+            let shape = g.shape.as_ref();
+            let pred = shape
+                .map(|s| predicted_fine(s, bl.resolution_ev, bl.band_resolution_ev, bl.step_ev));
+            measured
+                .iter()
+                .map(|m| Some(compare_shapes(shape?, pred.as_ref()?, m)))
+                .collect()
+        })
+        .collect()
 }

@@ -6,8 +6,12 @@
 //! already in Δ, and a residual over σ fitted the wrong way round: broad bands scatter the
 //! peak positions of accurate methods more than their σ), the intensity
 //! mismatch |ln r| (capped at 3; 0 when unknown) and whether the pair changes when the
-//! prediction moves within its method's error (s = 0/1). The probability is logistic:
-//! p = 1 / (1 + exp(−(b0 + b1 m + b2 min(σ, 2) + b3 min(|ln r|, 3) + b4 s))).
+//! prediction moves within its method's error (s = 0/1), and the shape mismatch h
+//! (band_shape.rs: width, and with a resolved vibronic progression its spacing and visible
+//! quanta; capped at 2; 0 when unknown). The probability is logistic:
+//! p = 1 / (1 + exp(−(b0 + b1 m + b2 min(σ, 2) + b3 min(|ln r|, 3) + b4 s + b5 min(h, 2)))).
+//! b5 is fitted on widths only (the synthetic set has no vibronic structure): the
+//! progression terms borrow the width's coefficient.
 //!
 //! The coefficients `COEF` were fitted by maximum likelihood (Newton's method) on the
 //! training half of a synthetic set: He I band positions, relative intensities and widths
@@ -31,33 +35,40 @@ pub struct PairEvidence {
     pub intensity_log_ratio: Option<f64>,
     /// The pair changes when the prediction moves within its method's error.
     pub swaps: bool,
+    /// Shape mismatch (band_shape.rs), when known.
+    pub shape_mismatch: Option<f64>,
 }
 
-/// Fitted coefficients b0..b4 (see the module text for how they were made).
-pub const COEF: [f64; 5] = [
-    1.0425726294848001,
-    3.7951613449475623,
-    -3.1718055299626764,
-    -0.49447922280776774,
-    -0.8649246384233188,
+/// Number of features (and coefficients).
+pub const FEATURES: usize = 6;
+
+/// Fitted coefficients b0..b5 (see the module text for how they were made).
+pub const COEF: [f64; FEATURES] = [
+    1.5934308889451478,
+    3.8813315775894885,
+    -3.4194777485789856,
+    -0.7101487295267349,
+    -1.197653590971722,
+    -0.10238266550270606,
 ];
 
 /// σ assumed for a method without error statistics (eV).
 pub const UNKNOWN_SIGMA_EV: f64 = 0.7;
 
-/// The feature vector (1, m, min(σ, 2), min(|ln r|,3), s).
-pub fn features(e: &PairEvidence) -> [f64; 5] {
+/// The feature vector (1, m, min(σ, 2), min(|ln r|,3), s, min(h, 2)).
+pub fn features(e: &PairEvidence) -> [f64; FEATURES] {
     [
         1.0,
         e.margin_feature,
         e.sigma_ev.unwrap_or(UNKNOWN_SIGMA_EV).min(2.0),
         e.intensity_log_ratio.map_or(0.0, |r| r.abs().min(3.0)),
         if e.swaps { 1.0 } else { 0.0 },
+        e.shape_mismatch.map_or(0.0, |h| h.min(2.0)),
     ]
 }
 
 /// Logistic probability for coefficients `b`.
-pub fn logistic(b: &[f64; 5], x: &[f64; 5]) -> f64 {
+pub fn logistic(b: &[f64; FEATURES], x: &[f64; FEATURES]) -> f64 {
     let t: f64 = b.iter().zip(x).map(|(b, x)| b * x).sum();
     1.0 / (1.0 + (-t).exp())
 }
@@ -78,6 +89,7 @@ mod tests {
             sigma_ev: Some(0.3),
             intensity_log_ratio: Some(0.1),
             swaps: false,
+            shape_mismatch: Some(0.1),
         };
         let weaker = PairEvidence {
             margin_feature: 0.2,

@@ -7,7 +7,8 @@
 //!
 //! Comparison: `measured` (reading a trace) → `smooth` (Savitzky–Golay) → `background`
 //! (linear, Shirley) → `peaks` (prominence) → `align` (global shift/scale) → `assign`
-//! (one-to-one matching by `hungarian`, evidence per pair) → `confidence` (calibrated
+//! (one-to-one matching by `hungarian`, evidence per pair; widths and vibronic
+//! progressions by `band_shape`) → `confidence` (calibrated
 //! probability) → `verdict`; `trace_check` (noise, inverted traces) and `method_error`
 //! (plausible shifts) feed it; `compare` runs the whole chain and
 //! `assignment` feeds it predicted bands. Notes of both are typed values (`note`).
@@ -15,6 +16,7 @@ pub mod align;
 pub mod assign;
 pub mod assignment;
 pub mod background;
+pub mod band_shape;
 pub mod broaden;
 pub mod build;
 pub mod compare;

@@ -37,6 +37,15 @@ pub enum Note {
     KineticConverted { photon_ev: f64, reason: String },
     /// The header names one axis, the command was told another.
     HeaderAxisOverridden { header: String },
+    /// Progressions the trace resolves: the bands were found on the trace smoothed further
+    /// (a Gaussian of `smoothing_ev`) and compared by their fine structure too.
+    ProgressionsResolved {
+        bands: Vec<String>,
+        smoothing_ev: f64,
+    },
+    /// Vibronic envelopes whose progression the trace's resolution does not separate: only
+    /// the envelope's width is compared.
+    ProgressionsUnresolved { bands: Vec<String>, fwhm_ev: f64 },
     /// A note or warning of the prediction itself.
     Prediction(Notice),
 }
@@ -68,6 +77,8 @@ impl Note {
             Note::FewDegreesOfFreedom { .. } => "few_degrees_of_freedom",
             Note::KineticConverted { .. } => "kinetic_converted",
             Note::HeaderAxisOverridden { .. } => "header_axis_overridden",
+            Note::ProgressionsResolved { .. } => "progressions_resolved",
+            Note::ProgressionsUnresolved { .. } => "progressions_unresolved",
             Note::Prediction(n) => n.code(),
         }
     }
@@ -129,6 +140,22 @@ impl fmt::Display for Note {
             Note::HeaderAxisOverridden { header } => write!(
                 f,
                 "the file's header names {header} energy, but the trace was read as asked"
+            ),
+            Note::ProgressionsResolved {
+                bands,
+                smoothing_ev,
+            } => write!(
+                f,
+                "the trace resolves the vibrational progression of {}: bands were located on \
+                 the trace smoothed by a further {smoothing_ev:.3} eV Gaussian, and their \
+                 spacing and number of visible quanta are part of the match",
+                bands.join(", ")
+            ),
+            Note::ProgressionsUnresolved { bands, fwhm_ev } => write!(
+                f,
+                "at {fwhm_ev:.3} eV resolution the trace cannot resolve the vibrational \
+                 progression of {}: only the envelope's width is compared",
+                bands.join(", ")
             ),
             Note::Prediction(n) => n.fmt(f),
         }

@@ -75,7 +75,7 @@ pub fn find_peaks(x: &[f64], y: &[f64], min_prominence: f64, min_abs: f64) -> Ve
                 let k = (i + j) / 2;
                 let p = prominence(y, k);
                 if p >= min_prominence * range && p >= min_abs {
-                    let w = half_width(x, y, k);
+                    let w = half_width(x, y, k, min_abs);
                     out.push(Peak {
                         energy_ev: refine(x, y, k),
                         height: y[k],
@@ -94,8 +94,10 @@ pub fn find_peaks(x: &[f64], y: &[f64], min_prominence: f64, min_abs: f64) -> Ve
     out
 }
 
-/// Full width at half height of the maximum at `k` (see the module text).
-fn half_width(x: &[f64], y: &[f64], k: usize) -> f64 {
+/// Full width at half height of the maximum at `k`: walking out on each side to half
+/// height; a rise of more than 10 % of the height and more than `noise_rise` (the noise
+/// threshold of the prominence) before it is a valley, and that side does not count.
+fn half_width(x: &[f64], y: &[f64], k: usize, noise_rise: f64) -> f64 {
     let half = 0.5 * y[k];
     let side = |dir: i64| -> Option<f64> {
         let mut j = k as i64;
@@ -112,8 +114,8 @@ fn half_width(x: &[f64], y: &[f64], k: usize) -> f64 {
                 return Some((x[a] + t * (x[b] - x[a]) - x[k]).abs());
             }
             low = low.min(y[b]);
-            if y[b] > low + 0.1 * y[k] {
-                return None; // a valley before half height (rises of 10 % are noise)
+            if y[b] > low + (0.1 * y[k]).max(noise_rise) {
+                return None; // a valley before half height (smaller rises are noise)
             }
             j = nj;
         }
