@@ -13,7 +13,7 @@
 //! The wavefunction must come from exact integrals: a density-fitted energy has a different
 //! gradient (the density-fitted gradient is not implemented, see README).
 
-use super::energy_weighted::energy_weighted_density;
+use super::energy_weighted::{energy_weighted_density, energy_weighted_from_orbitals};
 use super::nuclear_repulsion::nuclear_repulsion_gradient;
 use crate::basis::BasisSet;
 use crate::chem::Molecule;
@@ -32,11 +32,17 @@ use crate::scf::{core_hamiltonian, Reference, Wavefunction};
 pub struct GradientOptions {
     /// Schwarz × density threshold for the derivative integrals and the Fock build.
     pub screening: f64,
+    /// Build W from Fock matrices rebuilt at the converged densities even where the
+    /// orbital energies give it (RHF, UHF); for checks. ROHF always rebuilds.
+    pub w_from_fock: bool,
 }
 
 impl Default for GradientOptions {
     fn default() -> Self {
-        GradientOptions { screening: 1e-12 }
+        GradientOptions {
+            screening: 1e-12,
+            w_from_fock: false,
+        }
     }
 }
 
@@ -50,7 +56,8 @@ pub struct ScfGradient {
     /// −Σ W S'.
     pub overlap: Vec<[f64; 3]>,
     pub two_electron: Vec<[f64; 3]>,
-    /// Wall seconds of the parts: "fock" (J and K at the converged densities, for W),
+    /// Wall seconds of the parts: "fock" (W: from the orbital energies, or J and K at the
+    /// converged densities for ROHF),
     /// "one-electron" (S', T', V'), "two-electron" (the derivative ERIs).
     pub timings: Vec<(String, f64)>,
 }
@@ -86,25 +93,44 @@ pub fn scf_gradient(
         let before: f64 = timings.iter().map(|t| t.1).sum();
         timings.push((name.to_string(), clock.elapsed().as_secs_f64() - before));
     };
-    // Fock matrices at the converged densities (for W)
-    let h = core_hamiltonian(basis, mol);
-    let engine = EriEngine::new(basis);
-    let src = EngineSource::new(&engine, basis);
-    let plan = QuartetPlan::new(&src, opts.screening);
-    let mut direct = DirectFock::new(&src, plan);
-    let jk = direct.jk(&[&pa, &pb])?;
-    let j = &jk[0].j + &jk[1].j;
-    let fa = &(&h + &j) - &jk[0].k;
-    let fb = &(&h + &j) - &jk[1].k;
-    let w = energy_weighted_density(
-        wf.reference,
-        &wf.c_alpha,
-        &wf.c_beta,
-        &wf.occ_alpha,
-        &wf.occ_beta,
-        &fa,
-        &fb,
-    );
+    // W: from the orbital energies (RHF, UHF), or from the Fock matrices at the converged
+    // densities (ROHF, or when asked)
+    let from_orbitals = if opts.w_from_fock {
+        None
+    } else {
+        energy_weighted_from_orbitals(
+            wf.reference,
+            &wf.c_alpha,
+            &wf.c_beta,
+            &wf.eps_alpha,
+            &wf.eps_beta,
+            &wf.occ_alpha,
+            &wf.occ_beta,
+        )
+    };
+    let w = match from_orbitals {
+        Some(w) => w,
+        None => {
+            let h = core_hamiltonian(basis, mol);
+            let engine = EriEngine::new(basis);
+            let src = EngineSource::new(&engine, basis);
+            let plan = QuartetPlan::new(&src, opts.screening);
+            let mut direct = DirectFock::new(&src, plan);
+            let jk = direct.jk(&[&pa, &pb])?;
+            let j = &jk[0].j + &jk[1].j;
+            let fa = &(&h + &j) - &jk[0].k;
+            let fb = &(&h + &j) - &jk[1].k;
+            energy_weighted_density(
+                wf.reference,
+                &wf.c_alpha,
+                &wf.c_beta,
+                &wf.occ_alpha,
+                &wf.occ_beta,
+                &fa,
+                &fb,
+            )
+        }
+    };
 
     lap("fock", &mut timings);
     let vnn = nuclear_repulsion_gradient(mol);

@@ -6,6 +6,7 @@
 //! integrals handle below `cartesian::MAX_L` (s–g plus one) is covered, pure and Cartesian.
 pub mod eri;
 pub mod one_electron;
+pub(crate) mod one_pass;
 #[cfg(test)]
 pub(crate) mod test_support;
 
