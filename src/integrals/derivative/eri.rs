@@ -28,8 +28,8 @@ pub struct EriDerivative {
     engine: EriEngine,
     n: usize,
     l: Vec<usize>,
-    nf: Vec<usize>,
-    atom: Vec<usize>,
+    pub(super) nf: Vec<usize>,
+    pub(super) atom: Vec<usize>,
     plus: Vec<usize>,
     minus: Vec<Option<usize>>,
     /// Per shell and direction: n_f × n_cart(l+1) and n_f × n_cart(l−1) matrices from the
@@ -52,15 +52,30 @@ fn comp_index(l: usize, c: [usize; 3]) -> usize {
 
 impl EriDerivative {
     pub fn new(basis: &BasisSet) -> Self {
-        let n = basis.shells.len();
-        let mut shells: Vec<Shell> = basis.shells.clone();
-        let mut coefs: Vec<Vec<f64>> = basis.shells.iter().map(contracted_coefficients).collect();
+        let coefs: Vec<Vec<f64>> = basis.shells.iter().map(contracted_coefficients).collect();
+        Self::build(&basis.shells, coefs, &|_, _| true)
+    }
+
+    /// The engine over `originals` with normalised coefficients `coefs` (see
+    /// `crate::basis::normalize`) and their raised/lowered shells, keeping the pairs of
+    /// original shells (x, y) with `wanted(x, y)` (symmetric) and every pair of a derived
+    /// shell with an original y whose source x has `wanted(x, y)`.
+    pub(crate) fn build(
+        originals: &[Shell],
+        coefs: Vec<Vec<f64>>,
+        wanted: &(dyn Fn(usize, usize) -> bool + Sync),
+    ) -> Self {
+        let n = originals.len();
+        let mut shells: Vec<Shell> = originals.to_vec();
+        let mut coefs = coefs;
+        let mut source: Vec<usize> = (0..n).collect();
         let mut plus = Vec::with_capacity(n);
         let mut minus = Vec::with_capacity(n);
         for s in 0..n {
-            let sh = &basis.shells[s];
+            let sh = &originals[s];
             let d = coefs[s].clone();
             plus.push(shells.len());
+            source.push(s);
             shells.push(Shell {
                 l: sh.l + 1,
                 pure: false,
@@ -74,6 +89,7 @@ impl EriDerivative {
             );
             if sh.l > 0 {
                 minus.push(Some(shells.len()));
+                source.push(s);
                 shells.push(Shell {
                     l: sh.l - 1,
                     pure: false,
@@ -85,11 +101,12 @@ impl EriDerivative {
             }
         }
         // pairs with at least one original shell (a ≥ b, so b must be original)
-        let engine = EriEngine::build(&shells, &coefs, &|_a, b| b < n);
+        let keep = |a: usize, b: usize| b < n && wanted(source[a], b);
+        let engine = EriEngine::build(&shells, &coefs, &keep);
         let mut g_plus = Vec::with_capacity(n);
         let mut g_minus = Vec::with_capacity(n);
         let mut maps = Vec::with_capacity(n);
-        for sh in &basis.shells {
+        for sh in originals {
             let l = sh.l;
             let t = solid_harmonics::transform(l, sh.pure);
             let nf = sh.n_functions();
@@ -140,9 +157,9 @@ impl EriDerivative {
         EriDerivative {
             engine,
             n,
-            l: basis.shells.iter().map(|s| s.l).collect(),
-            nf: basis.shells.iter().map(|s| s.n_functions()).collect(),
-            atom: basis.shells.iter().map(|s| s.atom).collect(),
+            l: originals.iter().map(|s| s.l).collect(),
+            nf: originals.iter().map(|s| s.n_functions()).collect(),
+            atom: originals.iter().map(|s| s.atom).collect(),
             plus,
             minus,
             g_plus,
