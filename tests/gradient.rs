@@ -167,14 +167,19 @@ fn density_fitted_gradient_matches_differences_of_the_fitted_energy() {
     let mol = distorted_water();
     for (label, m, reference) in [
         ("DF-RHF water", mol.clone(), Reference::Rhf),
-        ("DF-UHF water cation", with_charge(&mol, 1, 2), Reference::Uhf),
+        (
+            "DF-UHF water cation",
+            with_charge(&mol, 1, 2),
+            Reference::Uhf,
+        ),
     ] {
         let wf = fitted(&m, "cc-pVDZ", reference);
         let b = basis::load("cc-pVDZ", &m, None).unwrap();
         let aux = basis::load_auxiliary("def2-universal-JKFIT", &m).unwrap();
-        let g = bandcast::gradient::scf_gradient_fitted(&m, &b, &aux, &wf, &GradientOptions::default())
-            .unwrap()
-            .total;
+        let g =
+            bandcast::gradient::scf_gradient_fitted(&m, &b, &aux, &wf, &GradientOptions::default())
+                .unwrap()
+                .total;
         let h = 5e-4;
         let mut worst: f64 = 0.0;
         for a in 0..m.atoms.len() {
@@ -214,7 +219,9 @@ fn energy_weighted_density_from_orbital_energies_matches_fock_route() {
     ] {
         let wf = ground(&m, "cc-pVDZ", reference);
         let b = basis::load("cc-pVDZ", &m, None).unwrap();
-        let g1 = scf_gradient(&m, &b, &wf, &GradientOptions::default()).unwrap().total;
+        let g1 = scf_gradient(&m, &b, &wf, &GradientOptions::default())
+            .unwrap()
+            .total;
         let opts = GradientOptions {
             w_from_fock: true,
             ..GradientOptions::default()

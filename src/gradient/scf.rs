@@ -13,10 +13,9 @@
 //! A density-fitted energy (J and K fitted) has its own gradient: `scf_gradient_fitted`
 //! replaces the two-electron part by `density_fitted`'s; everything else is shared.
 
-use super::energy_weighted::{energy_weighted_density, energy_weighted_from_orbitals};
 use super::density_fitted::fitted_two_electron;
+use super::energy_weighted::{energy_weighted_density, energy_weighted_from_orbitals};
 use super::nuclear_repulsion::nuclear_repulsion_gradient;
-use bandcast_linalg::Mat;
 use crate::basis::BasisSet;
 use crate::chem::Molecule;
 use crate::error::{Error, Result};
@@ -28,6 +27,7 @@ use crate::scf::fock::quartets::QuartetPlan;
 use crate::scf::fock::source::EngineSource;
 use crate::scf::fock::{DfFock, DirectFock, FockBuilder};
 use crate::scf::{core_hamiltonian, Reference, Wavefunction};
+use bandcast_linalg::Mat;
 
 /// Thresholds of a gradient evaluation.
 #[derive(Debug, Clone, Copy)]

@@ -61,7 +61,12 @@ impl FittingDerivative {
 
     /// Σ_Pμν T_P,μν ∂(P|μν)/∂R for every atom (n_atoms × 3); `t[(P·n + μ)·n + ν]`,
     /// symmetric in μν. Blocks with Schwarz bound × max|T| below `threshold` are skipped.
-    pub fn three_centre_gradient(&self, t: &[f64], n_atoms: usize, threshold: f64) -> Vec<[f64; 3]> {
+    pub fn three_centre_gradient(
+        &self,
+        t: &[f64],
+        n_atoms: usize,
+        threshold: f64,
+    ) -> Vec<[f64; 3]> {
         let (na, n) = (self.na, self.n_orb);
         let pairs: Vec<(usize, usize)> = (0..self.no)
             .flat_map(|a| (0..=a).map(move |b| (a, b)))
@@ -103,10 +108,11 @@ impl FittingDerivative {
                         if at[pos - 1] == at[0] {
                             continue;
                         }
-                        self.d.centre_derivative(q, pos, &mut out, &mut buf, &mut tmp);
+                        self.d
+                            .centre_derivative(q, pos, &mut out, &mut buf, &mut tmp);
                         for k in 0..3 {
-                            let v: f64 = out[k].iter().zip(&blk).map(|(x, y)| x * y).sum::<f64>()
-                                * deg;
+                            let v: f64 =
+                                out[k].iter().zip(&blk).map(|(x, y)| x * y).sum::<f64>() * deg;
                             g[3 * at[pos - 1] + k] += v;
                             g[3 * at[0] + k] -= v;
                         }
@@ -134,13 +140,19 @@ impl FittingDerivative {
                         continue;
                     }
                     let nq = self.d.nf[q];
-                    self.d
-                        .centre_derivative([p, self.unit, q, self.unit], 2, &mut out, &mut buf, &mut tmp);
+                    self.d.centre_derivative(
+                        [p, self.unit, q, self.unit],
+                        2,
+                        &mut out,
+                        &mut buf,
+                        &mut tmp,
+                    );
                     for k in 0..3 {
                         let mut v = 0.0;
                         for i in 0..np {
                             for j in 0..nq {
-                                v += out[k][i * nq + j] * m[(self.aux_off[p] + i, self.aux_off[q] + j)];
+                                v += out[k][i * nq + j]
+                                    * m[(self.aux_off[p] + i, self.aux_off[q] + j)];
                             }
                         }
                         // (p, q) and (q, p)
