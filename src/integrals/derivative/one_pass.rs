@@ -164,6 +164,9 @@ fn run(
             }
         }
     };
+    for x in wb.iter_mut().chain(wk.iter_mut()) {
+        x.clear();
+    }
     if raise_b {
         weights(q.pb, bra, wb);
     }
