@@ -24,7 +24,7 @@ use super::symmetrize::{symmetrize_positions, symmetrize_vectors};
 use crate::analysis::symmetry::{detect_point_group, DEFAULT_TOLERANCE};
 use crate::chem::Molecule;
 use crate::error::{Error, Result};
-use crate::gradient::{scf_gradient, GradientOptions};
+use crate::gradient::GradientOptions;
 
 /// Thresholds and limits.
 #[derive(Debug, Clone)]
@@ -232,7 +232,7 @@ pub fn optimize(
                 *n + 1
             )));
         }
-        let g = scf_gradient(&st.molecule, &st.basis, &st.wavefunction, &gopts)?.total;
+        let g = st.gradient(state, &gopts)?;
         *n += 1;
         let g = match pg_opt {
             Some(pg) => symmetrize_vectors(pg, &g),

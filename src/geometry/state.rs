@@ -49,6 +49,36 @@ pub struct SolvedState {
     pub hole: Option<HoleTrack>,
 }
 
+impl SolvedState {
+    /// The analytic gradient of this state's energy: the density-fitted gradient when the
+    /// spec asks for the density-fitted Fock builder (the energy is then the fitted one),
+    /// else the exact-integral gradient.
+    pub fn gradient(
+        &self,
+        spec: &StateSpec,
+        opts: &crate::gradient::GradientOptions,
+    ) -> Result<Vec<[f64; 3]>> {
+        let g = if spec.scf.fock == scf::FockMethod::DensityFitted {
+            let name = spec
+                .scf
+                .jk_fitting
+                .as_deref()
+                .unwrap_or(scf::context::DEFAULT_JK_FITTING);
+            let aux = basis::load_auxiliary(name, &self.molecule)?;
+            crate::gradient::scf_gradient_fitted(
+                &self.molecule,
+                &self.basis,
+                &aux,
+                &self.wavefunction,
+                opts,
+            )?
+        } else {
+            crate::gradient::scf_gradient(&self.molecule, &self.basis, &self.wavefunction, opts)?
+        };
+        Ok(g.total)
+    }
+}
+
 #[derive(Debug, Clone)]
 pub struct HoleTrack {
     pub parent: Wavefunction,

@@ -68,6 +68,37 @@ pub fn energy_weighted_density(
     }
 }
 
+/// W of an RHF or UHF state from its orbitals and orbital energies, without a Fock
+/// matrix: the occupied orbitals of each spin are eigenvectors of that spin's Fock matrix,
+/// so P^σ F^σ P^σ = Σ_i n^σ_i ε^σ_i c^σ_i c^σᵀ_i (the same W as
+/// [`energy_weighted_density`] up to the SCF's convergence; common practice). RHF: both spins
+/// in `c_alpha`, W = 2 Σ_i n_i ε_i c_i c_iᵀ. ROHF orbital energies belong to an effective
+/// Fock operator and do not give W: `None`.
+pub fn energy_weighted_from_orbitals(
+    reference: Reference,
+    c_alpha: &Mat<f64>,
+    c_beta: &Mat<f64>,
+    eps_alpha: &[f64],
+    eps_beta: &[f64],
+    occ_alpha: &[f64],
+    occ_beta: &[f64],
+) -> Option<Mat<f64>> {
+    let weighted = |occ: &[f64], eps: &[f64], scale: f64| -> Vec<f64> {
+        occ.iter().zip(eps).map(|(n, e)| scale * n * e).collect()
+    };
+    match reference {
+        Reference::Rhf => Some(crate::scf::wavefunction::density(
+            c_alpha,
+            &weighted(occ_alpha, eps_alpha, 2.0),
+        )),
+        Reference::Uhf => Some(
+            &crate::scf::wavefunction::density(c_alpha, &weighted(occ_alpha, eps_alpha, 1.0))
+                + &crate::scf::wavefunction::density(c_beta, &weighted(occ_beta, eps_beta, 1.0)),
+        ),
+        Reference::Rohf => None,
+    }
+}
+
 /// P F P for one spin, P = Σ_i n_i c_i c_iᵀ.
 fn spin_block(c: &Mat<f64>, occ: &[f64], f: &Mat<f64>) -> Mat<f64> {
     let p = crate::scf::wavefunction::density(c, occ);

@@ -10,10 +10,11 @@
 //! method. Two-electron part integral-direct (`integrals::derivative::EriDerivative`),
 //! one-electron parts by shell pairs; all parallel and independent of the thread count.
 //!
-//! The wavefunction must come from exact integrals: a density-fitted energy has a different
-//! gradient (the density-fitted gradient is not implemented, see README).
+//! A density-fitted energy (J and K fitted) has its own gradient: `scf_gradient_fitted`
+//! replaces the two-electron part by `density_fitted`'s; everything else is shared.
 
-use super::energy_weighted::energy_weighted_density;
+use super::density_fitted::fitted_two_electron;
+use super::energy_weighted::{energy_weighted_density, energy_weighted_from_orbitals};
 use super::nuclear_repulsion::nuclear_repulsion_gradient;
 use crate::basis::BasisSet;
 use crate::chem::Molecule;
@@ -24,19 +25,26 @@ use crate::integrals::derivative::{
 use crate::integrals::EriEngine;
 use crate::scf::fock::quartets::QuartetPlan;
 use crate::scf::fock::source::EngineSource;
-use crate::scf::fock::{DirectFock, FockBuilder};
+use crate::scf::fock::{DfFock, DirectFock, FockBuilder};
 use crate::scf::{core_hamiltonian, Reference, Wavefunction};
+use bandcast_linalg::Mat;
 
 /// Thresholds of a gradient evaluation.
 #[derive(Debug, Clone, Copy)]
 pub struct GradientOptions {
     /// Schwarz × density threshold for the derivative integrals and the Fock build.
     pub screening: f64,
+    /// Build W from Fock matrices rebuilt at the converged densities even where the
+    /// orbital energies give it (RHF, UHF); for checks. ROHF always rebuilds.
+    pub w_from_fock: bool,
 }
 
 impl Default for GradientOptions {
     fn default() -> Self {
-        GradientOptions { screening: 1e-12 }
+        GradientOptions {
+            screening: 1e-12,
+            w_from_fock: false,
+        }
     }
 }
 
@@ -50,15 +58,40 @@ pub struct ScfGradient {
     /// −Σ W S'.
     pub overlap: Vec<[f64; 3]>,
     pub two_electron: Vec<[f64; 3]>,
-    /// Wall seconds of the parts: "fock" (J and K at the converged densities, for W),
+    /// Wall seconds of the parts: "fock" (W: from the orbital energies, or J and K at the
+    /// converged densities for ROHF),
     /// "one-electron" (S', T', V'), "two-electron" (the derivative ERIs).
     pub timings: Vec<(String, f64)>,
 }
 
-/// dE/dR of the SCF state `wf` of `mol` in `basis`.
+/// dE/dR of the SCF state `wf` of `mol` in `basis` (exact integrals: the SCF used the
+/// in-core or the integral-direct Fock builder).
 pub fn scf_gradient(
     mol: &Molecule,
     basis: &BasisSet,
+    wf: &Wavefunction,
+    opts: &GradientOptions,
+) -> Result<ScfGradient> {
+    gradient_with(mol, basis, None, wf, opts)
+}
+
+/// dE/dR of the density-fitted SCF state `wf` (J and K fitted with the auxiliary set `aux`,
+/// the density-fitted Fock builder): the exact derivative of that energy
+/// (`density_fitted`).
+pub fn scf_gradient_fitted(
+    mol: &Molecule,
+    basis: &BasisSet,
+    aux: &BasisSet,
+    wf: &Wavefunction,
+    opts: &GradientOptions,
+) -> Result<ScfGradient> {
+    gradient_with(mol, basis, Some(aux), wf, opts)
+}
+
+fn gradient_with(
+    mol: &Molecule,
+    basis: &BasisSet,
+    aux: Option<&BasisSet>,
     wf: &Wavefunction,
     opts: &GradientOptions,
 ) -> Result<ScfGradient> {
@@ -86,25 +119,48 @@ pub fn scf_gradient(
         let before: f64 = timings.iter().map(|t| t.1).sum();
         timings.push((name.to_string(), clock.elapsed().as_secs_f64() - before));
     };
-    // Fock matrices at the converged densities (for W)
-    let h = core_hamiltonian(basis, mol);
-    let engine = EriEngine::new(basis);
-    let src = EngineSource::new(&engine, basis);
-    let plan = QuartetPlan::new(&src, opts.screening);
-    let mut direct = DirectFock::new(&src, plan);
-    let jk = direct.jk(&[&pa, &pb])?;
-    let j = &jk[0].j + &jk[1].j;
-    let fa = &(&h + &j) - &jk[0].k;
-    let fb = &(&h + &j) - &jk[1].k;
-    let w = energy_weighted_density(
-        wf.reference,
-        &wf.c_alpha,
-        &wf.c_beta,
-        &wf.occ_alpha,
-        &wf.occ_beta,
-        &fa,
-        &fb,
-    );
+    // W: from the orbital energies (RHF, UHF), or from the Fock matrices at the converged
+    // densities (ROHF, or when asked)
+    let from_orbitals = if opts.w_from_fock {
+        None
+    } else {
+        energy_weighted_from_orbitals(
+            wf.reference,
+            &wf.c_alpha,
+            &wf.c_beta,
+            &wf.eps_alpha,
+            &wf.eps_beta,
+            &wf.occ_alpha,
+            &wf.occ_beta,
+        )
+    };
+    let w = match from_orbitals {
+        Some(w) => w,
+        None => {
+            let h = core_hamiltonian(basis, mol);
+            let jk = match aux {
+                Some(aux) => DfFock::new(basis, aux, usize::MAX)?.jk(&[&pa, &pb])?,
+                None => {
+                    let engine = EriEngine::new(basis);
+                    let src = EngineSource::new(&engine, basis);
+                    let plan = QuartetPlan::new(&src, opts.screening);
+                    DirectFock::new(&src, plan).jk(&[&pa, &pb])?
+                }
+            };
+            let j = &jk[0].j + &jk[1].j;
+            let fa = &(&h + &j) - &jk[0].k;
+            let fb = &(&h + &j) - &jk[1].k;
+            energy_weighted_density(
+                wf.reference,
+                &wf.c_alpha,
+                &wf.c_beta,
+                &wf.occ_alpha,
+                &wf.occ_beta,
+                &fa,
+                &fb,
+            )
+        }
+    };
 
     lap("fock", &mut timings);
     let vnn = nuclear_repulsion_gradient(mol);
@@ -128,16 +184,39 @@ pub fn scf_gradient(
     let gs = overlap_gradient(basis, n_atoms, &w);
     let ovl: Vec<[f64; 3]> = gs.iter().map(|a| [-a[0], -a[1], -a[2]]).collect();
     lap("one-electron", &mut timings);
-    let deriv = EriDerivative::new(basis);
-    let two = match wf.reference {
-        Reference::Rhf => deriv.contract(basis, n_atoms, &pt, &[(0.5, &pt)], opts.screening),
-        _ => deriv.contract(
-            basis,
-            n_atoms,
-            &pt,
-            &[(1.0, &pa), (1.0, &pb)],
-            opts.screening,
-        ),
+    let two = match aux {
+        None => {
+            let deriv = EriDerivative::new(basis);
+            match wf.reference {
+                Reference::Rhf => {
+                    deriv.contract(basis, n_atoms, &pt, &[(0.5, &pt)], opts.screening)
+                }
+                _ => deriv.contract(
+                    basis,
+                    n_atoms,
+                    &pt,
+                    &[(1.0, &pa), (1.0, &pb)],
+                    opts.screening,
+                ),
+            }
+        }
+        Some(aux) => {
+            // exchange densities as factors X = L Lᵀ (occupied orbitals, √occupation)
+            let factor = |c: &Mat<f64>, occ: &[f64], scale: f64| {
+                let cols: Vec<usize> = (0..occ.len()).filter(|&i| occ[i] > 0.0).collect();
+                Mat::<f64>::from_fn(c.nrows(), cols.len(), |mu, k| {
+                    c[(mu, cols[k])] * (scale * occ[cols[k]]).sqrt()
+                })
+            };
+            let exchange = match wf.reference {
+                Reference::Rhf => vec![(0.5, factor(&wf.c_alpha, &wf.occ_alpha, 2.0))],
+                _ => vec![
+                    (1.0, factor(&wf.c_alpha, &wf.occ_alpha, 1.0)),
+                    (1.0, factor(&wf.c_beta, &wf.occ_beta, 1.0)),
+                ],
+            };
+            fitted_two_electron(basis, aux, n_atoms, &pt, &exchange, opts.screening)?
+        }
     };
     lap("two-electron", &mut timings);
     let total: Vec<[f64; 3]> = (0..n_atoms)

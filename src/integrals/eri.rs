@@ -236,6 +236,27 @@ impl EriEngine {
         &self.schwarz
     }
 
+    /// The pair data of the ordered shell pair (a, b) when it is a plain pair (not part of
+    /// a general-contraction family unit), else None.
+    pub(crate) fn plain_pair(&self, a: usize, b: usize) -> Option<&PairData> {
+        let (u, _) = self.pair_unit[a * self.n_shells + b];
+        if u == NONE {
+            return None;
+        }
+        let pd = &self.units[u as usize];
+        (pd.n_members == 1).then_some(pd)
+    }
+
+    /// What the kernel knows of shell `s`.
+    pub(crate) fn meta(&self, s: usize) -> &ShellMeta {
+        &self.shells[s]
+    }
+
+    /// The primitive-quartet screening threshold.
+    pub(crate) fn tau(&self) -> f64 {
+        self.tau
+    }
+
     /// Number of final AO functions of shell `s`.
     pub fn n_functions(&self, s: usize) -> usize {
         self.shells[s].n_func

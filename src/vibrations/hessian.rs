@@ -13,7 +13,7 @@ use crate::chem::Molecule;
 use crate::error::{Error, Result};
 use crate::geometry::state::hole_lost;
 use crate::geometry::{SolvedState, StateSpec};
-use crate::gradient::{scf_gradient, GradientOptions};
+use crate::gradient::GradientOptions;
 
 /// Displacement (bohr) of the central differences.
 pub const HESSIAN_STEP: f64 = 0.005;
@@ -58,7 +58,7 @@ pub fn hessian_by_gradients_with(
                 i + 1
             )));
         }
-        Ok(scf_gradient(&st.molecule, &st.basis, &st.wavefunction, &gopts)?.total)
+        st.gradient(state, &gopts)
     };
     let (tx, rx) = std::sync::mpsc::channel::<()>();
     let grads: Vec<Result<Vec<[f64; 3]>>> = std::thread::scope(|scope| {

@@ -21,13 +21,15 @@ use crate::integrals::EriEngine;
 use bandcast_linalg::Mat;
 use rayon::prelude::*;
 
+use super::one_pass::{quartet_derivatives, DerivMaps, QuartetInput, SideDerivs};
+
 /// The engine over a basis and its raised/lowered derivative shells.
 pub struct EriDerivative {
     engine: EriEngine,
     n: usize,
     l: Vec<usize>,
-    nf: Vec<usize>,
-    atom: Vec<usize>,
+    pub(super) nf: Vec<usize>,
+    pub(super) atom: Vec<usize>,
     plus: Vec<usize>,
     minus: Vec<Option<usize>>,
     /// Per shell and direction: n_f × n_cart(l+1) and n_f × n_cart(l−1) matrices from the
@@ -35,6 +37,10 @@ pub struct EriDerivative {
     /// final AOs.
     g_plus: Vec<[Vec<f64>; 3]>,
     g_minus: Vec<[Vec<f64>; 3]>,
+    /// The same per shell from raw (un-normalised) Cartesian components, for `one_pass`.
+    maps: Vec<DerivMaps>,
+    /// Use `one_pass` for plain pairs (else the per-centre path for every quartet).
+    one_pass: bool,
 }
 
 fn comp_index(l: usize, c: [usize; 3]) -> usize {
@@ -46,15 +52,30 @@ fn comp_index(l: usize, c: [usize; 3]) -> usize {
 
 impl EriDerivative {
     pub fn new(basis: &BasisSet) -> Self {
-        let n = basis.shells.len();
-        let mut shells: Vec<Shell> = basis.shells.clone();
-        let mut coefs: Vec<Vec<f64>> = basis.shells.iter().map(contracted_coefficients).collect();
+        let coefs: Vec<Vec<f64>> = basis.shells.iter().map(contracted_coefficients).collect();
+        Self::build(&basis.shells, coefs, &|_, _| true)
+    }
+
+    /// The engine over `originals` with normalised coefficients `coefs` (see
+    /// `crate::basis::normalize`) and their raised/lowered shells, keeping the pairs of
+    /// original shells (x, y) with `wanted(x, y)` (symmetric) and every pair of a derived
+    /// shell with an original y whose source x has `wanted(x, y)`.
+    pub(crate) fn build(
+        originals: &[Shell],
+        coefs: Vec<Vec<f64>>,
+        wanted: &(dyn Fn(usize, usize) -> bool + Sync),
+    ) -> Self {
+        let n = originals.len();
+        let mut shells: Vec<Shell> = originals.to_vec();
+        let mut coefs = coefs;
+        let mut source: Vec<usize> = (0..n).collect();
         let mut plus = Vec::with_capacity(n);
         let mut minus = Vec::with_capacity(n);
         for s in 0..n {
-            let sh = &basis.shells[s];
+            let sh = &originals[s];
             let d = coefs[s].clone();
             plus.push(shells.len());
+            source.push(s);
             shells.push(Shell {
                 l: sh.l + 1,
                 pure: false,
@@ -68,6 +89,7 @@ impl EriDerivative {
             );
             if sh.l > 0 {
                 minus.push(Some(shells.len()));
+                source.push(s);
                 shells.push(Shell {
                     l: sh.l - 1,
                     pure: false,
@@ -79,10 +101,12 @@ impl EriDerivative {
             }
         }
         // pairs with at least one original shell (a ≥ b, so b must be original)
-        let engine = EriEngine::build(&shells, &coefs, &|_a, b| b < n);
+        let keep = |a: usize, b: usize| b < n && wanted(source[a], b);
+        let engine = EriEngine::build(&shells, &coefs, &keep);
         let mut g_plus = Vec::with_capacity(n);
         let mut g_minus = Vec::with_capacity(n);
-        for sh in &basis.shells {
+        let mut maps = Vec::with_capacity(n);
+        for sh in originals {
             let l = sh.l;
             let t = solid_harmonics::transform(l, sh.pure);
             let nf = sh.n_functions();
@@ -99,6 +123,8 @@ impl EriDerivative {
             };
             let mut gp: [Vec<f64>; 3] = std::array::from_fn(|_| vec![0.0; nf * ncp]);
             let mut gm: [Vec<f64>; 3] = std::array::from_fn(|_| vec![0.0; nf * ncm]);
+            let mut rp: [Vec<f64>; 3] = std::array::from_fn(|_| vec![0.0; nf * ncp]);
+            let mut rm: [Vec<f64>; 3] = std::array::from_fn(|_| vec![0.0; nf * ncm]);
             for (iq, q) in components(l).iter().enumerate() {
                 for k in 0..3 {
                     let mut up = *q;
@@ -107,6 +133,7 @@ impl EriDerivative {
                     let cf_up = tp[iu * ncp + iu];
                     for mu in 0..nf {
                         gp[k][mu * ncp + iu] += t[mu * nc + iq] / cf_up;
+                        rp[k][mu * ncp + iu] += t[mu * nc + iq];
                     }
                     if q[k] > 0 {
                         let mut dn = *q;
@@ -115,24 +142,38 @@ impl EriDerivative {
                         let cf_dn = tm[id * ncm + id];
                         for mu in 0..nf {
                             gm[k][mu * ncm + id] -= q[k] as f64 * t[mu * nc + iq] / cf_dn;
+                            rm[k][mu * ncm + id] -= q[k] as f64 * t[mu * nc + iq];
                         }
                     }
                 }
             }
             g_plus.push(gp);
             g_minus.push(gm);
+            maps.push(DerivMaps {
+                plus: rp,
+                minus: rm,
+            });
         }
         EriDerivative {
             engine,
             n,
-            l: basis.shells.iter().map(|s| s.l).collect(),
-            nf: basis.shells.iter().map(|s| s.n_functions()).collect(),
-            atom: basis.shells.iter().map(|s| s.atom).collect(),
+            l: originals.iter().map(|s| s.l).collect(),
+            nf: originals.iter().map(|s| s.n_functions()).collect(),
+            atom: originals.iter().map(|s| s.atom).collect(),
             plus,
             minus,
             g_plus,
             g_minus,
+            maps,
+            one_pass: true,
         }
+    }
+
+    /// Compute every quartet by the per-centre path (`centre_derivative`), not by
+    /// `one_pass`; for checks.
+    pub fn per_centre_only(mut self) -> Self {
+        self.one_pass = false;
+        self
     }
 
     /// Schwarz bound √max|(ab|ab)| of the original shell pair (a, b).
@@ -171,6 +212,77 @@ impl EriDerivative {
                 }
             }
         }
+    }
+
+    /// The contribution of the quartet `q` (a ≥ b, c ≥ d) to the gradient `g`
+    /// (3 n_atoms), derivative integrals from one primitive pass (`one_pass`), when both its
+    /// pairs are plain pairs; false (nothing done) otherwise.
+    fn one_pass_quartet(
+        &self,
+        q: [usize; 4],
+        off: &[usize],
+        coulomb: &Mat<f64>,
+        exchange: &[(f64, &Mat<f64>)],
+        scale: f64,
+        g: &mut [f64],
+    ) -> bool {
+        // the higher angular momentum first in each pair (the recurrences cost less)
+        let orient = |x: usize, y: usize| {
+            if self.l[x] < self.l[y] {
+                (y, x)
+            } else {
+                (x, y)
+            }
+        };
+        let (a, b) = orient(q[0], q[1]);
+        let (c, d) = orient(q[2], q[3]);
+        if !self.one_pass {
+            return false;
+        }
+        let (Some(pb), Some(pk)) = (self.engine.plain_pair(a, b), self.engine.plain_pair(c, d))
+        else {
+            return false;
+        };
+        let q2 = [a, b, c, d];
+        let at = q2.map(|x| self.atom[x]);
+        let (bra, ket) = match (pb.ab != [0.0; 3], pk.ab != [0.0; 3]) {
+            (false, false) => (SideDerivs::Combined, SideDerivs::No),
+            (true, false) => (SideDerivs::Both, SideDerivs::No),
+            (false, true) => (SideDerivs::No, SideDerivs::Both),
+            (true, true) => (SideDerivs::Both, SideDerivs::First),
+        };
+        // atoms of the groups computed, and the atom that takes minus their sum
+        let (targets, rest): (&[usize], usize) = match (bra, ket) {
+            (SideDerivs::Combined, _) => (&[0], 2),
+            (SideDerivs::Both, SideDerivs::No) => (&[0, 1], 2),
+            (SideDerivs::No, _) => (&[2, 3], 0),
+            _ => (&[0, 1, 2], 3),
+        };
+        let input = QuartetInput {
+            metas: q2.map(|x| self.engine.meta(x)),
+            maps: q2.map(|x| &self.maps[x]),
+            pb,
+            pk,
+            tau: self.engine.tau(),
+        };
+        GROUPS.with(|cell| {
+            let (groups, gam) = &mut *cell.borrow_mut();
+            quartet_derivatives(&input, bra, ket, groups);
+            gamma_block(q2, q2.map(|x| self.nf[x]), off, coulomb, exchange, gam);
+            for (gi, &pos) in targets.iter().enumerate() {
+                for k in 0..3 {
+                    let v: f64 = groups[gi][k]
+                        .iter()
+                        .zip(gam.iter())
+                        .map(|(x, y)| x * y)
+                        .sum::<f64>()
+                        * scale;
+                    g[3 * at[pos] + k] += v;
+                    g[3 * at[rest] + k] -= v;
+                }
+            }
+        });
+        true
     }
 
     /// The two-electron part of an energy gradient, ½ Σ_μνλσ ∂(μν|λσ)/∂R_A Γ_μνλσ with
@@ -230,13 +342,15 @@ impl EriDerivative {
                     if qab * self.schwarz(c, d) * dm < threshold {
                         continue;
                     }
-                    let q = [a, b, c, d];
-                    let dims = q.map(|x| self.nf[x]);
-                    gamma_block(q, dims, off, coulomb, exchange, &mut gam);
                     let deg = if a != b { 2.0 } else { 1.0 }
                         * if c != d { 2.0 } else { 1.0 }
                         * if iab != pairs_index(c, d) { 2.0 } else { 1.0 };
                     let scale = 0.5 * deg;
+                    if self.one_pass_quartet([a, b, c, d], off, coulomb, exchange, scale, &mut g) {
+                        continue;
+                    }
+                    let q = [a, b, c, d];
+                    gamma_block(q, q.map(|x| self.nf[x]), off, coulomb, exchange, &mut gam);
                     // the atom occurring most often takes minus the sum of the others
                     let count = |x: usize| atoms.iter().filter(|&&y| y == x).count();
                     let skip = (0..4)
@@ -270,6 +384,12 @@ impl EriDerivative {
         }
         g
     }
+}
+
+thread_local! {
+    /// Derivative blocks and Γ of the quartet in hand (per thread).
+    static GROUPS: std::cell::RefCell<(Vec<[Vec<f64>; 3]>, Vec<f64>)> =
+        std::cell::RefCell::new((Vec::new(), Vec::new()));
 }
 
 /// Index of the pair (a ≥ b) in the list (0,0), (1,0), (1,1), (2,0), …
@@ -372,6 +492,21 @@ mod tests {
             // translational invariance (exact condition)
             for s in sum {
                 assert!(s.abs() < 1e-9, "sum of components {s}");
+            }
+            // the one-pass and the per-centre derivatives agree (two routes to the same
+            // integrals; regression)
+            let per = EriDerivative::new(&basis)
+                .per_centre_only()
+                .contract(&basis, 3, &j, &x, 0.0);
+            for atom in 0..3 {
+                for k in 0..3 {
+                    assert!(
+                        (g[atom][k] - per[atom][k]).abs() < 1e-11,
+                        "pure={pure} atom {atom} dir {k}: one pass {} vs per centre {}",
+                        g[atom][k],
+                        per[atom][k]
+                    );
+                }
             }
         }
     }
