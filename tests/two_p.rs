@@ -300,23 +300,97 @@ fn spectrum_with_element_s_draws_the_2p_doublet_at_al_ka() {
     assert!(!text.contains("S1 1s"));
 }
 
-/// SO2 needs a larger basis: S in a high oxidation state wants tight d functions. cc-pVDZ
-/// gives 176.16 eV and cc-pVTZ 175.63 eV; def2-TZVPP (125 functions, about 90 s on a loaded
-/// 2-core machine) 175.29 eV (docs/core-levels.md). Against S 2p3/2 of SO2 ≈ 174.8 eV
-/// (gas-phase XPS, from memory): ignored in the suite for its cost.
-#[test]
-#[ignore = "def2-TZVPP SO2 takes about 90 s"]
-fn sulfur_dioxide_2p3_2_in_def2_tzvpp() {
-    let mol = load("sulfur-dioxide");
-    let set = bandcast::basis::load("def2-TZVPP", &mol, None).unwrap();
+/// The 2p3/2 of a molecule's sulfur with cc-pCVTZ functions on the hole atom (the
+/// core-valence set, which brings the tight d functions an S–O bond needs) and cc-pVDZ on the
+/// other atoms.
+fn sulfur_2p3_2_core_valence(name: &str) -> f64 {
+    let mol = load(name);
+    let set = bandcast::basis::load("cc-pVDZ", &mol, None).unwrap();
     let opts = CoreOptions {
         targets: bandcast::core_level::TargetSelection::Element(16),
+        shell: ShellChoice::Fixed(CoreShell::P2),
+        core_basis: bandcast::core_level::CoreBasis::parse("cc-pCVTZ"),
         ..CoreOptions::default()
     };
     let r = bandcast::core_level::predict(&mol, &set, &opts).unwrap();
-    let l = level(&r, "2p3/2");
-    // 174.8 eV from memory: the tolerance allows for the slip (0.6 eV).
-    assert!((l.dscf_ev - 174.8).abs() < 0.6, "{:.3}", l.dscf_ev);
+    level(&r, "2p3/2").dscf_ev
+}
+
+/// S 2p3/2 of SO2 (sulfur(IV)) against the gas-phase value, and its shift from H2S.
+///
+/// Published: SO2(g) S 2p 174.7 eV (the 2p3/2 of a doublet fitted with a 1.2 eV splitting
+/// and 2:1 areas; Nature Communications (2024), doi 10.1038/s41467-024-53186-5, Table 1,
+/// "matches the literature value"); H2S 170.2 eV (gas phase, from memory). Shift 4.5 eV.
+///
+/// Why the tolerance is 0.6 eV and the shift's 1.0 eV (measured, docs/core-levels.md): the
+/// ΔSCF value of SO2 is basis-converged here — cc-pCVTZ on S with cc-pVDZ elsewhere 175.20,
+/// cc-pVTZ 175.26, aug-cc-pVTZ 175.31, def2-TZVPP 175.29 eV — so the remaining +0.5 eV is not
+/// the basis. Hartree–Fock ΔSCF normally lies *below* experiment (H2S: 169.81 eV, −0.4),
+/// and lies above it where static correlation is larger in the core-ionised state than in
+/// the neutral, as around multiply bonded atoms (J. Phys. Chem. A 128 (2024) 895, "Theoretical
+/// prediction of core-level binding energies: analysis of unexpected errors"). The two
+/// errors of opposite sign add in the shift (5.39 against 4.5 eV). The default cc-pVDZ with
+/// only uncontracted s, p on S gives 176.16 eV for SO2: 1 eV more, a basis defect (cc-pVDZ
+/// lacks the tight d functions of S in high oxidation states; Dunning, Peterson & Wilson,
+/// J. Chem. Phys. 114 (2001) 9244, from memory) — hence `--core-basis cc-pCVTZ` for them.
+#[test]
+fn sulfur_dioxide_2p3_2_and_its_shift_from_h2s_with_core_valence_functions_on_s() {
+    let so2 = sulfur_2p3_2_core_valence("sulfur-dioxide");
+    let h2s = sulfur_2p3_2_core_valence("hydrogen-sulfide");
+    eprintln!("S 2p3/2: SO2 {so2:.3} eV (174.7), H2S {h2s:.3} eV (170.2)");
+    assert!(so2 > 174.7 && so2 - 174.7 < 0.6, "SO2 {so2:.3}");
+    assert!(h2s < 170.2 && 170.2 - h2s < 0.5, "H2S {h2s:.3}");
+    let shift = so2 - h2s;
+    assert!(shift > 4.5 && shift - 4.5 < 1.0, "shift {shift:.3}");
+}
+
+/// ΔMP2 for 2p levels (all electrons, UMP2 on the UHF cation of each hole, through the same
+/// spin–orbit matrix): for Ar and HCl it closes most of the gap ΔSCF leaves (Ar 248.16 →
+/// 248.51 eV, HCl 206.99 → 207.45 eV measured in cc-pVDZ). Published: Ar 2p3/2 248.6 eV, HCl
+/// Cl 2p3/2 207.4 eV (gas phase, from memory); 0.3 eV allows for the double-zeta basis.
+#[test]
+fn delta_mp2_2p3_2_of_argon_and_hcl() {
+    for (name, published) in [("argon", 248.6), ("hydrogen-chloride", 207.4)] {
+        let mol = load(name);
+        let set = bandcast::basis::load("cc-pVDZ", &mol, None).unwrap();
+        let opts = CoreOptions {
+            shell: ShellChoice::Fixed(CoreShell::P2),
+            mp2: true,
+            ..CoreOptions::default()
+        };
+        let r = bandcast::core_level::predict(&mol, &set, &opts).unwrap();
+        let (l32, l12) = (level(&r, "2p3/2"), level(&r, "2p1/2"));
+        let (m32, m12) = (l32.dmp2_ev.unwrap(), l12.dmp2_ev.unwrap());
+        eprintln!(
+            "{name}: ΔSCF {:.3}, ΔMP2 {m32:.3} vs {published}",
+            l32.dscf_ev
+        );
+        assert!((m32 - published).abs() < 0.3, "{name}: {m32:.3}");
+        // The doublet keeps its order and about its splitting (ζ is the ΔSCF one).
+        assert!(m12 > m32 && ((m12 - m32) - l32.spin_orbit_ev.unwrap()).abs() < 0.1);
+    }
+}
+
+#[test]
+fn equivalent_atoms_get_one_2p_computation_and_the_localisation_note() {
+    // Cl2 (D∞h): the two Cl are equivalent, so the second takes the first's numbers (exact
+    // condition of the point group) and the run says that the hole sat on one atom, as 1s
+    // runs do. The 2p hole of Cl1 lies on Cl1 (population ≥ 0.95), not shared by the pair.
+    let r = two_p("chlorine");
+    let levels: Vec<&CoreLevel> = r.core_levels.iter().collect();
+    assert_eq!(levels.len(), 4, "two 2p doublets");
+    let (a, b) = (level(&r, "2p3/2"), &levels[2]);
+    assert_eq!(b.shell, "2p3/2");
+    assert_eq!(b.same_as_atom, Some(a.atom));
+    assert_eq!(a.dscf_ev, b.dscf_ev);
+    assert!(
+        a.localised && a.hole_population > 0.95,
+        "{}",
+        a.hole_population
+    );
+    let codes: Vec<&str> = r.notes.0.iter().map(|n| n.code()).collect();
+    assert!(codes.contains(&"holes_localised"), "{codes:?}");
+    assert!(codes.contains(&"equivalent_computed_once"), "{codes:?}");
 }
 
 #[test]

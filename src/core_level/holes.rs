@@ -285,7 +285,7 @@ fn hole_notes(
 /// ΔSCF plus the change of the MP2 energy (eV), from the best UHF cation that held the hole
 /// (UMP2 needs an unrestricted reference: an ROHF winner is passed over); None with a note
 /// when no UHF start held it.
-fn dmp2_ev(
+pub(crate) fn dmp2_ev(
     ctx: &HoleContext,
     states: &[CationState],
     neutral_mp2: f64,

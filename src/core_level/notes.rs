@@ -65,6 +65,9 @@ pub enum CoreNote {
     SpinOrbitModel { source: String },
     /// A 2p hole turned away from the axis it was put on (overlap with the start orbital).
     HoleTurned { axis: usize, overlap: f64 },
+    /// No ΔMP2 for a 2s/2p level: an orbital-energy denominator of a hole's cation came near
+    /// zero, or the three 2p holes' corrections disagree (`two_p::MP2_SPREAD_EV`).
+    Mp2Intruder { axis: usize, reason: String },
     /// The level lies above the photon energy given: the sources that reach it.
     BeyondPhoton {
         level: String,
@@ -93,6 +96,7 @@ impl CoreNote {
             CoreNote::NoUhfForMp2 => "no_uhf_for_mp2",
             CoreNote::SpinOrbitModel { .. } => "spin_orbit_model",
             CoreNote::HoleTurned { .. } => "hole_turned",
+            CoreNote::Mp2Intruder { .. } => "mp2_intruder",
             CoreNote::BeyondPhoton { .. } => "beyond_photon",
         }
     }
@@ -203,6 +207,12 @@ impl fmt::Display for CoreNote {
                 f,
                 "the hole put on 2p axis {axis} turned away from it (overlap {overlap:.2} with \
                  the start orbital): the molecular-field substructure of this level is uncertain"
+            ),
+            CoreNote::Mp2Intruder { axis, reason } => write!(
+                f,
+                "no ΔMP2 for this level (hole on axis {axis}: {reason}): a second-shell hole \
+                 lies among occupied orbitals of its own shell, so second-order theory can meet \
+                 vanishing or near-vanishing denominators; the level keeps its ΔSCF value"
             ),
             CoreNote::BeyondPhoton {
                 level,
@@ -340,6 +350,10 @@ mod tests {
             CoreNote::HoleTurned {
                 axis: 1,
                 overlap: 0.5,
+            },
+            CoreNote::Mp2Intruder {
+                axis: 1,
+                reason: "x".into(),
             },
             CoreNote::BeyondPhoton {
                 level: "S1 1s".into(),

@@ -50,6 +50,9 @@ pub struct SpatialHole {
     /// When the hole is degenerate with an earlier axis (same orbital energy within
     /// `DEGENERATE_HARTREE`), that axis: its ΔSCF is taken, no SCF is run.
     pub same_as_axis: Option<usize>,
+    /// ΔSCF plus the change of the MP2 energy (eV), with `--method dmp2` only.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub dmp2_ev: Option<f64>,
 }
 
 /// Orbital energies closer than this (hartree) make two 2p axes degenerate by symmetry.

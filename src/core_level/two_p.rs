@@ -27,7 +27,7 @@ use crate::system::process_cpu_seconds as cpu_seconds;
 use crate::units::{ev, HARTREE_TO_EV};
 
 use super::cation::{final_hole_overlap, HoleSetup};
-use super::holes::{lowest_held, no_hole_error, search, HoleContext};
+use super::holes::{dmp2_ev, lowest_held, no_hole_error, search, HoleContext};
 use super::lifetime::level_fwhm_ev;
 use super::neutrals::{
     cpu_diff, memory_budget_bytes, neutral, shared_quartets, Carried, NeutralInputs,
@@ -63,11 +63,6 @@ pub fn predict_shells(
         return with_shifts(mol, basis, opts, progress);
     }
     if groups.iter().any(|(s, _)| *s != CoreShell::S1) {
-        if opts.mp2 {
-            return Err(Error::input(
-                "ΔMP2 is computed for 1s levels; 2s and 2p levels are ΔSCF",
-            ));
-        }
         if opts.cc.is_some() {
             return Err(Error::input(
                 "ΔCCSD and ΔCCSD(T) are computed for 1s levels; 2s and 2p levels are ΔSCF \
@@ -198,6 +193,10 @@ fn with_shifts(
         {
             Some((_, x)) => {
                 l.shift_ev = Some(l.dscf_ev - x.dscf_ev);
+                l.shift_dmp2_ev = match (l.dmp2_ev, x.dmp2_ev) {
+                    (Some(a), Some(b)) => Some(a - b),
+                    _ => None,
+                };
                 l.cc.shift_binding_ev = Some(l.cc.binding_ev - x.binding_ev);
             }
             None => notes.push(CoreNote::ReferenceLacksElement {
@@ -358,17 +357,19 @@ fn second_shell(
     let mut previous: Option<Carried> = None;
     let mut n_basis_max = 0;
     let mut neutral_energies = Vec::new();
+    let mut neutral_mp2 = Vec::new();
     for unit in &plan.units {
         let mut n = neutral(&inputs, unit, previous.as_ref(), &mut timings)?;
         n_basis_max = n_basis_max.max(n.basis.n_basis);
         neutral_energies.push(n.wf.energy);
+        neutral_mp2.extend(n.mp2);
         let ctx = HoleContext {
             mol,
             basis: &n.basis,
             s: &n.s,
             s_half: &n.s_half,
             neutral: &n.wf,
-            neutral_mp2: None,
+            neutral_mp2: n.mp2,
             neutral_cc: None,
             opts: &popts,
             memory_budget_bytes: budget,
@@ -424,6 +425,8 @@ fn second_shell(
             max_displacement_angstrom: displacement * crate::units::BOHR_TO_ANGSTROM,
         });
     }
+    // As for 1s: say that holes of atoms with equivalent partners sit on one atom.
+    super::assemble::note_localised(&levels, &mut notes);
     if shell == CoreShell::P2 {
         notes.push(CoreNote::SpinOrbitModel {
             source: SPIN_ORBIT_SOURCE.to_string(),
@@ -439,13 +442,14 @@ fn second_shell(
     }
     timings.total_s = t_start.elapsed().as_secs_f64();
     timings.total_cpu_s = cpu_diff(cpu_start);
+    let n_mp2 = (neutral_mp2.len() == 1).then(|| neutral_mp2[0]);
     Ok(CoreResult {
         molecule: mol.name.clone(),
         basis: basis.name.clone(),
         core_basis: opts.core_basis.describe(),
         n_basis: n_basis_max,
         neutral_energy_hartree: (neutral_energies.len() == 1).then(|| neutral_energies[0]),
-        neutral_mp2_hartree: None,
+        neutral_mp2_hartree: n_mp2,
         core_levels: levels,
         references: Vec::new(),
         relativistic_source: None,
@@ -561,6 +565,22 @@ fn atom_levels(
         if h == 0 {
             cation_energy = wf.energy;
         }
+        // ΔMP2 of this hole (all electrons, UMP2 on the best UHF cation), as for 1s.
+        // A vanishing denominator (the MP2 refusal) leaves the level without ΔMP2, with a note.
+        let dmp2 = match ctx.neutral_mp2 {
+            Some(e2n) => match dmp2_ev(ctx, &states, e2n, &mut notes) {
+                Ok(v) => v,
+                Err(Error::Computation(msg)) => {
+                    notes.push(CoreNote::Mp2Intruder {
+                        axis: h + 1,
+                        reason: msg,
+                    });
+                    None
+                }
+                Err(e) => return Err(e),
+            },
+            None => None,
+        };
         if super::hole_check::spin_contaminated(wf.s2) && notes.is_empty() {
             notes.push(CoreNote::SpinContaminated { s2: wf.s2 });
         }
@@ -580,8 +600,10 @@ fn atom_levels(
             s2: wf.s2,
             start: best.attempt.start.clone(),
             same_as_axis: None,
+            dmp2_ev: dmp2,
         });
     }
+    mp2_spread_guard(&mut spatial, &mut notes);
     let z = ctx.mol.atoms[atom].z;
     let base = CoreLevel {
         atom: atom + 1,
@@ -591,7 +613,7 @@ fn atom_levels(
         shell: shell.name().into(),
         koopmans_ev: spatial[0].koopmans_ev,
         dscf_ev: spatial[0].dscf_ev,
-        dmp2_ev: None,
+        dmp2_ev: spatial[0].dmp2_ev,
         s2: spatial[0].s2,
         relativistic_correction_ev: None,
         dscf_relativistic_ev: None,
@@ -624,6 +646,47 @@ fn atom_levels(
     Ok(spin_orbit_levels(ctx, &loc, atom, base, &spatial))
 }
 
+/// Largest spread (eV) of the ΔMP2 corrections (ΔMP2 − ΔSCF) of the three 2p holes of one
+/// atom that is accepted. The three ΔSCF energies differ by a few tenths of an eV (the
+/// molecular field); their second-order corrections should agree about as well. A spread
+/// beyond 1 eV is the mark of a near-vanishing denominator (measured: SO2 in cc-pVDZ, one
+/// hole −5.2 eV against −0.7 and −0.8 for the other two), so the level's ΔMP2 is dropped.
+pub const MP2_SPREAD_EV: f64 = 1.0;
+
+/// Drop the ΔMP2 values of a 2p set whose corrections disagree by more than
+/// `MP2_SPREAD_EV`, with a note naming the odd hole.
+fn mp2_spread_guard(spatial: &mut [SpatialHole], notes: &mut Notes) {
+    let corr: Vec<(usize, f64)> = spatial
+        .iter()
+        .filter(|s| s.same_as_axis.is_none())
+        .filter_map(|s| s.dmp2_ev.map(|m| (s.axis, m - s.dscf_ev)))
+        .collect();
+    if corr.len() < 2 {
+        return;
+    }
+    let mean = corr.iter().map(|c| c.1).sum::<f64>() / corr.len() as f64;
+    let lo = corr.iter().map(|c| c.1).fold(f64::INFINITY, f64::min);
+    let hi = corr.iter().map(|c| c.1).fold(f64::NEG_INFINITY, f64::max);
+    if hi - lo <= MP2_SPREAD_EV {
+        return;
+    }
+    let odd = corr
+        .iter()
+        .max_by(|a, b| (a.1 - mean).abs().total_cmp(&(b.1 - mean).abs()))
+        .expect("two or more");
+    notes.push(CoreNote::Mp2Intruder {
+        axis: odd.0,
+        reason: format!(
+            "its second-order correction {:+.2} eV differs from the other holes' by more than \
+             {MP2_SPREAD_EV} eV",
+            odd.1
+        ),
+    });
+    for s in spatial.iter_mut() {
+        s.dmp2_ev = None;
+    }
+}
+
 /// The 2p3/2 and 2p1/2 levels of an atom from its three spatial holes.
 fn spin_orbit_levels(
     ctx: &HoleContext,
@@ -652,12 +715,18 @@ fn spin_orbit_levels(
         sel.iter().sum::<f64>() / sel.len() as f64
     };
     let (e32, e12) = (mean(&d, &is32, true), mean(&d, &is32, false));
+    // ΔMP2 energies of the three holes through the same spin–orbit matrix (ζ unchanged).
+    let dm = match (spatial[0].dmp2_ev, spatial[1].dmp2_ev, spatial[2].dmp2_ev) {
+        (Some(a), Some(b), Some(c)) => Some(doublets([a, b, c], zeta_ev, Some(&p))),
+        _ => None,
+    };
     let make = |want: bool, name: &str| {
         let mut l = base.clone();
         l.label = format!("{} {name}", atom_label(ctx.mol, atom));
         l.shell = name.into();
         l.dscf_ev = mean(&d, &is32, want);
         l.koopmans_ev = mean(&dk, &is32k, want);
+        l.dmp2_ev = dm.as_ref().map(|v| mean(v, &j32_doublets(v), want));
         l.cation_energy_hartree = base.neutral_energy_hartree + l.dscf_ev / HARTREE_TO_EV;
         l.lifetime_fwhm_ev = level_fwhm_ev(z, name);
         l.spin_orbit_ev = Some(e12 - e32);
