@@ -22,7 +22,7 @@ use super::hole_check::{spin_contaminated, HoleStatus};
 use super::lifetime::lifetime_fwhm_ev;
 use super::localize::{localise_core_hole, LocalisedHole};
 use super::notes::{CoreNote, Notes};
-use super::options::CoreOptions;
+use super::options::{CoreOptions, IonReference};
 use super::result::{CoreLevel, HoleAttempt};
 use super::targets::atom_label;
 
@@ -93,7 +93,10 @@ pub fn ionise_atom(
         memory_budget_bytes: ctx.memory_budget_bytes,
         symmetry: None,
     };
-    let states = search(&setup, scf, ctx.opts.thorough);
+    let states = match ctx.opts.ion_reference {
+        IonReference::Rohf => vec![run_start(&setup, scf, "rohf")],
+        _ => search(&setup, scf, ctx.opts.thorough),
+    };
     let delocalised = if ctx.opts.delocalised && !partners.is_empty() {
         delocalised_for(ctx, scf, &cation, &loc, atom, partners)
     } else {
@@ -101,7 +104,9 @@ pub fn ionise_atom(
     };
     let label = atom_label(ctx.mol, atom);
     let attempts: Vec<_> = states.iter().map(|s| s.attempt.clone()).collect();
-    let Some(best) = lowest_held(&states, |_| true) else {
+    let Some(best) = lowest_held(&states, |s| {
+        ctx.opts.ion_reference.accepts(&s.attempt.start)
+    }) else {
         return Err(no_hole_error(&format!("{label} 1s"), &attempts, koopmans));
     };
     let wf = best.wf.as_ref().expect("held state has a wavefunction");

@@ -18,6 +18,8 @@ pub enum CoreNote {
     ReferenceLacksElement { element: String, level: String },
     /// Holes on atoms with equivalent partners were localised before the SCF.
     HolesLocalised,
+    /// The method was not asked for: what the default is and why.
+    DefaultMethod(super::default_method::DefaultChoice),
     /// The relativistic correction was added (shifts left non-relativistic).
     RelativisticAdded { source: String },
     /// Atoms equivalent by symmetry were computed once.
@@ -81,6 +83,7 @@ impl CoreNote {
             CoreNote::ReferenceLacksElement { .. } => "reference_lacks_element",
             CoreNote::HolesLocalised => "holes_localised",
             CoreNote::Symmetrised { .. } => "symmetrised",
+            CoreNote::DefaultMethod(_) => "default_method_chosen",
             CoreNote::RelativisticAdded { .. } => "relativistic_added",
             CoreNote::EquivalentComputedOnce { .. } => "equivalent_computed_once",
             CoreNote::EquivalentTo { .. } => "equivalent_to",
@@ -113,6 +116,7 @@ impl CoreNote {
 impl fmt::Display for CoreNote {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         match self {
+            CoreNote::DefaultMethod(choice) => write!(f, "{choice}"),
             CoreNote::ReferenceLacksElement { element, level } => write!(
                 f,
                 "the reference molecule has no {element}: no shift for {level}"

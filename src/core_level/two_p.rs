@@ -67,6 +67,12 @@ pub fn predict_shells(
                 "ΔMP2 is computed for 1s levels; 2s and 2p levels are ΔSCF",
             ));
         }
+        if opts.ion_reference != super::options::IonReference::Lowest {
+            return Err(Error::input(
+                "the cation's wavefunction type is chosen for 1s levels; 2s and 2p levels take \
+                 the lowest state of every start",
+            ));
+        }
         if opts.cc.is_some() {
             return Err(Error::input(
                 "ΔCCSD and ΔCCSD(T) are computed for 1s levels; 2s and 2p levels are ΔSCF \
