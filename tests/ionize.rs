@@ -436,3 +436,53 @@ fn cli_json_has_the_documented_fields() {
     assert_eq!(out.status.code(), Some(2));
     std::fs::remove_dir_all(&dir).ok();
 }
+
+/// ΔCCSD(T)/def2-TZVPP HOMO ionization energy (frozen core, UHF cation held by MOM),
+/// against Krause, Harding & Klopper, Mol. Phys. 113 (2015) 1952 (docs/reference-data.md
+/// §2), within the 0.02 eV. `count` bands are computed; the band whose label is
+/// `homo` is compared.
+fn dccsd_t_homo(xyz: &str, count: usize, homo: &str, published: f64) {
+    let m = mol(xyz);
+    let b = basis(&m, "def2-TZVPP");
+    let r = predict(
+        &m,
+        &b,
+        &ValenceOptions {
+            method: Method::DccsdT,
+            count: Some(count),
+            ..Default::default()
+        },
+    )
+    .unwrap();
+    let band = r
+        .bands
+        .iter()
+        .find(|x| x.label == homo)
+        .unwrap_or_else(|| panic!("no {homo} band among {:?}", r.bands));
+    assert!(
+        (band.ie_ev - published).abs() < 0.02,
+        "{homo}: ΔCCSD(T) {} vs {published}",
+        band.ie_ev
+    );
+}
+
+/// Ne 2p: measured 21.3225 eV against 21.32107 (about 5 CPU-s; the cheap always-on check).
+#[test]
+fn neon_dccsd_t_def2_tzvpp_matches_krause_2015() {
+    dccsd_t_homo(NEON, 1, "2p", 21.32107);
+}
+
+/// The other five light GW100 molecules of docs/reference-data.md §2 (CO at its
+/// experimental r = 1.1283 Å: the GW100 file's 1.283 Å is a misprint). Measured values and
+/// CPU times are in docs/valence-methods.md; benzene (108 functions) is beyond the
+/// spin-orbital coupled cluster's memory.
+#[test]
+#[ignore = "several CPU-minutes per molecule (water 113 CPU-s, N2/CO/F2 longer); figures in docs/valence-methods.md"]
+fn gw100_dccsd_t_def2_tzvpp_matches_krause_2015() {
+    let co = "2\ncarbon-monoxide r = 1.1283 Å\nC 0.0 0.0 0.0\nO 0.0 0.0 1.128300\n";
+    dccsd_t_homo(WATER, 1, "1b1", 12.565);
+    dccsd_t_homo(METHANE, 1, "1t2", 14.373);
+    dccsd_t_homo(NITROGEN, 2, "3σg", 15.4767);
+    dccsd_t_homo(co, 1, "5σ", 14.209);
+    dccsd_t_homo(FLUORINE, 1, "1πg", 15.58481);
+}
