@@ -472,17 +472,24 @@ fn neon_dccsd_t_def2_tzvpp_matches_krause_2015() {
     dccsd_t_homo(NEON, 1, "2p", 21.32107);
 }
 
-/// The other five light GW100 molecules of docs/reference-data.md §2 (CO at its
-/// experimental r = 1.1283 Å: the GW100 file's 1.283 Å is a misprint). Measured values and
-/// CPU times are in docs/valence-methods.md; benzene (108 functions) is beyond the
-/// spin-orbital coupled cluster's memory.
+/// Four more light GW100 molecules of docs/reference-data.md §2 (CO at its experimental
+/// r = 1.1283 Å: the GW100 file's 1.283 Å is a misprint). Measured values and CPU times are
+/// in docs/valence-methods.md.
 #[test]
-#[ignore = "several CPU-minutes per molecule (water 113 CPU-s, N2/CO/F2 longer); figures in docs/valence-methods.md"]
+#[ignore = "minutes per molecule on two cores (water 113 CPU-s); figures in docs/valence-methods.md"]
 fn gw100_dccsd_t_def2_tzvpp_matches_krause_2015() {
     let co = "2\ncarbon-monoxide r = 1.1283 Å\nC 0.0 0.0 0.0\nO 0.0 0.0 1.128300\n";
     dccsd_t_homo(WATER, 1, "1b1", 12.565);
-    dccsd_t_homo(METHANE, 1, "1t2", 14.373);
     dccsd_t_homo(NITROGEN, 2, "3σg", 15.4767);
     dccsd_t_homo(co, 1, "5σ", 14.209);
     dccsd_t_homo(FLUORINE, 1, "1πg", 15.58481);
+}
+
+/// Methane has 87 functions in def2-TZVPP (not ≤ 62): the spin-orbital coupled cluster
+/// needs about 12 GB and was killed for lack of memory on the shared 24 GiB machine.
+/// Benzene (270 functions) is far beyond the spin-orbital code.
+#[test]
+#[ignore = "about 12 GB of memory (87 functions in spin orbitals); not measured here"]
+fn methane_dccsd_t_def2_tzvpp_matches_krause_2015() {
+    dccsd_t_homo(METHANE, 1, "1t2", 14.373);
 }

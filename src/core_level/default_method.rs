@@ -78,9 +78,16 @@ impl fmt::Display for DefaultChoice {
     }
 }
 
-/// The budget the coupled cluster of a core run is held to (bytes): the run's memory budget.
+/// The budget the coupled cluster of a core run is held to (bytes): `--memory` when given;
+/// otherwise the smaller of the run's default budget and what `correlation::open_shell`
+/// will allow when the coupled cluster starts (80 % of the memory available now), so a
+/// default ΔCCSD(T) is not refused halfway through the run.
 fn budget_bytes(opts: &CoreOptions) -> f64 {
-    super::neutrals::memory_budget_bytes(opts) as f64
+    match opts.memory_bytes {
+        Some(b) => b as f64,
+        None => (super::neutrals::memory_budget_bytes(opts) as f64)
+            .min(0.8 * crate::system::available_bytes()),
+    }
 }
 
 /// Peak memory (bytes) and o³v⁴ of the all-electron spin-orbital CCSD(T) of a closed-shell
