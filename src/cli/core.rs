@@ -228,6 +228,7 @@ pub fn options(args: &Args) -> Result<CoreOptions> {
         },
         memory_bytes: super::common::memory_gib_to_bytes(args.memory)?,
         ion_reference,
+        cc_optional: false,
     })
 }
 
@@ -239,6 +240,7 @@ pub fn run(args: Args) -> Result<()> {
     let default_choice = if args.method.is_none() && !args.old_mp2 {
         let c = bandcast::core_level::default_method::choose(&mol, &set, &opts)?;
         opts.cc = c.cc();
+        opts.cc_optional = true;
         Some(c)
     } else {
         None

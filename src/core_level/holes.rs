@@ -127,11 +127,24 @@ pub fn ionise_atom(
         None => None,
     };
     let mut cc = super::delta_cc::CcEnergies::default();
-    if let (Some(ncc), Some(which)) = (ctx.neutral_cc, ctx.opts.cc) {
-        let (s, t) =
-            super::delta_cc::delta(ctx.mol, ctx.basis, wf, ncc, which, ctx.opts.memory_bytes)?;
-        cc.dccsd_ev = Some(s);
-        cc.dccsdt_ev = t;
+    match (ctx.neutral_cc, ctx.opts.cc) {
+        (Some(ncc), Some(which)) => {
+            match super::delta_cc::delta(ctx.mol, ctx.basis, wf, ncc, which, ctx.opts.memory_bytes)
+            {
+                Ok((s, t)) => {
+                    cc.dccsd_ev = Some(s);
+                    cc.dccsdt_ev = t;
+                }
+                Err(Error::TooLarge(m)) if ctx.opts.cc_optional => {
+                    notes.push(CoreNote::CoupledClusterSkipped { reason: m })
+                }
+                Err(e) => return Err(e),
+            }
+        }
+        (None, Some(_)) => notes.push(CoreNote::CoupledClusterSkipped {
+            reason: "the neutral's coupled cluster did not fit the memory available".into(),
+        }),
+        _ => {}
     }
     let dscf_ev = best.attempt.dscf_ev.expect("held state has an energy");
     super::delta_cc::recommend(dscf_ev, &mut cc, None);

@@ -62,6 +62,8 @@ pub enum CoreNote {
     SpinContaminated { s2: f64 },
     /// ΔMP2 needs a UHF cation and none held the hole.
     NoUhfForMp2,
+    /// The default coupled cluster was refused for memory at run time: ΔSCF kept.
+    CoupledClusterSkipped { reason: String },
     // --- second-shell (2s, 2p) levels (two_p.rs) ---
     /// How the 2p spin–orbit splitting was computed (run note).
     SpinOrbitModel { source: String },
@@ -94,6 +96,7 @@ impl CoreNote {
             CoreNote::CanonicalHoleKept { .. } => "canonical_hole_kept",
             CoreNote::SpinContaminated { .. } => "spin_contaminated",
             CoreNote::NoUhfForMp2 => "no_uhf_for_mp2",
+            CoreNote::CoupledClusterSkipped { .. } => "coupled_cluster_skipped",
             CoreNote::SpinOrbitModel { .. } => "spin_orbit_model",
             CoreNote::HoleTurned { .. } => "hole_turned",
             CoreNote::BeyondPhoton { .. } => "beyond_photon",
@@ -227,6 +230,11 @@ impl fmt::Display for CoreNote {
             CoreNote::NoUhfForMp2 => {
                 write!(f, "no UHF cation held the hole: ΔMP2 not computed")
             }
+            CoreNote::CoupledClusterSkipped { reason } => write!(
+                f,
+                "coupled cluster not run for this level ({reason}); the recommended value is \
+                 ΔSCF"
+            ),
         }
     }
 }

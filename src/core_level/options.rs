@@ -157,6 +157,10 @@ pub struct CoreOptions {
     pub memory_bytes: Option<usize>,
     /// Wavefunction type of the cation (1s levels).
     pub ion_reference: IonReference,
+    /// The coupled cluster was chosen by default (`default_method.rs`): when it is refused
+    /// for memory at run time (the memory available changed since the choice), the level
+    /// keeps ΔSCF with a note instead of failing.
+    pub cc_optional: bool,
 }
 
 impl Default for CoreOptions {
@@ -176,6 +180,7 @@ impl Default for CoreOptions {
             cc: None,
             memory_bytes: None,
             ion_reference: IonReference::Lowest,
+            cc_optional: false,
         }
     }
 }
