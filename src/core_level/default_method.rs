@@ -10,9 +10,10 @@
 //!   molecule) deciding.
 //! - Cost cap: the (T) step of each state costs o³v⁴ operations. Measured: CO2 in cc-pVDZ
 //!   with uncontracted s/p on C (54 functions, o³v⁴ = 5.8 × 10¹¹) took 226 CPU-s for the
-//!   neutral and the ion together. Above `MAX_TRIPLES_OPS` (about ten minutes of CPU per hole
-//!   on that scale) the default falls back to ΔSCF: ΔMP2 is not a better recommended value
-//!   in the bases measured (docs/core-levels.md), so it is not the fallback.
+//!   neutral and the ion together. Above `MAX_TRIPLES_OPS` (about a quarter of an hour of
+//!   CPU per hole on that scale) the default falls back to ΔSCF: ΔMP2 is not a better
+//!   recommended value in the bases measured (docs/core-levels.md), so it is not the
+//!   fallback.
 //! - 2s and 2p levels (Na–Ar) are ΔSCF: the coupled cluster is computed for 1s holes only.
 
 use std::fmt;
@@ -164,7 +165,7 @@ pub fn choose(mol: &Molecule, plain: &BasisSet, opts: &CoreOptions) -> Result<De
         ))
     } else if choice.triples_ops > MAX_TRIPLES_OPS {
         Some(format!(
-            "ΔCCSD(T) in {} basis functions would take more than about ten CPU-minutes per \
+            "ΔCCSD(T) in {} basis functions would take more than about 15 CPU-minutes per \
              hole (o³v⁴ = {:.1e} > {:.0e})",
             choice.n_basis, choice.triples_ops, MAX_TRIPLES_OPS
         ))
