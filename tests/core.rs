@@ -351,6 +351,7 @@ fn json_has_the_documented_fields() {
         .args(["core"])
         .arg(gw100("water"))
         .args(["--basis", BASIS, "--json", "--shift-from-atom", "1"])
+        .args(["--method", "dscf"])
         .output()
         .unwrap();
     assert_eq!(
@@ -369,7 +370,8 @@ fn json_has_the_documented_fields() {
         assert!(l[k].is_f64(), "{k}");
     }
     assert!(l["dmp2_ev"].is_null());
-    assert!(l["relativistic_correction_ev"].is_null() && l["dscf_relativistic_ev"].is_null());
+    // The relativistic correction is on by default for absolute energies.
+    assert!(l["relativistic_correction_ev"].is_f64() && l["dscf_relativistic_ev"].is_f64());
     assert!(l["delocalised"].is_null() && l["same_as_atom"].is_null());
     // Shift of an atom against itself is zero.
     assert!(l["shift_ev"].as_f64().unwrap().abs() < 1e-9);
@@ -418,4 +420,100 @@ fn relativistic_option_prints_its_source() {
     let text = String::from_utf8_lossy(&out.stdout);
     assert!(text.contains("ΔSCF+rel/eV"), "{text}");
     assert!(text.contains("Takahata & Chong"), "{text}");
+}
+
+fn core_json(args: &[&str]) -> serde_json::Value {
+    let out = bandcast()
+        .args(["core"])
+        .arg(gw100("neon"))
+        .args(["--basis", "sto-3g", "--json"])
+        .args(args)
+        .output()
+        .unwrap();
+    assert_eq!(
+        out.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    serde_json::from_slice(&out.stdout).unwrap()
+}
+
+/// Without `--method` a small molecule gets ΔCCSD(T), and the output says why; the absolute
+/// binding energy carries the relativistic correction unless `--no-relativistic`.
+/// (Consistency of the reported fields; the accuracy checks are in tests/core_cc.rs.)
+#[test]
+fn default_method_is_stated_and_relativistic_is_on_by_default() {
+    let v = core_json(&[]);
+    let l = &v["core_levels"][0];
+    assert_eq!(l["method"], "dccsd-t");
+    let t = l["dccsdt_ev"].as_f64().unwrap();
+    let rel = l["relativistic_correction_ev"].as_f64().unwrap();
+    assert!((l["binding_ev"].as_f64().unwrap() - (t + rel)).abs() < 1e-9);
+    let codes: Vec<&str> = v["note_details"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|n| n["code"].as_str().unwrap())
+        .collect();
+    assert_eq!(codes[0], "default_method_chosen", "{codes:?}");
+    assert!(codes.contains(&"relativistic_added"), "{codes:?}");
+    let off = core_json(&["--no-relativistic"]);
+    let l = &off["core_levels"][0];
+    assert!(l["relativistic_correction_ev"].is_null());
+    assert_eq!(l["binding_ev"].as_f64().unwrap(), t);
+    // An explicit method is kept and no default note is printed.
+    let d = core_json(&["--method", "dscf"]);
+    assert_eq!(d["core_levels"][0]["method"], "dscf");
+    assert!(d["core_levels"][0]["dccsdt_ev"].is_null());
+    assert!(!d["note_details"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .any(|n| n["code"] == "default_method_chosen"));
+}
+
+/// `--reference rohf`: the cation is the spin-pure ROHF state — ⟨S²⟩ = 3/4 exactly for a
+/// doublet determinant (exact condition) — and its start is reported; `rhf` is refused
+/// (exit 2); a file name is still the old spelling of `--shift-from`.
+#[test]
+fn rohf_reference_for_the_core_ionized_cation() {
+    let v = core_json(&["--reference", "rohf", "--method", "dscf"]);
+    let l = &v["core_levels"][0];
+    assert!(
+        (l["s2"].as_f64().unwrap() - 0.75).abs() < 1e-8,
+        "{}",
+        l["s2"]
+    );
+    assert_eq!(l["start"], "rohf");
+    assert!(l["hole_population"].as_f64().unwrap() > 0.99);
+    let u = core_json(&["--reference", "uhf", "--method", "dscf"]);
+    // UHF lies variationally at or below ROHF for the same hole.
+    assert!(
+        u["core_levels"][0]["dscf_ev"].as_f64().unwrap() <= l["dscf_ev"].as_f64().unwrap() + 1e-9
+    );
+    let bad = bandcast()
+        .args(["core"])
+        .arg(gw100("neon"))
+        .args(["--basis", "sto-3g", "--reference", "rhf"])
+        .output()
+        .unwrap();
+    assert_eq!(bad.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&bad.stderr).contains("open-shell"));
+    let old = bandcast()
+        .args(["core"])
+        .arg(gw100("water"))
+        .args([
+            "--basis",
+            "sto-3g",
+            "--quick",
+            "--method",
+            "dscf",
+            "--reference",
+        ])
+        .arg(gw100("water"))
+        .output()
+        .unwrap();
+    assert_eq!(old.status.code(), Some(0));
+    assert!(String::from_utf8_lossy(&old.stderr).contains("--shift-from"));
 }

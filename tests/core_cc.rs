@@ -11,7 +11,7 @@ use std::path::{Path, PathBuf};
 use bandcast::chem::xyz::{read_xyz, LengthUnit};
 use bandcast::chem::Molecule;
 use bandcast::core_level::delta_cc::DeltaCc;
-use bandcast::core_level::{CoreOptions, CoreResult, TargetSelection};
+use bandcast::core_level::{CoreOptions, CoreResult, IonReference, TargetSelection};
 
 fn gw100(name: &str) -> PathBuf {
     Path::new(concat!(env!("CARGO_MANIFEST_DIR"), "/tests/data/gw100")).join(format!("{name}.xyz"))
@@ -63,4 +63,76 @@ fn water_o1s_dccsd_t() {
     let r = run(&load("water"), "cc-pVDZ", DeltaCc::CcsdT);
     let t = r.core_levels[0].cc.dccsdt_ev.unwrap();
     assert!((t - 539.827).abs() < 0.4, "ΔCCSD(T) O 1s {t}");
+}
+
+fn run_with(mol: &Molecule, opts: CoreOptions) -> CoreResult {
+    let set = bandcast::basis::load("cc-pVDZ", mol, None).unwrap();
+    bandcast::core_level::predict(mol, &set, &opts).expect("core-level run")
+}
+
+/// Ne 1s on the ROHF cation (`--reference rohf`): ⟨S²⟩ = 3/4 exactly (exact condition of a
+/// doublet ROHF determinant), and ΔCCSD(T) agrees with the UHF-based value within 0.02 eV
+/// although ΔSCF differs by 0.27 eV: coupled cluster with singles is nearly independent of
+/// the reference orbitals (Thouless; common practice). Measured: ROHF 870.279, UHF 870.278;
+/// both within 0.3 eV of experiment, 870.2 eV (X-ray Data Booklet).
+#[test]
+fn neon_1s_dccsd_t_on_rohf_and_uhf_references_agree() {
+    let ne = load("neon");
+    let opts = |r| CoreOptions {
+        thorough: false,
+        cc: Some(DeltaCc::CcsdT),
+        ion_reference: r,
+        ..CoreOptions::default()
+    };
+    let ro = run_with(&ne, opts(IonReference::Rohf));
+    let u = run_with(&ne, opts(IonReference::Uhf));
+    let (lr, lu) = (&ro.core_levels[0], &u.core_levels[0]);
+    assert_eq!(lr.start, "rohf");
+    assert!((lr.s2 - 0.75).abs() < 1e-8, "{}", lr.s2);
+    assert!(
+        lr.dscf_ev - lu.dscf_ev > 0.1,
+        "{} {}",
+        lr.dscf_ev,
+        lu.dscf_ev
+    );
+    let (tr, tu) = (lr.cc.dccsdt_ev.unwrap(), lu.cc.dccsdt_ev.unwrap());
+    assert!((tr - tu).abs() < 0.02, "ROHF {tr} UHF {tu}");
+    assert!((tr - 870.2).abs() < 0.3, "{tr}");
+}
+
+/// CO − CH4 C 1s shift, ΔCCSD(T), cc-pVDZ with uncontracted s/p on C: within 0.15 eV of
+/// 5.4 eV (Thomas, J. Chem. Phys. 53 (1970) 1744; docs/reference-data.md §4). CO at
+/// r = 1.1283 Å (tests/data/core; the GW100 file's 1.283 Å is a misprint). Measured 5.29 eV
+/// (UHF cation; 5.25 on the ROHF cation). The CO2 − CH4 shift (6.63 against 6.89) misses
+/// the 0.15 eV target and is documented, not tested as passing.
+#[test]
+#[ignore = "several CPU-minutes (CO 58 CPU-s, CH4 130 s on a loaded machine); figures in docs/core-levels.md"]
+fn co_minus_methane_c1s_shift_dccsd_t() {
+    let co = read_xyz(
+        &Path::new(concat!(
+            env!("CARGO_MANIFEST_DIR"),
+            "/tests/data/core/carbon-monoxide.xyz"
+        )),
+        LengthUnit::Angstrom,
+    )
+    .unwrap();
+    let opts = CoreOptions {
+        targets: TargetSelection::Element(6),
+        thorough: false,
+        cc: Some(DeltaCc::CcsdT),
+        ..CoreOptions::default()
+    };
+    let a = run_with(&co, opts.clone()).core_levels[0]
+        .cc
+        .dccsdt_ev
+        .unwrap();
+    let b = run_with(&load("methane"), opts).core_levels[0]
+        .cc
+        .dccsdt_ev
+        .unwrap();
+    assert!(
+        (a - b - 5.4).abs() < 0.15,
+        "CO {a} CH4 {b}: shift {}",
+        a - b
+    );
 }

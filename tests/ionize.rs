@@ -436,3 +436,70 @@ fn cli_json_has_the_documented_fields() {
     assert_eq!(out.status.code(), Some(2));
     std::fs::remove_dir_all(&dir).ok();
 }
+
+/// ΔCCSD(T)/def2-TZVPP HOMO ionization energy (frozen core, UHF cation held by MOM),
+/// against Krause, Harding & Klopper, Mol. Phys. 113 (2015) 1952 (docs/reference-data.md
+/// §2), within the 0.02 eV. `count` bands are computed; the band whose label is
+/// `homo` is compared.
+fn dccsd_t_homo(xyz: &str, count: usize, homo: &str, published: f64) {
+    let m = mol(xyz);
+    let b = basis(&m, "def2-TZVPP");
+    let r = predict(
+        &m,
+        &b,
+        &ValenceOptions {
+            method: Method::DccsdT,
+            count: Some(count),
+            ..Default::default()
+        },
+    )
+    .unwrap();
+    let band = r
+        .bands
+        .iter()
+        .find(|x| x.label == homo)
+        .unwrap_or_else(|| panic!("no {homo} band among {:?}", r.bands));
+    assert!(
+        (band.ie_ev - published).abs() < 0.02,
+        "{homo}: ΔCCSD(T) {} vs {published}",
+        band.ie_ev
+    );
+}
+
+/// Ne 2p: measured 21.3225 eV against 21.32107 (about 5 CPU-s; the cheap always-on check).
+#[test]
+fn neon_dccsd_t_def2_tzvpp_matches_krause_2015() {
+    dccsd_t_homo(NEON, 1, "2p", 21.32107);
+}
+
+/// Four more light GW100 molecules of docs/reference-data.md §2. CO at the GW100 file's
+/// 1.283 Å: the benchmark values belong to that structure (our HF/def2-TZVPP −ε HOMO there,
+/// 15.37374 eV, matches the GW100 repository's 15.37373; at the experimental 1.1283 Å it is
+/// 15.09 and ΔCCSD(T) gives 13.92, not 14.209). Measured values and CPU times are in
+/// docs/valence-methods.md.
+#[test]
+#[ignore = "minutes per molecule on two cores (water 113 CPU-s); figures in docs/valence-methods.md"]
+fn gw100_dccsd_t_def2_tzvpp_matches_krause_2015() {
+    dccsd_t_homo(WATER, 1, "1b1", 12.565);
+    dccsd_t_homo(NITROGEN, 2, "3σg", 15.4767);
+    dccsd_t_homo(CARBON_MONOXIDE, 1, "5σ", 14.209);
+}
+
+/// F2 1πg: measured 15.7009 eV against 15.58481 (+0.12 eV, outside 0.02): the UHF cation
+/// with the hole in one component of the degenerate πg pair is one of several
+/// symmetry-broken references, and which one the published value used is not known here.
+/// Kept as a record of the open discrepancy (docs/valence-methods.md), expected to fail.
+#[test]
+#[ignore = "fails by 0.12 eV (open discrepancy, docs/valence-methods.md); 352 CPU-s"]
+fn fluorine_dccsd_t_def2_tzvpp_matches_krause_2015() {
+    dccsd_t_homo(FLUORINE, 1, "1πg", 15.58481);
+}
+
+/// Methane has 87 functions in def2-TZVPP (not ≤ 62): the spin-orbital coupled cluster
+/// needs about 12 GB and was killed for lack of memory on the shared 24 GiB machine.
+/// Benzene (270 functions) is far beyond the spin-orbital code.
+#[test]
+#[ignore = "about 12 GB of memory (87 functions in spin orbitals); not measured here"]
+fn methane_dccsd_t_def2_tzvpp_matches_krause_2015() {
+    dccsd_t_homo(METHANE, 1, "1t2", 14.373);
+}

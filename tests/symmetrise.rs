@@ -19,6 +19,8 @@ fn pyridine_equivalent_carbons_get_identical_c1s() {
             "--element",
             "C",
             "--quick",
+            "--method",
+            "dscf",
             "--json",
         ])
         .output()

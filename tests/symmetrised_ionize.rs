@@ -131,7 +131,7 @@ fn pyridine_same_group_in_ionize_and_core() {
     let ion = find(&v);
     let out = Command::new(env!("CARGO_BIN_EXE_bandcast"))
         .args(["core", f.to_str().unwrap(), "--basis", "sto-3g", "--quick"])
-        .args(["--element", "N", "--json"])
+        .args(["--element", "N", "--method", "dscf", "--json"])
         .output()
         .unwrap();
     assert!(

@@ -6,8 +6,8 @@ use std::path::PathBuf;
 use bandcast::basis;
 use bandcast::chem::elements::parse_element;
 use bandcast::core_level::{
-    predict_with_progress, CoreBasis, CoreOptions, ReferenceMolecule, ShellChoice, ShiftReference,
-    TargetSelection,
+    predict_with_progress, CoreBasis, CoreNote, CoreOptions, IonReference, ReferenceMolecule,
+    ShellChoice, ShiftReference, TargetSelection,
 };
 use bandcast::{Error, Result};
 
@@ -21,7 +21,8 @@ use super::common::{MoleculeArgs, StateArgs};
 ///
 /// Default targets: every atom heavier than helium. Atoms are numbered from 1 in the order
 /// of the XYZ file. The computed energies are vertical binding energies of an isolated
-/// molecule (no relativistic correction): they guide a measurement, they do not replace it.
+/// molecule (absolute 1s energies with a relativistic correction unless --no-relativistic;
+/// shifts without it): they guide a measurement, they do not replace it.
 #[derive(clap::Args, Debug)]
 pub struct Args {
     #[command(flatten)]
@@ -40,11 +41,14 @@ pub struct Args {
     #[arg(long, value_name = "FILE.xyz", conflicts_with_all = ["shift_from_atom", "old_reference_atom"])]
     pub shift_from: Option<PathBuf>,
     /// Shifts against this atom (from 1) of the same molecule.
-    #[arg(long, value_name = "N", conflicts_with = "old_reference")]
+    #[arg(long, value_name = "N")]
     pub shift_from_atom: Option<usize>,
-    /// Old spelling of --shift-from (kept for one release).
-    #[arg(long = "reference", value_name = "FILE.xyz", hide = true, conflicts_with_all = ["shift_from", "shift_from_atom", "old_reference_atom"])]
-    pub old_reference: Option<PathBuf>,
+    /// Wavefunction type of the core-ionized cation (the neutral is RHF): uhf (the lowest
+    /// UHF state that holds the hole) or rohf (spin-pure restricted open shell; ΔSCF, ΔCCSD
+    /// and ΔCCSD(T) from it). Default: the lowest state of every start (UHF in practice).
+    /// A file name here is the old spelling of --shift-from (kept for one release).
+    #[arg(long = "reference", value_name = "uhf|rohf")]
+    pub reference: Option<String>,
     /// Old spelling of --shift-from-atom (kept for one release).
     #[arg(
         long = "reference-atom",
@@ -71,16 +75,21 @@ pub struct Args {
     pub compare_delocalised: bool,
     /// Method: dscf (ΔSCF), dmp2 (ΔSCF plus the second-order correlation change, ΔMP2,
     /// printed beside ΔSCF), dccsd or dccsd-t (coupled cluster on the neutral and the
-    /// core-ionized state, printed beside ΔSCF; small molecules).
-    #[arg(long, value_name = "dscf|dmp2|dccsd|dccsd-t", default_value = "dscf")]
-    pub method: CoreMethod,
+    /// core-ionized state, printed beside ΔSCF). Default: dccsd-t when its coupled cluster
+    /// fits --memory and a cost cap (small molecules), dscf otherwise; the output says which.
+    #[arg(long, value_name = "dscf|dmp2|dccsd|dccsd-t")]
+    pub method: Option<CoreMethod>,
     /// Old spelling of --method dmp2 (kept for one release).
     #[arg(long = "mp2", hide = true)]
     pub old_mp2: bool,
-    /// Add the relativistic correction of 1s levels (Takahata & Chong 2003 power law in the
-    /// non-relativistic binding energy; off by default).
-    #[arg(long)]
+    /// Add the relativistic correction of 1s levels to the absolute binding energies
+    /// (Takahata & Chong 2003 power law in the non-relativistic binding energy). This is the
+    /// default; shifts stay non-relativistic either way.
+    #[arg(long, conflicts_with = "no_relativistic")]
     pub relativistic: bool,
+    /// Leave the absolute binding energies non-relativistic.
+    #[arg(long)]
+    pub no_relativistic: bool,
     /// Core shell: 1s, 2s, 2p (Na–Ar), or auto — the deepest shell the photon source reaches
     /// (Al Kα when none is given); of the second shell the 2p is taken.
     #[arg(long, value_name = "1s|2s|2p|auto", default_value = "auto", value_parser = parse_shell)]
@@ -143,8 +152,35 @@ pub fn options(args: &Args) -> Result<CoreOptions> {
         (None, Some(list)) => TargetSelection::Atoms(parse_atom_list(list)?),
         (None, None) => TargetSelection::AllHeavy,
     };
-    if args.old_reference.is_some() {
-        old_spelling("--reference FILE", "--shift-from FILE");
+    // --reference is the cation's wavefunction type; anything else is the old spelling of
+    // --shift-from.
+    let (ion_reference, old_reference) = match args.reference.as_deref() {
+        None => (IonReference::Lowest, None),
+        Some(t) if t.trim().eq_ignore_ascii_case("rhf") => {
+            return Err(Error::input(
+                "--reference rhf: a core-ionized cation is open-shell; use uhf or rohf (the \
+                 neutral is always RHF)",
+            ))
+        }
+        Some(t) => match IonReference::parse(t) {
+            Some(r) => (r, None),
+            None => {
+                old_spelling("--reference FILE", "--shift-from FILE");
+                if args.shift_from.is_some() || args.shift_from_atom.is_some() {
+                    return Err(Error::input(format!(
+                        "--reference {t}: not uhf or rohf, and read as the old spelling of \
+                         --shift-from, which is already given"
+                    )));
+                }
+                (IonReference::Lowest, Some(PathBuf::from(t)))
+            }
+        },
+    };
+    if ion_reference != IonReference::Lowest && args.method == Some(CoreMethod::Dmp2) {
+        return Err(Error::input(
+            "--method dmp2 is computed from the lowest UHF cation; drop --reference or choose \
+             another method",
+        ));
     }
     if args.old_reference_atom.is_some() {
         old_spelling("--reference-atom N", "--shift-from-atom N");
@@ -152,7 +188,7 @@ pub fn options(args: &Args) -> Result<CoreOptions> {
     if args.old_mp2 {
         old_spelling("--mp2", "--method dmp2");
     }
-    let shift_file = args.shift_from.as_ref().or(args.old_reference.as_ref());
+    let shift_file = args.shift_from.as_ref().or(old_reference.as_ref());
     let shift_atom = args.shift_from_atom.or(args.old_reference_atom);
     let reference = match (shift_file, shift_atom) {
         (Some(path), _) => {
@@ -178,26 +214,37 @@ pub fn options(args: &Args) -> Result<CoreOptions> {
         reference,
         core_basis: CoreBasis::parse(&args.core_basis),
         localise: !args.canonical_hole,
-        mp2: args.method == CoreMethod::Dmp2 || args.old_mp2,
+        mp2: args.method == Some(CoreMethod::Dmp2) || args.old_mp2,
         thorough: !args.quick,
         use_symmetry: !args.all_holes,
-        relativistic: args.relativistic,
+        relativistic: !args.no_relativistic,
         delocalised: args.compare_delocalised,
         shell: args.shell,
         photon_ev: args.photon.map(|p| p.energy_ev()),
         cc: match args.method {
-            CoreMethod::Dccsd => Some(crate::core_level::delta_cc::DeltaCc::Ccsd),
-            CoreMethod::DccsdT => Some(crate::core_level::delta_cc::DeltaCc::CcsdT),
+            Some(CoreMethod::Dccsd) => Some(crate::core_level::delta_cc::DeltaCc::Ccsd),
+            Some(CoreMethod::DccsdT) => Some(crate::core_level::delta_cc::DeltaCc::CcsdT),
             _ => None,
         },
         memory_bytes: super::common::memory_gib_to_bytes(args.memory)?,
+        ion_reference,
+        cc_optional: false,
     })
 }
 
 pub fn run(args: Args) -> Result<()> {
     let mol = args.molecule.load()?;
     let set = basis::load(&args.basis, &mol, None)?;
-    let opts = options(&args)?;
+    let mut opts = options(&args)?;
+    // No --method (and no old --mp2): the most accurate method that fits, said in the output.
+    let default_choice = if args.method.is_none() && !args.old_mp2 {
+        let c = bandcast::core_level::default_method::choose(&mol, &set, &opts)?;
+        opts.cc = c.cc();
+        opts.cc_optional = true;
+        Some(c)
+    } else {
+        None
+    };
     {
         use bandcast::predict::{CoreMethod as Cm, MethodChoice, Request};
         let mut req = Request::new(&mol, &set, bandcast::ionization::Region::Core);
@@ -238,7 +285,10 @@ pub fn run(args: Args) -> Result<()> {
     if let Some(b) = &bar {
         b.finish_and_clear();
     }
-    let result = result?;
+    let mut result = result?;
+    if let Some(c) = default_choice {
+        result.notes.insert(0, CoreNote::DefaultMethod(c));
+    }
     if args.verbose {
         eprint!("{}", core_timings_text(&result.timings));
     }

@@ -23,7 +23,7 @@ use super::hole_check::{spin_contaminated, HoleStatus};
 use super::lifetime::lifetime_fwhm_ev;
 use super::localize::{localise_core_hole, LocalisedHole};
 use super::notes::{CoreNote, Notes};
-use super::options::CoreOptions;
+use super::options::{CoreOptions, IonReference};
 use super::result::{CoreLevel, HoleAttempt};
 use super::targets::atom_label;
 
@@ -94,7 +94,10 @@ pub fn ionise_atom(
         memory_budget_bytes: ctx.memory_budget_bytes,
         symmetry: None,
     };
-    let states = search(&setup, scf, ctx.opts.thorough);
+    let states = match ctx.opts.ion_reference {
+        IonReference::Rohf => vec![run_start(&setup, scf, "rohf")],
+        _ => search(&setup, scf, ctx.opts.thorough),
+    };
     let delocalised = if ctx.opts.delocalised && !partners.is_empty() {
         delocalised_for(ctx, scf, &cation, &loc, atom, partners)
     } else {
@@ -102,7 +105,9 @@ pub fn ionise_atom(
     };
     let label = atom_label(ctx.mol, atom);
     let attempts: Vec<_> = states.iter().map(|s| s.attempt.clone()).collect();
-    let Some(best) = lowest_held(&states, |_| true) else {
+    let Some(best) = lowest_held(&states, |s| {
+        ctx.opts.ion_reference.accepts(&s.attempt.start)
+    }) else {
         return Err(no_hole_error(&format!("{label} 1s"), &attempts, koopmans));
     };
     let wf = best.wf.as_ref().expect("held state has a wavefunction");
@@ -123,11 +128,24 @@ pub fn ionise_atom(
         None => None,
     };
     let mut cc = super::delta_cc::CcEnergies::default();
-    if let (Some(ncc), Some(which)) = (ctx.neutral_cc, ctx.opts.cc) {
-        let (s, t) =
-            super::delta_cc::delta(ctx.mol, ctx.basis, wf, ncc, which, ctx.opts.memory_bytes)?;
-        cc.dccsd_ev = Some(s);
-        cc.dccsdt_ev = t;
+    match (ctx.neutral_cc, ctx.opts.cc) {
+        (Some(ncc), Some(which)) => {
+            match super::delta_cc::delta(ctx.mol, ctx.basis, wf, ncc, which, ctx.opts.memory_bytes)
+            {
+                Ok((s, t)) => {
+                    cc.dccsd_ev = Some(s);
+                    cc.dccsdt_ev = t;
+                }
+                Err(Error::TooLarge(m)) if ctx.opts.cc_optional => {
+                    notes.push(CoreNote::CoupledClusterSkipped { reason: m })
+                }
+                Err(e) => return Err(e),
+            }
+        }
+        (None, Some(_)) => notes.push(CoreNote::CoupledClusterSkipped {
+            reason: "the neutral's coupled cluster did not fit the memory available".into(),
+        }),
+        _ => {}
     }
     let dscf_ev = best.attempt.dscf_ev.expect("held state has an energy");
     super::delta_cc::recommend(dscf_ev, &mut cc, None);

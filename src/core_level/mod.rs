@@ -41,6 +41,7 @@
 //! | shell_hole.rs | the atom-localised 2s / 2p hole orbitals (principal axes for 2p) |
 //! | spin_orbit.rs | the 2p spin–orbit doublet from the three 2p-hole energies |
 //! | two_p.rs | the 2s and 2p levels of Na–Ar (the stages for the second shell) |
+//! | default_method.rs | the default method: ΔCCSD(T) when it fits, else ΔSCF |
 //! | delta_cc.rs | ΔCCSD / ΔCCSD(T) on the kept cation, core-valence separated |
 //!
 //! ΔMP2 uses `correlation::mp2::mp2_energy`; the benchmark workload is
@@ -48,6 +49,7 @@
 pub mod assemble;
 pub mod carry_over;
 pub mod cation;
+pub mod default_method;
 pub mod delocalised;
 pub mod delta_cc;
 pub mod equivalence;
@@ -74,7 +76,9 @@ pub mod two_p;
 pub use hole_check::HoleStatus;
 pub use neutrals::memory_budget_bytes;
 pub use notes::{CoreNote, Notes};
-pub use options::{CoreBasis, CoreOptions, ReferenceMolecule, ShiftReference, TargetSelection};
+pub use options::{
+    CoreBasis, CoreOptions, IonReference, ReferenceMolecule, ShiftReference, TargetSelection,
+};
 pub use predict::{predict, predict_with_progress};
 pub use result::{
     CoreLevel, CoreResult, CoreTimings, HoleAttempt, ShiftReferenceLevel, StageTiming,

@@ -18,6 +18,8 @@ pub enum CoreNote {
     ReferenceLacksElement { element: String, level: String },
     /// Holes on atoms with equivalent partners were localised before the SCF.
     HolesLocalised,
+    /// The method was not asked for: what the default is and why.
+    DefaultMethod(super::default_method::DefaultChoice),
     /// The relativistic correction was added (shifts left non-relativistic).
     RelativisticAdded { source: String },
     /// Atoms equivalent by symmetry were computed once.
@@ -60,6 +62,8 @@ pub enum CoreNote {
     SpinContaminated { s2: f64 },
     /// ΔMP2 needs a UHF cation and none held the hole.
     NoUhfForMp2,
+    /// The default coupled cluster was refused for memory at run time: ΔSCF kept.
+    CoupledClusterSkipped { reason: String },
     // --- second-shell (2s, 2p) levels (two_p.rs) ---
     /// How the 2p spin–orbit splitting was computed (run note).
     SpinOrbitModel { source: String },
@@ -84,6 +88,7 @@ impl CoreNote {
             CoreNote::ReferenceLacksElement { .. } => "reference_lacks_element",
             CoreNote::HolesLocalised => "holes_localised",
             CoreNote::Symmetrised { .. } => "symmetrised",
+            CoreNote::DefaultMethod(_) => "default_method_chosen",
             CoreNote::RelativisticAdded { .. } => "relativistic_added",
             CoreNote::EquivalentComputedOnce { .. } => "equivalent_computed_once",
             CoreNote::EquivalentTo { .. } => "equivalent_to",
@@ -94,6 +99,7 @@ impl CoreNote {
             CoreNote::CanonicalHoleKept { .. } => "canonical_hole_kept",
             CoreNote::SpinContaminated { .. } => "spin_contaminated",
             CoreNote::NoUhfForMp2 => "no_uhf_for_mp2",
+            CoreNote::CoupledClusterSkipped { .. } => "coupled_cluster_skipped",
             CoreNote::SpinOrbitModel { .. } => "spin_orbit_model",
             CoreNote::HoleTurned { .. } => "hole_turned",
             CoreNote::Mp2Intruder { .. } => "mp2_intruder",
@@ -117,6 +123,7 @@ impl CoreNote {
 impl fmt::Display for CoreNote {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         match self {
+            CoreNote::DefaultMethod(choice) => write!(f, "{choice}"),
             CoreNote::ReferenceLacksElement { element, level } => write!(
                 f,
                 "the reference molecule has no {element}: no shift for {level}"
@@ -233,6 +240,11 @@ impl fmt::Display for CoreNote {
             CoreNote::NoUhfForMp2 => {
                 write!(f, "no UHF cation held the hole: ΔMP2 not computed")
             }
+            CoreNote::CoupledClusterSkipped { reason } => write!(
+                f,
+                "coupled cluster not run for this level ({reason}); the recommended value is \
+                 ΔSCF"
+            ),
         }
     }
 }

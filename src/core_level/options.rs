@@ -83,6 +83,42 @@ impl CoreBasis {
     }
 }
 
+/// Which cation determinant a level is computed from (`--reference` of `bandcast core`: the
+/// wavefunction type of the core-ionized state; the neutral is always RHF).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum IonReference {
+    /// The lowest state that holds the hole among every start (MOM, IMOM, ROHF, ROHF→UHF):
+    /// in every case measured a UHF state, since UHF lies variationally below ROHF.
+    #[default]
+    Lowest,
+    /// The lowest held state among the UHF starts only.
+    Uhf,
+    /// The ROHF start only (spin-pure, ⟨S²⟩ = 3/4): ΔSCF, ΔCCSD and ΔCCSD(T) from the
+    /// restricted open-shell cation (coupled cluster with semicanonical orbitals).
+    Rohf,
+}
+
+impl IonReference {
+    /// Whether a cation from the SCF start `start` ("mom", "imom", "rohf", "rohf→uhf") may
+    /// be kept.
+    pub fn accepts(self, start: &str) -> bool {
+        match self {
+            IonReference::Lowest => true,
+            IonReference::Uhf => start != "rohf",
+            IonReference::Rohf => start == "rohf",
+        }
+    }
+    /// Parse `uhf` or `rohf` (`rhf` is refused by the caller: a core-ionized cation is open
+    /// shell).
+    pub fn parse(text: &str) -> Option<IonReference> {
+        match text.trim().to_ascii_lowercase().as_str() {
+            "uhf" => Some(IonReference::Uhf),
+            "rohf" => Some(IonReference::Rohf),
+            _ => None,
+        }
+    }
+}
+
 /// Options of `predict`.
 #[derive(Debug, Clone, PartialEq)]
 pub struct CoreOptions {
@@ -101,8 +137,9 @@ pub struct CoreOptions {
     /// Compute one atom of each class of symmetry-equivalent hole atoms and give the others
     /// its numbers (`equivalence.rs`); false runs an SCF for every atom.
     pub use_symmetry: bool,
-    /// Add the relativistic correction of `relativistic.rs` to each 1s level (off by
-    /// default: the computed energies are non-relativistic).
+    /// Add the relativistic correction of `relativistic.rs` to each 1s level's absolute
+    /// binding energy (off in `CoreOptions::default()`, on by default in `bandcast core`;
+    /// shifts stay non-relativistic either way).
     pub relativistic: bool,
     /// Also compute the delocalised (symmetry-constrained) hole of atoms that have
     /// symmetry-equivalent partners, reported beside the localised one (`delocalised.rs`).
@@ -118,6 +155,12 @@ pub struct CoreOptions {
     /// Memory budget (bytes) for the stored integrals and the SCF of every hole; None: the
     /// machine-dependent default of `system::default_memory_budget`.
     pub memory_bytes: Option<usize>,
+    /// Wavefunction type of the cation (1s levels).
+    pub ion_reference: IonReference,
+    /// The coupled cluster was chosen by default (`default_method.rs`): when it is refused
+    /// for memory at run time (the memory available changed since the choice), the level
+    /// keeps ΔSCF with a note instead of failing.
+    pub cc_optional: bool,
 }
 
 impl Default for CoreOptions {
@@ -136,6 +179,8 @@ impl Default for CoreOptions {
             photon_ev: None,
             cc: None,
             memory_bytes: None,
+            ion_reference: IonReference::Lowest,
+            cc_optional: false,
         }
     }
 }

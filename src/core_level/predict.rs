@@ -156,13 +156,14 @@ fn compute_holes(
         out.neutral_energies.push(n.wf.energy);
         out.neutral_mp2s.push(n.mp2);
         let neutral_cc = match opts.cc {
-            Some(which) => Some(super::delta_cc::neutral(
-                mol,
-                &n.basis,
-                &n.wf,
-                which,
-                opts.memory_bytes,
-            )?),
+            Some(which) => {
+                match super::delta_cc::neutral(mol, &n.basis, &n.wf, which, opts.memory_bytes) {
+                    Ok(r) => Some(r),
+                    // a default coupled cluster refused for memory: the holes keep ΔSCF
+                    Err(Error::TooLarge(_)) if opts.cc_optional => None,
+                    Err(e) => return Err(e),
+                }
+            }
             None => None,
         };
         let ctx = HoleContext {

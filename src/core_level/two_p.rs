@@ -63,6 +63,12 @@ pub fn predict_shells(
         return with_shifts(mol, basis, opts, progress);
     }
     if groups.iter().any(|(s, _)| *s != CoreShell::S1) {
+        if opts.ion_reference != super::options::IonReference::Lowest {
+            return Err(Error::input(
+                "the cation's wavefunction type is chosen for 1s levels; 2s and 2p levels take \
+                 the lowest state of every start",
+            ));
+        }
         if opts.cc.is_some() {
             return Err(Error::input(
                 "ΔCCSD and ΔCCSD(T) are computed for 1s levels; 2s and 2p levels are ΔSCF \
