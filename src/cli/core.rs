@@ -93,6 +93,11 @@ pub struct Args {
     /// Keep the first SCF start that holds the hole instead of trying all of them.
     #[arg(long)]
     pub quick: bool,
+    /// How J and K are built in every SCF: df (density-fitted, def2-universal-JKFIT extended
+    /// on the hole atom; error on 1s levels measured below 0.01 eV) or exact (in-core when
+    /// the integrals fit --memory, else integral-direct).
+    #[arg(long, value_name = "df|exact", default_value = "df")]
+    pub fock: CoreFockArg,
     /// Run an SCF for every target atom, also for atoms equivalent by symmetry to one
     /// already computed (by default those take its numbers).
     #[arg(long)]
@@ -109,6 +114,29 @@ pub struct Args {
     /// Machine-readable result on stdout.
     #[arg(long)]
     pub json: bool,
+}
+
+/// `--fock` of `bandcast core` (and `bandcast bench core`).
+#[derive(clap::ValueEnum, Clone, Copy, Debug, PartialEq, Eq)]
+pub enum CoreFockArg {
+    /// Density-fitted J and K, fitting set extended on the hole atom.
+    Df,
+    /// Density-fitted with the bundled fitting set unchanged (for measurements).
+    #[value(hide = true)]
+    DfPlain,
+    /// Exact two-electron integrals.
+    Exact,
+}
+
+impl CoreFockArg {
+    pub fn fock(self) -> bandcast::core_level::CoreFock {
+        use bandcast::core_level::CoreFock;
+        match self {
+            CoreFockArg::Df => CoreFock::DensityFitted,
+            CoreFockArg::DfPlain => CoreFock::DensityFittedPlain,
+            CoreFockArg::Exact => CoreFock::Exact,
+        }
+    }
 }
 
 /// `--method` of `bandcast core`.
@@ -191,6 +219,7 @@ pub fn options(args: &Args) -> Result<CoreOptions> {
             _ => None,
         },
         memory_bytes: super::common::memory_gib_to_bytes(args.memory)?,
+        fock: args.fock.fock(),
     })
 }
 
@@ -270,6 +299,9 @@ pub struct BenchArgs {
     /// Core flexibility on the hole atoms (as `bandcast core --core-basis`).
     #[arg(long, default_value = "uncontract-sp", value_name = "KIND")]
     pub core_basis: String,
+    /// How J and K are built (as `bandcast core --fock`).
+    #[arg(long, value_name = "df|exact", default_value = "df")]
+    pub fock: CoreFockArg,
 }
 
 pub fn bench(a: BenchArgs) -> Result<()> {
@@ -281,6 +313,7 @@ pub fn bench(a: BenchArgs) -> Result<()> {
         thorough: a.thorough,
         use_symmetry: !a.all_holes,
         core_basis: CoreBasis::parse(&a.core_basis),
+        fock: a.fock.fock(),
         ..CoreOptions::default()
     };
     let r = bandcast::bench::core_level::run_core_bench(a.carbons, &a.basis, &opts)?;

@@ -38,6 +38,8 @@ pub struct HoleContext<'a> {
     pub neutral_cc: Option<&'a crate::correlation::open_shell::OpenShellResult>,
     pub opts: &'a CoreOptions,
     pub memory_budget_bytes: usize,
+    /// The fitting set of density-fitted J and K, None for exact integrals (`fitting.rs`).
+    pub jk_fitting: Option<String>,
 }
 
 /// The 1s hole of `atom` (0-based; `partners`: its symmetry-equivalent atoms): localise,
@@ -92,6 +94,7 @@ pub fn ionise_atom(
         localised: ctx.opts.localise || !loc.rotated(),
         memory_budget_bytes: ctx.memory_budget_bytes,
         symmetry: None,
+        jk_fitting: ctx.jk_fitting.clone(),
     };
     let states = search(&setup, scf, ctx.opts.thorough);
     let delocalised = if ctx.opts.delocalised && !partners.is_empty() {
@@ -187,6 +190,7 @@ fn delocalised_for(
             partners,
             e_neutral: nw.energy,
             memory_budget_bytes: ctx.memory_budget_bytes,
+            jk_fitting: ctx.jk_fitting.clone(),
         },
         scf,
     )

@@ -118,6 +118,8 @@ pub struct CoreOptions {
     /// Memory budget (bytes) for the stored integrals and the SCF of every hole; None: the
     /// machine-dependent default of `system::default_memory_budget`.
     pub memory_bytes: Option<usize>,
+    /// How the SCFs build J and K (`fitting.rs`): density-fitted by default.
+    pub fock: super::fitting::CoreFock,
 }
 
 impl Default for CoreOptions {
@@ -136,6 +138,7 @@ impl Default for CoreOptions {
             photon_ev: None,
             cc: None,
             memory_bytes: None,
+            fock: super::fitting::CoreFock::default(),
         }
     }
 }
