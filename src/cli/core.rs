@@ -284,9 +284,12 @@ pub fn run(args: Args) -> Result<()> {
 /// `bandcast bench core`: all carbon 1s levels of CnH2n+2.
 #[derive(clap::Args, Debug)]
 pub struct BenchArgs {
-    /// Number of carbon atoms of the alkane.
-    #[arg(long, default_value_t = 10, value_name = "N")]
-    pub carbons: usize,
+    /// Number of carbon atoms of the alkane (default 20: icosane C20H42).
+    #[arg(long, value_name = "N")]
+    pub carbons: Option<usize>,
+    /// The small case: hexane C6H14 (unless --carbons is given).
+    #[arg(long)]
+    pub small: bool,
     /// Basis set.
     #[arg(long, default_value = "cc-pVDZ", value_name = "NAME")]
     pub basis: String,
@@ -305,9 +308,11 @@ pub struct BenchArgs {
 }
 
 pub fn bench(a: BenchArgs) -> Result<()> {
-    if a.carbons == 0 {
+    let carbons = a.carbons.unwrap_or(if a.small { 6 } else { 20 });
+    if carbons == 0 {
         return Err(Error::input("--carbons must be at least 1"));
     }
+    let load_start = bandcast::system::load_average();
     let opts = CoreOptions {
         targets: TargetSelection::Element(6),
         thorough: a.thorough,
@@ -316,7 +321,7 @@ pub fn bench(a: BenchArgs) -> Result<()> {
         fock: a.fock.fock(),
         ..CoreOptions::default()
     };
-    let r = bandcast::bench::core_level::run_core_bench(a.carbons, &a.basis, &opts)?;
+    let r = bandcast::bench::core_level::run_core_bench(carbons, &a.basis, &opts)?;
     let t = &r.result.timings;
     println!(
         "core: {} — {} atoms, {} functions, {} C 1s levels from {} SCF holes, {} starts, {} threads",
@@ -329,6 +334,15 @@ pub fn bench(a: BenchArgs) -> Result<()> {
         rayon::current_num_threads()
     );
     print!("{}", core_timings_text(t));
+    let load = |l: Option<f64>| l.map_or("?".into(), |x| format!("{x:.1}"));
+    println!(
+        "  J and K: {}; peak memory {}; machine load average {} at start, {} at end \
+         (all cores of a 2-core machine busy = 2.0)",
+        r.result.integrals.describe(),
+        bandcast::system::peak_memory_mib().map_or("?".into(), |m| format!("{m:.0} MiB")),
+        load(load_start),
+        load(bandcast::system::load_average())
+    );
     for l in &r.result.core_levels {
         println!(
             "  {:<8} ΔSCF {:>8.3} eV  ⟨S²⟩ {:.3}  start {}{}",

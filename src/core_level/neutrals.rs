@@ -128,6 +128,12 @@ pub fn neutral(
         ..ScfOptions::default()
     };
     super::fitting::apply(&mut neutral_opts, jk_fitting.as_deref());
+    if !inp.opts.mp2 && inp.opts.cc.is_none() {
+        // Only the energy is used: the cation's thresholds (an energy error second order
+        // in the orbital gradient; `cation::E_TOL`).
+        neutral_opts.e_tol = super::cation::E_TOL;
+        neutral_opts.commutator_tol = super::cation::COMMUTATOR_TOL;
+    }
     let carried = previous.and_then(|p| project_occupied(&p.basis, &p.c, &p.occupied, &work, &s));
     let wf = match carried {
         Some(c) => scf
@@ -183,8 +189,12 @@ fn context(
     let lindep = ScfOptions::default().lindep_threshold;
     let mut scf = ScfContext::new(inp.mol, work, lindep)?;
     if let Some(aux) = super::fitting::fitting_set(inp.mol, work, flex, inp.opts.fock)? {
-        scf.prepare_density_fitting(&aux, inp.budget)?;
-        return Ok((scf, Some(aux.name)));
+        match scf.prepare_density_fitting(&aux, inp.budget) {
+            Ok(()) => return Ok((scf, Some(aux.name))),
+            // the three-index tensor does not fit: exact integrals (integral-direct)
+            Err(Error::TooLarge(_)) => {}
+            Err(e) => return Err(e),
+        }
     }
     if let (Some(cache), Some(map)) = (inp.shared, shell_map(inp.plain, work, flex)) {
         if scf.in_core_bytes(threshold) <= inp.budget {
