@@ -23,7 +23,7 @@ pub enum Workload {
     Ep2(super::ionize::Ep2BenchArgs),
     /// SCF wall time, iterations, peak memory and 1→N-thread speed-up (see `bandcast bench scf --help`).
     Scf(super::scf::BenchArgs),
-    /// Carbon 1s levels (ΔSCF) of an all-trans n-alkane built from standard geometry.
+    /// Carbon 1s levels (ΔSCF) of an all-trans n-alkane built from standard geometry (icosane; --small: hexane).
     Core(super::core::BenchArgs),
     /// EOM-IP-CCSD (benzene) and EOM-IP-MBPT2 (guanine) in def2-TZVPP: time per stage, memory.
     Eom(EomArgs),

@@ -102,6 +102,11 @@ pub struct Args {
     /// Keep the first SCF start that holds the hole instead of trying all of them.
     #[arg(long)]
     pub quick: bool,
+    /// How J and K are built in every SCF: df (density-fitted, def2-universal-JKFIT extended
+    /// on the hole atom; error on 1s levels measured below 0.01 eV) or exact (in-core when
+    /// the integrals fit --memory, else integral-direct).
+    #[arg(long, value_name = "df|exact", default_value = "df")]
+    pub fock: CoreFockArg,
     /// Run an SCF for every target atom, also for atoms equivalent by symmetry to one
     /// already computed (by default those take its numbers).
     #[arg(long)]
@@ -118,6 +123,29 @@ pub struct Args {
     /// Machine-readable result on stdout.
     #[arg(long)]
     pub json: bool,
+}
+
+/// `--fock` of `bandcast core` (and `bandcast bench core`).
+#[derive(clap::ValueEnum, Clone, Copy, Debug, PartialEq, Eq)]
+pub enum CoreFockArg {
+    /// Density-fitted J and K, fitting set extended on the hole atom.
+    Df,
+    /// Density-fitted with the bundled fitting set unchanged (for measurements).
+    #[value(hide = true)]
+    DfPlain,
+    /// Exact two-electron integrals.
+    Exact,
+}
+
+impl CoreFockArg {
+    pub fn fock(self) -> bandcast::core_level::CoreFock {
+        use bandcast::core_level::CoreFock;
+        match self {
+            CoreFockArg::Df => CoreFock::DensityFitted,
+            CoreFockArg::DfPlain => CoreFock::DensityFittedPlain,
+            CoreFockArg::Exact => CoreFock::Exact,
+        }
+    }
 }
 
 /// `--method` of `bandcast core`.
@@ -229,6 +257,7 @@ pub fn options(args: &Args) -> Result<CoreOptions> {
         memory_bytes: super::common::memory_gib_to_bytes(args.memory)?,
         ion_reference,
         cc_optional: false,
+        fock: args.fock.fock(),
     })
 }
 
@@ -305,9 +334,12 @@ pub fn run(args: Args) -> Result<()> {
 /// `bandcast bench core`: all carbon 1s levels of CnH2n+2.
 #[derive(clap::Args, Debug)]
 pub struct BenchArgs {
-    /// Number of carbon atoms of the alkane.
-    #[arg(long, default_value_t = 10, value_name = "N")]
-    pub carbons: usize,
+    /// Number of carbon atoms of the alkane (default 20: icosane C20H42).
+    #[arg(long, value_name = "N")]
+    pub carbons: Option<usize>,
+    /// The small case: hexane C6H14 (unless --carbons is given).
+    #[arg(long)]
+    pub small: bool,
     /// Basis set.
     #[arg(long, default_value = "cc-pVDZ", value_name = "NAME")]
     pub basis: String,
@@ -320,20 +352,26 @@ pub struct BenchArgs {
     /// Core flexibility on the hole atoms (as `bandcast core --core-basis`).
     #[arg(long, default_value = "uncontract-sp", value_name = "KIND")]
     pub core_basis: String,
+    /// How J and K are built (as `bandcast core --fock`).
+    #[arg(long, value_name = "df|exact", default_value = "df")]
+    pub fock: CoreFockArg,
 }
 
 pub fn bench(a: BenchArgs) -> Result<()> {
-    if a.carbons == 0 {
+    let carbons = a.carbons.unwrap_or(if a.small { 6 } else { 20 });
+    if carbons == 0 {
         return Err(Error::input("--carbons must be at least 1"));
     }
+    let load_start = bandcast::system::load_average();
     let opts = CoreOptions {
         targets: TargetSelection::Element(6),
         thorough: a.thorough,
         use_symmetry: !a.all_holes,
         core_basis: CoreBasis::parse(&a.core_basis),
+        fock: a.fock.fock(),
         ..CoreOptions::default()
     };
-    let r = bandcast::bench::core_level::run_core_bench(a.carbons, &a.basis, &opts)?;
+    let r = bandcast::bench::core_level::run_core_bench(carbons, &a.basis, &opts)?;
     let t = &r.result.timings;
     println!(
         "core: {} — {} atoms, {} functions, {} C 1s levels from {} SCF holes, {} starts, {} threads",
@@ -346,6 +384,15 @@ pub fn bench(a: BenchArgs) -> Result<()> {
         rayon::current_num_threads()
     );
     print!("{}", core_timings_text(t));
+    let load = |l: Option<f64>| l.map_or("?".into(), |x| format!("{x:.1}"));
+    println!(
+        "  J and K: {}; peak memory {}; machine load average {} at start, {} at end \
+         (all cores of a 2-core machine busy = 2.0)",
+        r.result.integrals.describe(),
+        bandcast::system::peak_memory_mib().map_or("?".into(), |m| format!("{m:.0} MiB")),
+        load(load_start),
+        load(bandcast::system::load_average())
+    );
     for l in &r.result.core_levels {
         println!(
             "  {:<8} ΔSCF {:>8.3} eV  ⟨S²⟩ {:.3}  start {}{}",

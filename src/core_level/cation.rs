@@ -66,6 +66,9 @@ pub struct HoleSetup<'a> {
     /// Keep the densities symmetric under this constraint (the delocalised hole of
     /// `delocalised.rs`); None for the ordinary, unconstrained starts.
     pub symmetry: Option<Arc<dyn DensitySymmetry>>,
+    /// Density-fitted J and K with this fitting set (prepared in the SCF context); None:
+    /// exact integrals (`fitting.rs`).
+    pub jk_fitting: Option<String>,
 }
 
 /// A converged cation with its verdict.
@@ -75,14 +78,16 @@ pub struct CationState {
 }
 
 fn base_options(setup: &HoleSetup) -> ScfOptions {
-    ScfOptions {
+    let mut o = ScfOptions {
         max_iter: MAX_ITER,
         memory_budget_bytes: setup.memory_budget_bytes,
         e_tol: E_TOL,
         commutator_tol: COMMUTATOR_TOL,
         density_symmetry: setup.symmetry.clone(),
         ..ScfOptions::default()
-    }
+    };
+    super::fitting::apply(&mut o, setup.jk_fitting.as_deref());
+    o
 }
 
 /// Run one start. `start` is "mom", "imom" or "rohf"; "rohf→uhf" is `from_rohf`.

@@ -105,6 +105,7 @@ pub struct DelocalisedSetup<'a> {
     pub partners: &'a [usize],
     pub e_neutral: f64,
     pub memory_budget_bytes: usize,
+    pub jk_fitting: Option<String>,
 }
 
 /// The lowest symmetry-constrained core-ionised state with the hole in one of the block's
@@ -141,6 +142,7 @@ pub fn delocalised_hole(d: &DelocalisedSetup, scf: &mut ScfContext) -> Option<De
             localised: false,
             memory_budget_bytes: d.memory_budget_bytes,
             symmetry: Some(sym.clone()),
+            jk_fitting: d.jk_fitting.clone(),
         };
         let st = run_start(&setup, scf, "mom");
         let ok = st.attempt.status == HoleStatus::Held;

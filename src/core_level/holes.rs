@@ -39,6 +39,8 @@ pub struct HoleContext<'a> {
     pub neutral_cc: Option<&'a crate::correlation::open_shell::OpenShellResult>,
     pub opts: &'a CoreOptions,
     pub memory_budget_bytes: usize,
+    /// The fitting set of density-fitted J and K, None for exact integrals (`fitting.rs`).
+    pub jk_fitting: Option<String>,
 }
 
 /// The 1s hole of `atom` (0-based; `partners`: its symmetry-equivalent atoms): localise,
@@ -93,6 +95,7 @@ pub fn ionise_atom(
         localised: ctx.opts.localise || !loc.rotated(),
         memory_budget_bytes: ctx.memory_budget_bytes,
         symmetry: None,
+        jk_fitting: ctx.jk_fitting.clone(),
     };
     let states = match ctx.opts.ion_reference {
         IonReference::Rohf => vec![run_start(&setup, scf, "rohf")],
@@ -207,6 +210,7 @@ fn delocalised_for(
             partners,
             e_neutral: nw.energy,
             memory_budget_bytes: ctx.memory_budget_bytes,
+            jk_fitting: ctx.jk_fitting.clone(),
         },
         scf,
     )

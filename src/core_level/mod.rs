@@ -43,6 +43,7 @@
 //! | two_p.rs | the 2s and 2p levels of Na–Ar (the stages for the second shell) |
 //! | default_method.rs | the default method: ΔCCSD(T) when it fits, else ΔSCF |
 //! | delta_cc.rs | ΔCCSD / ΔCCSD(T) on the kept cation, core-valence separated |
+//! | fitting.rs | density-fitted or exact J and K, the fitting set extended on the hole atom |
 //!
 //! ΔMP2 uses `correlation::mp2::mp2_energy`; the benchmark workload is
 //! `bench::core_level`.
@@ -53,6 +54,7 @@ pub mod default_method;
 pub mod delocalised;
 pub mod delta_cc;
 pub mod equivalence;
+pub mod fitting;
 pub mod flexibility;
 pub mod hole_check;
 pub mod holes;
@@ -73,6 +75,7 @@ pub mod spin_orbit;
 pub mod targets;
 pub mod two_p;
 
+pub use fitting::{CoreFock, IntegralsUsed};
 pub use hole_check::HoleStatus;
 pub use neutrals::memory_budget_bytes;
 pub use notes::{CoreNote, Notes};

@@ -47,7 +47,10 @@ pub fn shared_quartets(
     opts: &CoreOptions,
     timings: &mut CoreTimings,
 ) -> Option<PlainQuartets> {
-    if plan.units.len() <= 1 || opts.core_basis == CoreBasis::Plain {
+    if plan.units.len() <= 1
+        || opts.core_basis == CoreBasis::Plain
+        || opts.fock != super::fitting::CoreFock::Exact
+    {
         return None;
     }
     let threshold = ScfOptions::default().screening;
@@ -77,6 +80,9 @@ pub struct Neutral {
     pub wf: Wavefunction,
     /// MP2 correlation energy of the neutral, when ΔMP2 is asked.
     pub mp2: Option<f64>,
+    /// The fitting set of density-fitted J and K (its tensor is held by `scf`); None for
+    /// exact integrals.
+    pub jk_fitting: Option<String>,
 }
 
 impl Neutral {
@@ -113,14 +119,21 @@ pub fn neutral(
     let work = flexible_basis(inp.plain, mol, &unit.flex, &inp.opts.core_basis)?;
     let t = std::time::Instant::now();
     let c0 = cpu_seconds();
-    let mut scf = context(inp, &work, &unit.flex)?;
+    let (mut scf, jk_fitting) = context(inp, &work, &unit.flex)?;
     let s = scf.s.clone();
     let s_half = sqrt_overlap(&s);
-    let neutral_opts = ScfOptions {
+    let mut neutral_opts = ScfOptions {
         reference: Reference::Rhf,
         memory_budget_bytes: inp.budget,
         ..ScfOptions::default()
     };
+    super::fitting::apply(&mut neutral_opts, jk_fitting.as_deref());
+    if !inp.opts.mp2 && inp.opts.cc.is_none() {
+        // Only the energy is used: the cation's thresholds (an energy error second order
+        // in the orbital gradient; `cation::E_TOL`).
+        neutral_opts.e_tol = super::cation::E_TOL;
+        neutral_opts.commutator_tol = super::cation::COMMUTATOR_TOL;
+    }
     let carried = previous.and_then(|p| project_occupied(&p.basis, &p.c, &p.occupied, &work, &s));
     let wf = match carried {
         Some(c) => scf
@@ -159,15 +172,30 @@ pub fn neutral(
         s_half,
         wf,
         mp2,
+        jk_fitting,
     })
 }
 
-/// The SCF context of a unit's basis; its in-core store is filled from the shared quartets
-/// when there are some and the store fits the budget.
-fn context(inp: &NeutralInputs, work: &BasisSet, flex: &[usize]) -> Result<ScfContext> {
+/// The SCF context of a unit's basis with the name of its fitting set when J and K are
+/// density-fitted (the tensor built here, once for the neutral and every cation start);
+/// with exact integrals its in-core store is filled from the shared quartets when there are
+/// some and the store fits the budget.
+fn context(
+    inp: &NeutralInputs,
+    work: &BasisSet,
+    flex: &[usize],
+) -> Result<(ScfContext, Option<String>)> {
     let threshold = ScfOptions::default().screening;
     let lindep = ScfOptions::default().lindep_threshold;
     let mut scf = ScfContext::new(inp.mol, work, lindep)?;
+    if let Some(aux) = super::fitting::fitting_set(inp.mol, work, flex, inp.opts.fock)? {
+        match scf.prepare_density_fitting(&aux, inp.budget) {
+            Ok(()) => return Ok((scf, Some(aux.name))),
+            // the three-index tensor does not fit: exact integrals (integral-direct)
+            Err(Error::TooLarge(_)) => {}
+            Err(e) => return Err(e),
+        }
+    }
     if let (Some(cache), Some(map)) = (inp.shared, shell_map(inp.plain, work, flex)) {
         if scf.in_core_bytes(threshold) <= inp.budget {
             let engine = EriEngine::new(work);
@@ -179,5 +207,5 @@ fn context(inp: &NeutralInputs, work: &BasisSet, flex: &[usize]) -> Result<ScfCo
             scf.build_in_core_from(&src, threshold, inp.budget)?;
         }
     }
-    Ok(scf)
+    Ok((scf, None))
 }

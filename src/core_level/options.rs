@@ -161,6 +161,8 @@ pub struct CoreOptions {
     /// for memory at run time (the memory available changed since the choice), the level
     /// keeps ΔSCF with a note instead of failing.
     pub cc_optional: bool,
+    /// How the SCFs build J and K (`fitting.rs`): density-fitted by default.
+    pub fock: super::fitting::CoreFock,
 }
 
 impl Default for CoreOptions {
@@ -181,6 +183,7 @@ impl Default for CoreOptions {
             memory_bytes: None,
             ion_reference: IonReference::Lowest,
             cc_optional: false,
+            fock: super::fitting::CoreFock::default(),
         }
     }
 }

@@ -107,6 +107,7 @@ pub fn predict_with_progress(
         core_levels: levels,
         references,
         relativistic_source,
+        integrals: super::fitting::used(opts.fock, computed.density_fitted),
         notes,
         timings,
     })
@@ -119,6 +120,8 @@ struct Computed {
     neutral_energies: Vec<f64>,
     neutral_mp2s: Vec<Option<f64>>,
     n_basis_max: usize,
+    /// Some unit's SCFs used density-fitted J and K.
+    density_fitted: bool,
 }
 
 /// Stages 2 and 3 for every unit of the plan. A hole without a trustworthy state is a
@@ -137,6 +140,7 @@ fn compute_holes(
         neutral_energies: Vec::new(),
         neutral_mp2s: Vec::new(),
         n_basis_max: 0,
+        density_fitted: false,
     };
     let mut failures = Vec::new();
     let mut done = 0usize;
@@ -153,6 +157,7 @@ fn compute_holes(
     for unit in &plan.units {
         let mut n = neutral(&inputs, unit, previous.as_ref(), timings)?;
         out.n_basis_max = out.n_basis_max.max(n.basis.n_basis);
+        out.density_fitted |= n.jk_fitting.is_some();
         out.neutral_energies.push(n.wf.energy);
         out.neutral_mp2s.push(n.mp2);
         let neutral_cc = match opts.cc {
@@ -176,6 +181,7 @@ fn compute_holes(
             neutral_cc: neutral_cc.as_ref(),
             opts,
             memory_budget_bytes: budget,
+            jk_fitting: n.jk_fitting.clone(),
         };
         for &a in &unit.holes {
             let t = std::time::Instant::now();

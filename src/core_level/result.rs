@@ -138,6 +138,8 @@ pub struct CoreResult {
     pub references: Vec<ShiftReferenceLevel>,
     /// Source of the relativistic correction when it was applied, else null.
     pub relativistic_source: Option<String>,
+    /// How J and K were built in the SCFs (density-fitted or exact; `fitting.rs`).
+    pub integrals: super::fitting::IntegralsUsed,
     /// JSON: `notes` (messages) and `note_details` (`{code, message}`).
     #[serde(flatten)]
     pub notes: Notes,
@@ -283,6 +285,7 @@ mod tests {
             core_levels: vec![level(2, 290.5, None), level(3, 291.0, Some(291.3))],
             references: vec![],
             relativistic_source: None,
+            integrals: Default::default(),
             notes: Notes::default(),
             timings: CoreTimings::default(),
         };

@@ -280,6 +280,9 @@ fn merge(parts: Vec<CoreResult>) -> CoreResult {
         several = true;
         r.n_basis = r.n_basis.max(p.n_basis);
         r.core_levels.extend(p.core_levels);
+        if p.integrals.fitting_basis.is_some() {
+            r.integrals = p.integrals;
+        }
         for n in p.notes.0 {
             if !r.notes.contains(&n) {
                 r.notes.push(n);
@@ -362,11 +365,13 @@ fn second_shell(
     let mut failures = Vec::new();
     let mut previous: Option<Carried> = None;
     let mut n_basis_max = 0;
+    let mut density_fitted = false;
     let mut neutral_energies = Vec::new();
     let mut neutral_mp2 = Vec::new();
     for unit in &plan.units {
         let mut n = neutral(&inputs, unit, previous.as_ref(), &mut timings)?;
         n_basis_max = n_basis_max.max(n.basis.n_basis);
+        density_fitted |= n.jk_fitting.is_some();
         neutral_energies.push(n.wf.energy);
         neutral_mp2.extend(n.mp2);
         let ctx = HoleContext {
@@ -379,6 +384,7 @@ fn second_shell(
             neutral_cc: None,
             opts: &popts,
             memory_budget_bytes: budget,
+            jk_fitting: n.jk_fitting.clone(),
         };
         for &a in &unit.holes {
             let t = std::time::Instant::now();
@@ -459,6 +465,7 @@ fn second_shell(
         core_levels: levels,
         references: Vec::new(),
         relativistic_source: None,
+        integrals: super::fitting::used(opts.fock, density_fitted),
         notes,
         timings,
     })
@@ -547,6 +554,7 @@ fn atom_levels(
             localised: true,
             memory_budget_bytes: ctx.memory_budget_bytes,
             symmetry: None,
+            jk_fitting: ctx.jk_fitting.clone(),
         };
         let states = search(&setup, scf, ctx.opts.thorough);
         let mine: Vec<HoleAttempt> = states

@@ -349,6 +349,7 @@ pub fn core_table(r: &CoreResult) -> String {
              flexibility on its own atom; see JSON)\n",
         ),
     }
+    s.push_str(&format!("J and K: {}\n", r.integrals.describe()));
     for rf in &r.references {
         s.push_str(&format!(
             "Shift reference: {} {} of {} (atom {}) at {:.2} eV\n",

@@ -122,6 +122,11 @@ fn ensure_df(
     opts: &ScfOptions,
 ) -> Result<()> {
     let name = opts.jk_fitting.as_deref().unwrap_or(DEFAULT_JK_FITTING);
+    // A tensor already built for this name (e.g. a set made by the caller,
+    // `ScfContext::prepare_density_fitting`) is kept.
+    if slot.as_ref().is_some_and(|d| d.aux_name() == name) {
+        return Ok(());
+    }
     let aux = crate::basis::load_auxiliary(name, mol)?;
     if slot.as_ref().is_none_or(|d| d.aux_name() != aux.name) {
         *slot = None;
@@ -318,6 +323,22 @@ impl ScfContext {
     fn df_builder(&mut self, mol: &Molecule, opts: &ScfOptions) -> Result<&mut DfFock> {
         ensure_df(&mut self.df, &mut self.last_run, &self.basis, mol, opts)?;
         Ok(self.df.as_mut().expect("just built"))
+    }
+
+    /// Build the density-fitting tensor now with the auxiliary set `aux` (which may be a
+    /// set made by the caller); runs whose `jk_fitting` names `aux.name` then use it.
+    pub fn prepare_density_fitting(&mut self, aux: &BasisSet, budget: usize) -> Result<()> {
+        if self.df.as_ref().is_some_and(|d| d.aux_name() == aux.name) {
+            return Ok(());
+        }
+        self.df = None;
+        self.df = Some(DfFock::new(&self.basis, aux, budget)?);
+        Ok(())
+    }
+
+    /// Bytes of the density-fitting tensor held, if any.
+    pub fn density_fitting_bytes(&self) -> usize {
+        self.df.as_ref().map_or(0, |d| d.bytes())
     }
 
     /// Build the in-core store now from `src`, which must describe this context's shells

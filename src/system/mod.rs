@@ -5,10 +5,12 @@ pub mod available_memory;
 pub mod bytes;
 pub mod cpu_time;
 pub mod estimate;
+pub mod load;
 pub mod peak_memory;
 
 pub use available_memory::{available_bytes, default_memory_budget};
 pub use bytes::{format_bytes, format_gib};
 pub use cpu_time::{process_cpu_seconds, thread_cpu_seconds};
 pub use estimate::StageEstimate;
+pub use load::load_average;
 pub use peak_memory::{peak_memory_mib, reset_peak_memory, resident_memory_mib};
