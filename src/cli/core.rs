@@ -16,8 +16,9 @@ use bandcast::report::text::{core_table, core_timings_text};
 use super::common::{MoleculeArgs, StateArgs};
 
 /// Core-level binding energies (1s; 2s and 2p with the spin–orbit doublet for Na–Ar):
-/// Koopmans, ΔSCF with the hole kept on one atom by the maximum overlap method, optional
-/// ΔMP2 and chemical shifts against a reference (1s).
+/// Koopmans, ΔSCF with the hole kept on one atom by the maximum overlap method, ΔMP2 or
+/// ΔCCSD(T) beside it, and chemical shifts against a reference level of the same element
+/// and shell.
 ///
 /// Default targets: every atom heavier than helium. Atoms are numbered from 1 in the order
 /// of the XYZ file. The computed energies are vertical binding energies of an isolated
@@ -36,8 +37,8 @@ pub struct Args {
     /// Ionize these atoms, numbered from 1: "1,3,5" or "2-4".
     #[arg(long, value_name = "LIST")]
     pub atoms: Option<String>,
-    /// Shifts against the same element's 1s in this molecule (its first atom of the element),
-    /// computed with the same basis set and options.
+    /// Shifts against the same element's level of the same shell in this molecule (its first
+    /// atom of the element), computed with the same basis set and options.
     #[arg(long, value_name = "FILE.xyz", conflicts_with_all = ["shift_from_atom", "old_reference_atom"])]
     pub shift_from: Option<PathBuf>,
     /// Shifts against this atom (from 1) of the same molecule.
