@@ -14,7 +14,8 @@
 //! the peak.
 //!
 //! `fit_confidence` (ignored; run by hand) fits the coefficients of spectrum/confidence.rs
-//! on the training half (even seeds); `calibration_on_held_back_half` checks the committed
+//! on the training half (even seeds of `dataset` and of `hard_dataset`);
+//! `calibration_on_held_back_half` checks the committed
 //! coefficients on the other half: in every confidence bin with at least 25 pairs the
 //! fraction right lies within 0.1 of the bin's mean confidence.
 
@@ -299,7 +300,7 @@ fn hard_dataset(parity: u64) -> Vec<([f64; FEATURES], bool, f64)> {
 }
 
 /// The held-back half plus the harder traces: enough low-confidence pairs that the 0.2–0.4
-/// bin is checked too (the held-back half alone has 21 there, fewer than the 25 a bin needs).
+/// bin is checked too (the held-back half alone has 12 there, fewer than the 25 a bin needs).
 #[test]
 
 fn low_bins_with_harder_traces() {
