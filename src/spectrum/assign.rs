@@ -265,12 +265,6 @@ pub struct PairContext<'a> {
     pub tau_ev: f64,
     /// Shape comparison of every band (rows) with every peak (columns); empty when none.
     pub shapes: &'a [Vec<Option<ShapeCheck>>],
-    /// Peak heights (same order as the peaks), for the trace-quality term; empty when unknown.
-    pub heights: &'a [f64],
-    /// Noise s.d. of the trace, if known.
-    pub noise: Option<f64>,
-    /// Instrument resolution (FWHM, eV) of the comparison, if known.
-    pub resolution_ev: Option<f64>,
 }
 
 /// Pairs of the optimal matching with their confidence; sorted by measured energy.
@@ -306,12 +300,6 @@ pub fn assigned_pairs(
             intensity_log_ratio: ratios[i][j],
             swaps: swapped.contains(&i),
             shape_mismatch: shape.as_ref().map(|s| s.mismatch),
-            noise_to_height: ctx
-                .noise
-                .zip(ctx.heights.get(j))
-                .filter(|(_, &h)| h > 0.0)
-                .map(|(n, &h)| n / h),
-            resolution_ev: ctx.resolution_ev,
         };
         let conf = calibrated(&ev);
         rows.push(AssignedPair {
@@ -465,9 +453,6 @@ mod tests {
             sigma_ev: Some(0.3),
             tau_ev: 0.25,
             shapes: &[],
-            heights: &[],
-            noise: None,
-            resolution_ev: None,
         };
         let (rows, _) = assigned_pairs(&lines, &[13.05], id, &opt, &ctx);
         assert_eq!(rows.len(), 1);

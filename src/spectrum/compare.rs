@@ -230,7 +230,6 @@ pub fn compare(
     let peaks = bl.peaks;
     let peak_e: Vec<f64> = peaks.iter().map(|p| p.energy_ev).collect();
     let areas: Vec<f64> = peaks.iter().map(|p| p.area).collect();
-    let heights: Vec<f64> = peaks.iter().map(|p| p.height).collect();
     let window = (x[0], x[x.len() - 1]);
     let mopt = MatchOptions {
         cap_ev: opt.cap_ev,
@@ -286,9 +285,6 @@ pub fn compare(
         sigma_ev: opt.method_error.map(|m| m.sd_ev),
         tau_ev: opt.confidence_scale_ev,
         shapes: &shapes,
-        heights: &heights,
-        noise: Some(noise),
-        resolution_ev: Some(opt.fwhm_ev),
     };
     let (pairs, best) = assigned_pairs(&groups, &peak_e, a, &mopt, &ctx);
     let matched_bands: Vec<usize> = best.pairs.iter().map(|p| p.0).collect();

@@ -8,21 +8,15 @@
 //! mismatch |ln r| (capped at 3; 0 when unknown) and whether the pair changes when the
 //! prediction moves within its method's error (s = 0/1), and the shape mismatch h
 //! (band_shape.rs: width, and with a resolved vibronic progression its spacing and visible
-//! quanta; capped at 2; 0 when unknown), and the quality of the trace: q, the noise s.d. of
-//! the trace (trace_check.rs) over the height of the pair's peak (capped at 1; 0 when
-//! unknown), and w, the instrument resolution (FWHM, eV) the trace is compared at (capped at
-//! 1 eV; 0 when unknown). Without q and w one set of coefficients fitted on clean and poor
-//! traces together is under-confident on the clean ones and over-confident on the poor ones.
-//! The probability is logistic: p = 1 / (1 + exp(−(b0 + b1 m + b2 min(σ, 2) + b3 min(|ln r|, 3)
-//! + b4 s + b5 min(h, 2) + b6 min(q, 1) + b7 min(w, 1)))).
+//! quanta; capped at 2; 0 when unknown). The probability is logistic:
+//! p = 1 / (1 + exp(−(b0 + b1 m + b2 min(σ, 2) + b3 min(|ln r|, 3) + b4 s + b5 min(h, 2)))).
 //! b5 is fitted on widths only (the synthetic set has no vibronic structure): the
 //! progression terms borrow the width's coefficient.
 //!
 //! The coefficients `COEF` were fitted by maximum likelihood (Newton's method) on the
 //! training half of a synthetic set: He I band positions, relative intensities and widths
 //! of water, N2, CO, HCN and benzene (tests/data/he1-bands.csv, with its sources), made into
-//! traces at several resolutions, noise levels, calibration shifts and with missing bands
-//! (and a harder set: 15 % noise, 0.6 eV resolution, shifts up to ±0.6 eV, two bands missing),
+//! traces at several resolutions, noise levels, calibration shifts and with missing bands,
 //! against predictions drawn as published position + method mean error + normal scatter of
 //! the method's s.d. (koopmans, ep2, eom-mp2, eom-ccsd). How to refit:
 //! `cargo test --release --test assign_calibration -- --ignored --nocapture fit_confidence`
@@ -43,31 +37,25 @@ pub struct PairEvidence {
     pub swaps: bool,
     /// Shape mismatch (band_shape.rs), when known.
     pub shape_mismatch: Option<f64>,
-    /// Noise s.d. of the trace over the height of the pair's peak, when known.
-    pub noise_to_height: Option<f64>,
-    /// Instrument resolution (FWHM, eV) the trace is compared at, when known.
-    pub resolution_ev: Option<f64>,
 }
 
 /// Number of features (and coefficients).
-pub const FEATURES: usize = 8;
+pub const FEATURES: usize = 6;
 
-/// Fitted coefficients b0..b7 (see the module text for how they were made).
+/// Fitted coefficients b0..b5 (see the module text for how they were made).
 pub const COEF: [f64; FEATURES] = [
-    1.5268887746447528,
-    3.1691633726623754,
-    -1.6429895426698085,
-    0.31382889220497723,
-    -0.3310246635400218,
-    -1.1157618674070227,
-    -3.964493487678353,
-    -3.89821958071581,
+    1.5934308889451478,
+    3.8813315775894885,
+    -3.4194777485789856,
+    -0.7101487295267349,
+    -1.197653590971722,
+    -0.10238266550270606,
 ];
 
 /// σ assumed for a method without error statistics (eV).
 pub const UNKNOWN_SIGMA_EV: f64 = 0.7;
 
-/// The feature vector (1, m, min(σ, 2), min(|ln r|,3), s, min(h, 2), min(q, 1), min(w, 1)).
+/// The feature vector (1, m, min(σ, 2), min(|ln r|,3), s, min(h, 2)).
 pub fn features(e: &PairEvidence) -> [f64; FEATURES] {
     [
         1.0,
@@ -76,8 +64,6 @@ pub fn features(e: &PairEvidence) -> [f64; FEATURES] {
         e.intensity_log_ratio.map_or(0.0, |r| r.abs().min(3.0)),
         if e.swaps { 1.0 } else { 0.0 },
         e.shape_mismatch.map_or(0.0, |h| h.min(2.0)),
-        e.noise_to_height.map_or(0.0, |q| q.min(1.0)),
-        e.resolution_ev.map_or(0.0, |w| w.min(1.0)),
     ]
 }
 
@@ -104,8 +90,6 @@ mod tests {
             intensity_log_ratio: Some(0.1),
             swaps: false,
             shape_mismatch: Some(0.1),
-            noise_to_height: Some(0.02),
-            resolution_ev: Some(0.03),
         };
         let weaker = PairEvidence {
             margin_feature: 0.2,
