@@ -1,6 +1,8 @@
 //! Assignment of measured spectra: synthetic traces built from published band positions,
 //! an ambiguous case, shift recovery under noise, malformed input.
 
+mod common;
+
 use bandcast::ionization::Region;
 use bandcast::spectrum::assign::PredictedLine;
 use bandcast::spectrum::compare::{compare, CompareOptions};
@@ -302,12 +304,7 @@ fn assign_command_json_schema() {
         ])
         .output()
         .unwrap();
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let v = common::json_of(&out);
     assert!(v["shift_ev"].is_f64());
     assert_eq!(v["scale"].as_f64(), Some(1.0));
     let a = v["assignments"].as_array().unwrap();

@@ -2,6 +2,8 @@
 //! that settles what positions alone get wrong, and a right position with the wrong width
 //! losing confidence. Sources beside each value.
 
+mod common;
+
 use bandcast::ionization::Region;
 use bandcast::spectrum::assign::PredictedLine;
 use bandcast::spectrum::band_shape::{PredictedShape, VibronicShape};
@@ -249,12 +251,7 @@ fn assign_with_vibronic_envelopes_reads_the_progression_when_resolved() {
             ])
             .output()
             .unwrap();
-        assert!(
-            out.status.success(),
-            "{}",
-            String::from_utf8_lossy(&out.stderr)
-        );
-        serde_json::from_slice(&out.stdout).unwrap()
+        common::json_of(&out)
     };
     let codes = |v: &serde_json::Value| -> Vec<String> {
         v["note_details"]

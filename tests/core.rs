@@ -8,10 +8,9 @@
 //! Hartree–Fock ΔSCF has no relativistic correction and no correlation: absolute values
 //! within about 1 eV is the common-practice expectation (docs/reference-data.md §4).
 
-use std::path::{Path, PathBuf};
-use std::process::Command;
+mod common;
 
-use bandcast::chem::xyz::{parse_xyz, read_xyz, LengthUnit};
+use bandcast::chem::xyz::{parse_xyz, LengthUnit};
 use bandcast::chem::Molecule;
 use bandcast::core_level::{
     CoreLevel, CoreOptions, CoreResult, ReferenceMolecule, ShiftReference, TargetSelection,
@@ -26,13 +25,9 @@ fn predict(mol: &Molecule, basis_name: &str, opts: &CoreOptions) -> bandcast::Re
     bandcast::core_level::predict(mol, &set, opts)
 }
 
-fn gw100(name: &str) -> PathBuf {
-    Path::new(concat!(env!("CARGO_MANIFEST_DIR"), "/tests/data/gw100")).join(format!("{name}.xyz"))
-}
+use common::gw100_file as gw100;
 
-fn load(name: &str) -> Molecule {
-    read_xyz(&gw100(name), LengthUnit::Angstrom).expect("benchmark geometry")
-}
+use common::gw100_molecule as load;
 
 /// CO at its experimental bond length r_e = 1.1283 Å (Huber & Herzberg, *Constants of
 /// Diatomic Molecules* (1979), from memory). The GW100 file in tests/data/gw100 gives 1.283 Å,
@@ -315,9 +310,7 @@ fn carbon_monoxide_levels_and_shift_from_methane() {
     assert!((c2.dmp2_ev.unwrap() - 296.2).abs() < 1.5);
 }
 
-fn bandcast() -> Command {
-    Command::new(env!("CARGO_BIN_EXE_bandcast"))
-}
+use common::bandcast;
 
 #[test]
 fn bad_atom_index_is_an_input_error_naming_it() {

@@ -6,20 +6,16 @@
 //! the test-affordable cc-pVDZ basis (hole atom s and p uncontracted) the values are
 //! non-relativistic and basis-limited; docs/core-levels.md has the table in larger sets.
 
-use std::path::{Path, PathBuf};
+mod common;
+
+use std::path::Path;
 
 use bandcast::chem::xyz::{read_xyz, LengthUnit};
 use bandcast::chem::Molecule;
 use bandcast::core_level::delta_cc::DeltaCc;
 use bandcast::core_level::{CoreOptions, CoreResult, IonReference, TargetSelection};
 
-fn gw100(name: &str) -> PathBuf {
-    Path::new(concat!(env!("CARGO_MANIFEST_DIR"), "/tests/data/gw100")).join(format!("{name}.xyz"))
-}
-
-fn load(name: &str) -> Molecule {
-    read_xyz(&gw100(name), LengthUnit::Angstrom).expect("benchmark geometry")
-}
+use common::gw100_molecule as load;
 
 fn run(mol: &Molecule, basis: &str, cc: DeltaCc) -> CoreResult {
     let set = bandcast::basis::load(basis, mol, None).unwrap();

@@ -4,6 +4,8 @@
 //! from shared/data/gw100. Reference values: shared docs/reference-data.md §2 and §3, sources
 //! named beside each check.
 
+mod common;
+
 use bandcast::basis::BasisSet;
 use bandcast::chem::xyz::{parse_xyz, LengthUnit};
 use bandcast::chem::Molecule;
@@ -387,12 +389,7 @@ fn cli_json_has_the_documented_fields() {
         ])
         .output()
         .unwrap();
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let v = common::json_of(&out);
     assert_eq!(v["method"], "ep2");
     assert_eq!(v["basis"].as_str().unwrap().to_lowercase(), "sto-3g");
     assert!(v.get("point_group").is_some());

@@ -2,7 +2,6 @@
 //! value not re-read from its source (tolerances allow for a slip).
 
 use std::path::Path;
-use std::process::Command;
 
 use bandcast::basis::{self, BasisSet};
 use bandcast::chem::xyz::{read_xyz, LengthUnit};
@@ -341,9 +340,7 @@ fn core_hole_rohf_and_uhf_by_mom() {
     }
 }
 
-fn bandcast() -> Command {
-    Command::new(env!("CARGO_BIN_EXE_bandcast"))
-}
+use common::bandcast;
 
 #[test]
 fn cli_json_and_exit_codes() {

@@ -6,6 +6,8 @@
 //! input is about 0.03 bohr off exact symmetry, which used to make the ortho carbons two
 //! different atoms computed separately.
 
+mod common;
+
 use std::process::Command;
 
 #[test]
@@ -25,12 +27,7 @@ fn pyridine_equivalent_carbons_get_identical_c1s() {
         ])
         .output()
         .unwrap();
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    let j: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let j = common::json_of(&out);
     let levels = j["core_levels"].as_array().unwrap();
     assert_eq!(levels.len(), 5);
     let by_label = |l: &str| {

@@ -6,6 +6,8 @@
 //! tests/data/gw100. Exact condition checked: orbitals that an exact symmetry makes
 //! degenerate (benzene's e1g HOMO pair, D6h; common practice) have identical energies.
 
+mod common;
+
 use std::process::Command;
 
 use bandcast::chem::xyz::{parse_xyz, LengthUnit};
@@ -46,12 +48,7 @@ fn ionize_json(file: &std::path::Path, extra: &[&str]) -> serde_json::Value {
         .args(extra)
         .output()
         .unwrap();
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    serde_json::from_slice(&out.stdout).unwrap()
+    common::json_of(&out)
 }
 
 fn tmp(name: &str, text: &str) -> std::path::PathBuf {
@@ -134,12 +131,7 @@ fn pyridine_same_group_in_ionize_and_core() {
         .args(["--element", "N", "--method", "dscf", "--json"])
         .output()
         .unwrap();
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    let c: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let c = common::json_of(&out);
     let core = find(&c);
     let disp = |m: &str| -> String {
         let i = m.find("largest displacement").unwrap();

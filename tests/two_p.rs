@@ -9,22 +9,15 @@
 //! partly cancel and ±0.5 eV is the expectation asked for (docs/core-levels.md "2p and 2s").
 //! The structures are the GW100 ones in tests/data/gw100 (experimental geometries).
 
-use std::path::{Path, PathBuf};
-use std::process::Command;
+mod common;
 
-use bandcast::chem::xyz::{read_xyz, LengthUnit};
-use bandcast::chem::Molecule;
 use bandcast::core_level::{CoreLevel, CoreOptions, CoreResult, CoreShell, ShellChoice};
 use bandcast::ionization::Region;
 use bandcast::spectrum::cross_section::gelius_intensity;
 
-fn gw100(name: &str) -> PathBuf {
-    Path::new(concat!(env!("CARGO_MANIFEST_DIR"), "/tests/data/gw100")).join(format!("{name}.xyz"))
-}
+use common::gw100_file as gw100;
 
-fn load(name: &str) -> Molecule {
-    read_xyz(&gw100(name), LengthUnit::Angstrom).expect("benchmark geometry")
-}
+use common::gw100_molecule as load;
 
 /// The 2p levels of the heavy atom of a GW100 molecule (cc-pVDZ, default options), computed
 /// once per test binary (several tests look at the same molecules).
@@ -194,9 +187,7 @@ fn free_atom_doublet_intensity_is_two_to_one_at_al_ka() {
     assert!((ratio - 2.0).abs() < 1e-9, "{ratio}");
 }
 
-fn bandcast() -> Command {
-    Command::new(env!("CARGO_BIN_EXE_bandcast"))
-}
+use common::bandcast;
 
 #[test]
 fn shell_keys_in_json_and_auto_picks_2p_at_al_ka() {
@@ -205,12 +196,7 @@ fn shell_keys_in_json_and_auto_picks_2p_at_al_ka() {
         .arg(gw100("hydrogen-chloride"))
         .output()
         .unwrap();
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    let j: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let j = common::json_of(&out);
     let levels = j["core_levels"].as_array().unwrap();
     let shells: Vec<&str> = levels
         .iter()
@@ -233,12 +219,7 @@ fn a_level_beyond_the_photons_is_named_with_the_sources_that_reach_it() {
         .arg(gw100("hydrogen-sulfide"))
         .output()
         .unwrap();
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    let j: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let j = common::json_of(&out);
     assert_eq!(j["core_levels"][0]["shell"], "2s");
     assert_eq!(
         j["core_levels"][0]["spin_orbit_ev"],
@@ -403,12 +384,7 @@ fn shifts_compare_like_shells() {
         .arg(gw100("hydrogen-chloride"))
         .output()
         .unwrap();
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    let j: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let j = common::json_of(&out);
     let refs: Vec<&str> = j["references"]
         .as_array()
         .unwrap()

@@ -39,12 +39,7 @@ fn hot_bands_follow_the_boltzmann_law_and_bad_requests_stop_before_work() {
         "--html",
         html.to_str().unwrap(),
     ]);
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let v = common::json_of(&out);
     assert_eq!(v["temperature_k"], 3000.0);
     let b = &v["bands"][0];
     let lines = b["lines"].as_array().unwrap();

@@ -28,3 +28,31 @@ pub fn crawford_water() -> Molecule {
 pub fn temp_path(prefix: &str, name: &str) -> PathBuf {
     std::env::temp_dir().join(format!("bandcast-{prefix}-{}-{name}", std::process::id()))
 }
+
+/// A structure of the bundled GW100 set (tests/data/gw100, experimental geometries).
+pub fn gw100_file(name: &str) -> PathBuf {
+    PathBuf::from(concat!(env!("CARGO_MANIFEST_DIR"), "/tests/data/gw100"))
+        .join(format!("{name}.xyz"))
+}
+
+/// A GW100 molecule read from its XYZ file (Å).
+pub fn gw100_molecule(name: &str) -> bandcast::chem::Molecule {
+    bandcast::chem::xyz::read_xyz(&gw100_file(name), bandcast::chem::xyz::LengthUnit::Angstrom)
+        .expect("benchmark geometry")
+}
+
+/// The bandcast binary built for these tests.
+pub fn bandcast() -> std::process::Command {
+    std::process::Command::new(env!("CARGO_BIN_EXE_bandcast"))
+}
+
+/// The `--json` object a finished command printed; fails the test, showing stderr, when the
+/// command did not succeed.
+pub fn json_of(out: &std::process::Output) -> serde_json::Value {
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    serde_json::from_slice(&out.stdout).expect("JSON on stdout")
+}
