@@ -20,9 +20,20 @@ use bandcast::{Error, Result};
 
 use super::common::{
     check_fwhm, check_output_dir, parse_axis, parse_photon, print_json, MoleculeArgs, PredictArgs,
+    VibronicArgs,
 };
 
 #[derive(clap::Args, Debug)]
+#[command(
+    mut_arg("vibronic", |a| a.help(
+        "Compute the vibrational structure of the lowest bands (--vibronic-count, default 3; \
+         harmonic Franck–Condon with Duschinsky rotation, as in `ionize --vibronic`) and match \
+         by shape too: the envelope's width, and where the trace's resolution (--fwhm) resolves \
+         the progression, its spacing and number of visible quanta. Valence only")),
+    mut_arg("vertical_basis", |a| a.help(
+        "With --vibronic: basis of the correlated vertical energies of the vibronic bands \
+         (default: --basis; only their shapes are used in the match)")),
+)]
 pub struct Args {
     #[command(flatten)]
     pub molecule: MoleculeArgs,
@@ -60,25 +71,8 @@ pub struct Args {
     /// Write a self-contained HTML report.
     #[arg(long, value_name = "OUT.html")]
     pub html: Option<PathBuf>,
-    // --- vibronic envelopes (cli/vibronic.rs) ---
-    /// Compute the vibrational structure of the lowest bands (--vibronic-count, default 3;
-    /// harmonic Franck–Condon with Duschinsky rotation, as in `ionize --vibronic`) and match
-    /// by shape too: the envelope's width, and where the trace's resolution (--fwhm) resolves
-    /// the progression, its spacing and number of visible quanta. Valence only.
-    #[arg(long)]
-    pub vibronic: bool,
-    /// Number of bands with --vibronic.
-    #[arg(long, value_name = "N", requires = "vibronic")]
-    pub vibronic_count: Option<usize>,
-    /// With --vibronic: populate the neutral's vibrational levels at this temperature in
-    /// kelvin (Boltzmann), adding hot-band lines below the 0–0 line. Default 0 K.
-    #[arg(long, value_name = "K", requires = "vibronic")]
-    pub temperature: Option<f64>,
-    /// With --vibronic: basis of the correlated vertical energies of the vibronic bands
-    /// (default: --basis; only their shapes are used in the match).
-    #[arg(long, value_name = "NAME", requires = "vibronic")]
-    pub vertical_basis: Option<String>,
-    // --- end vibronic ---
+    #[command(flatten)]
+    pub vibronic: VibronicArgs,
 }
 
 fn positive(name: &str, v: Option<f64>) -> Result<Option<f64>> {
@@ -110,7 +104,7 @@ pub fn run(args: Args) -> Result<()> {
     let max_residual = positive("--max-residual", args.max_residual)?;
     let max_shift = positive("--max-shift", args.max_shift)?;
     args.predict.check()?;
-    if args.vibronic && args.predict.region != Region::Valence {
+    if args.vibronic.vibronic && args.predict.region != Region::Valence {
         return Err(Error::input(
             "--vibronic compares the vibrational structure of valence bands; it does not apply \
              to core levels",
@@ -178,15 +172,13 @@ pub fn run(args: Args) -> Result<()> {
         }
     }
     // --- vibronic envelopes (cli/vibronic.rs) ---
-    let vibronic = if args.vibronic {
-        let set = super::vibronic::Settings {
-            basis: &args.predict.basis,
-            count: args.vibronic_count,
-            temperature_k: args.temperature.unwrap_or(0.0),
-            vertical_basis: args.vertical_basis.as_deref(),
-            memory_gib: args.predict.memory,
-            verbose: args.predict.verbose,
-        };
+    let vibronic = if args.vibronic.vibronic {
+        let set = args.vibronic.settings(
+            &args.predict.basis,
+            None,
+            args.predict.memory,
+            args.predict.verbose,
+        );
         super::vibronic::compute(&mol, &set)?.1
     } else {
         Vec::new()

@@ -72,6 +72,52 @@ impl MoleculeArgs {
     }
 }
 
+/// `--vibronic` and its options, the same in `ionize`, `spectrum` and `assign` (the work is
+/// cli/vibronic.rs). Each command says in its own help what `--vibronic` does there
+/// (`mut_arg` on its Args); the other options mean the same everywhere.
+#[derive(clap::Args, Debug, Clone)]
+pub struct VibronicArgs {
+    /// Vibrational structure of the lowest bands (harmonic Franck–Condon with Duschinsky
+    /// rotation).
+    #[arg(long)]
+    pub vibronic: bool,
+    /// Number of bands with --vibronic (default 3).
+    #[arg(long, value_name = "N", requires = "vibronic")]
+    pub vibronic_count: Option<usize>,
+    /// With --vibronic: populate the neutral's vibrational levels at this temperature in
+    /// kelvin (Boltzmann), adding hot-band lines below the 0–0 line. Default 0 K: the
+    /// neutral in its lowest level only (a cold jet, or a good approximation at room
+    /// temperature when every mode lies well above kT ≈ 208 cm⁻¹).
+    #[arg(long, value_name = "K", requires = "vibronic")]
+    pub temperature: Option<f64>,
+    /// With --vibronic: basis of the correlated vertical energies (default: --basis). The
+    /// lone-pair IEs of first-row molecules need diffuse functions: water's 1b1 in cc-pVDZ
+    /// is 0.8 eV below aug-cc-pVTZ (docs/vibronic-bands.md).
+    #[arg(long, value_name = "NAME", requires = "vibronic")]
+    pub vertical_basis: Option<String>,
+}
+
+impl VibronicArgs {
+    /// The run's settings: `basis` and the memory budget are the command's own, `count` the
+    /// command's band count when it has one (ionize's `--count`), else `--vibronic-count`.
+    pub fn settings<'a>(
+        &'a self,
+        basis: &'a str,
+        count: Option<usize>,
+        memory_gib: Option<f64>,
+        verbose: bool,
+    ) -> super::vibronic::Settings<'a> {
+        super::vibronic::Settings {
+            basis,
+            count: self.vibronic_count.or(count),
+            temperature_k: self.temperature.unwrap_or(0.0),
+            vertical_basis: self.vertical_basis.as_deref(),
+            memory_gib,
+            verbose,
+        }
+    }
+}
+
 /// What every command that predicts bands asks: basis, region, method and their options.
 /// The work is `bandcast::predict::predict`.
 #[derive(clap::Args, Debug, Clone)]
@@ -288,6 +334,119 @@ pub fn print_json<T: serde::Serialize>(value: &T) -> Result<()> {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    fn parse(args: &[&str]) -> std::result::Result<super::super::Cli, clap::Error> {
+        use clap::Parser;
+        super::super::Cli::try_parse_from(std::iter::once("bandcast").chain(args.iter().copied()))
+    }
+
+    /// The vibronic options are one group in ionize, spectrum and assign: same names, same
+    /// defaults (3 bands, 0 K, --basis), and `--vibronic` required by each (regression test of
+    /// the argument definitions; clap's own consistency check included).
+    #[test]
+    fn vibronic_options_are_one_group_in_three_commands() {
+        use super::super::Command;
+        use clap::CommandFactory;
+        super::super::Cli::command().debug_assert();
+        let tail = [
+            "--vibronic-count",
+            "2",
+            "--temperature",
+            "300",
+            "--vertical-basis",
+            "B2",
+        ];
+        let runs: [&[&str]; 3] = [
+            &["ionize", "m.xyz", "--basis", "B", "--vibronic"],
+            &[
+                "spectrum",
+                "m.xyz",
+                "--basis",
+                "B",
+                "--photon",
+                "he1",
+                "--vibronic",
+            ],
+            &[
+                "assign",
+                "m.xyz",
+                "--basis",
+                "B",
+                "--measured",
+                "t.txt",
+                "--vibronic",
+            ],
+        ];
+        for head in runs {
+            let v = |cli: super::super::Cli| match cli.command {
+                Command::Ionize(a) => a.vibronic,
+                Command::Spectrum(a) => a.vibronic,
+                Command::Assign(a) => a.vibronic,
+                _ => unreachable!(),
+            };
+            let full: Vec<&str> = head.iter().chain(tail.iter()).copied().collect();
+            let set = v(parse(&full).unwrap());
+            let s = set.settings("B", None, None, false);
+            assert_eq!(
+                (s.count, s.temperature_k, s.vertical_basis),
+                (Some(2), 300.0, Some("B2"))
+            );
+            // defaults: count left to cli/vibronic.rs (3), 0 K, the vertical basis = --basis
+            let set = v(parse(head).unwrap());
+            let s = set.settings("B", None, None, false);
+            assert_eq!(
+                (s.count, s.temperature_k, s.vertical_basis),
+                (None, 0.0, None)
+            );
+            // the options need --vibronic
+            let without: Vec<&str> = head[..head.len() - 1]
+                .iter()
+                .chain(["--temperature", "5"].iter())
+                .copied()
+                .collect();
+            assert!(parse(&without).is_err(), "{without:?}");
+        }
+        // ionize: --count gives the vibronic band count too; not both
+        let a = parse(&[
+            "ionize",
+            "m.xyz",
+            "--basis",
+            "B",
+            "--vibronic",
+            "--count",
+            "4",
+        ])
+        .unwrap();
+        let Command::Ionize(a) = a.command else {
+            unreachable!()
+        };
+        assert_eq!(
+            a.vibronic.settings("B", a.count, None, false).count,
+            Some(4)
+        );
+        assert!(parse(&[
+            "ionize",
+            "m.xyz",
+            "--basis",
+            "B",
+            "--vibronic",
+            "--count",
+            "4",
+            "--vibronic-count",
+            "2"
+        ])
+        .is_err());
+        assert!(parse(&[
+            "ionize",
+            "m.xyz",
+            "--basis",
+            "B",
+            "--vibronic",
+            "--method",
+            "ep2"
+        ])
+        .is_err());
+    }
 
     #[test]
     fn window_is_lo_hi_or_hi() {

@@ -10,10 +10,24 @@ use bandcast::report::json::{to_pretty, IonizeJson};
 use bandcast::report::text::ionize_table;
 use bandcast::{Error, Result};
 
-use super::common::{parse_window, MoleculeArgs};
+use super::common::{parse_window, MoleculeArgs, VibronicArgs};
 
 /// Valence ionization energies with band labels, degeneracies, make-up and bonding character.
 #[derive(clap::Args, Debug)]
+#[command(
+    mut_arg("vibronic", |a| a
+        .help(
+            "Vibrational structure of the --count (default 3) lowest bands: optimise the \
+             neutral and each cation (hole held by the maximum overlap method), both harmonic \
+             analyses, Franck–Condon progression with Duschinsky rotation; adiabatic, vertical \
+             and maximum positions (correlated vertical energy + HF relaxation) and the \
+             progression-forming modes. --memory bounds it (refused before any work when it \
+             cannot fit)")
+        .conflicts_with_all(["method", "window", "integrals", "correlate_core"])),
+    mut_arg("vibronic_count", |a| a
+        .help("Number of bands with --vibronic (default 3; the same as --count here)")
+        .conflicts_with("count")),
+)]
 pub struct Args {
     #[command(flatten)]
     pub molecule: MoleculeArgs,
@@ -52,41 +66,18 @@ pub struct Args {
     /// each stage.
     #[arg(long)]
     pub verbose: bool,
-    // --- vibronic bands (cli/vibronic.rs) ---
-    /// Vibrational structure of the --count (default 3) lowest bands: optimise the neutral
-    /// and each cation (hole held by the maximum overlap method), both harmonic analyses,
-    /// Franck–Condon progression with Duschinsky rotation; adiabatic, vertical and maximum
-    /// positions (correlated vertical energy + HF relaxation) and the progression-forming
-    /// modes. --memory bounds it (refused before any work when it cannot fit).
-    #[arg(long, conflicts_with_all = ["method", "window", "integrals", "correlate_core"])]
-    pub vibronic: bool,
-    /// With --vibronic: populate the neutral's vibrational levels at this temperature in
-    /// kelvin (Boltzmann), adding hot-band lines below the 0–0 line. Default 0 K: the
-    /// neutral in its lowest level only (a cold jet, or a good approximation at room
-    /// temperature when every mode lies well above kT ≈ 208 cm⁻¹).
-    #[arg(long, value_name = "K", requires = "vibronic")]
-    pub temperature: Option<f64>,
-    /// With --vibronic: basis of the correlated vertical energies (default: --basis). The
-    /// lone-pair IEs of first-row molecules need diffuse functions: water's 1b1 in cc-pVDZ
-    /// is 0.8 eV below aug-cc-pVTZ (docs/vibronic-bands.md).
-    #[arg(long, value_name = "NAME", requires = "vibronic")]
-    pub vertical_basis: Option<String>,
-    // --- end vibronic ---
+    #[command(flatten)]
+    pub vibronic: VibronicArgs,
 }
 
 pub fn run(args: Args) -> Result<()> {
     let started = std::time::Instant::now();
     let mol = args.molecule.load()?;
     // --- vibronic bands (cli/vibronic.rs) ---
-    if args.vibronic {
-        let set = super::vibronic::Settings {
-            basis: &args.basis,
-            count: args.count,
-            temperature_k: args.temperature.unwrap_or(0.0),
-            vertical_basis: args.vertical_basis.as_deref(),
-            memory_gib: args.memory,
-            verbose: args.verbose,
-        };
+    if args.vibronic.vibronic {
+        let set = args
+            .vibronic
+            .settings(&args.basis, args.count, args.memory, args.verbose);
         return super::vibronic::ionize(&mol, &args.molecule.file, &set, args.json);
     }
     // --- end vibronic ---

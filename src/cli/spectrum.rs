@@ -21,10 +21,15 @@ use bandcast::Result;
 
 use super::common::{
     check_fwhm, check_output_dir, parse_axis, parse_photon, parse_window, print_json, PredictArgs,
-    StateArgs,
+    StateArgs, VibronicArgs,
 };
 
 #[derive(clap::Args, Debug)]
+#[command(mut_arg("vibronic", |a| a.help(
+    "Draw the lowest bands (--vibronic-count, default 3) as broadened vibronic stick \
+     spectra (harmonic Franck–Condon with Duschinsky rotation, correlated vertical energy + \
+     HF relaxation for the positions); default \
+     --fwhm 0.03 eV, a good He I spectrometer's resolution (common practice). One molecule")))]
 pub struct Args {
     /// Geometries in XYZ format; `FILE.xyz:WEIGHT` gives a molecule's share in a mixture.
     #[arg(value_name = "FILE.xyz[:WEIGHT]", required = true, num_args = 1..)]
@@ -66,23 +71,8 @@ pub struct Args {
     #[arg(long)]
     pub json: bool,
     // --- vibronic bands (cli/vibronic.rs) ---
-    /// Draw the lowest bands (--vibronic-count, default 3) as broadened vibronic stick
-    /// spectra (harmonic Franck–Condon with Duschinsky rotation, correlated vertical energy +
-    /// HF relaxation for the positions); default
-    /// --fwhm 0.03 eV, a good He I spectrometer's resolution (common practice). One molecule.
-    #[arg(long)]
-    pub vibronic: bool,
-    /// Number of bands with --vibronic.
-    #[arg(long, value_name = "N", requires = "vibronic")]
-    pub vibronic_count: Option<usize>,
-    /// With --vibronic: populate the neutral's vibrational levels at this temperature in
-    /// kelvin (Boltzmann), adding hot-band lines below the 0–0 line. Default 0 K: the
-    /// neutral in its lowest level only.
-    #[arg(long, value_name = "K", requires = "vibronic")]
-    pub temperature: Option<f64>,
-    /// With --vibronic: basis of the correlated vertical energies (default: --basis).
-    #[arg(long, value_name = "NAME", requires = "vibronic")]
-    pub vertical_basis: Option<String>,
+    #[command(flatten)]
+    pub vibronic: VibronicArgs,
     /// Write a self-contained HTML page: the figure (one panel per element for core levels
     /// of several elements) and the bands with their chemical environments; with
     /// --vibronic, the figure with its sticks and a table per band.
@@ -118,21 +108,19 @@ pub fn run(args: Args) -> Result<()> {
     args.predict.check()?;
     let inputs = parse_inputs(&args.files)?;
     // --- vibronic bands (cli/vibronic.rs) ---
-    if args.vibronic {
+    if args.vibronic.vibronic {
         if inputs.len() != 1 {
             return Err(bandcast::Error::input(
                 "--vibronic draws one molecule: give one file",
             ));
         }
         let mol = args.state.load(&inputs[0].path)?;
-        let set = super::vibronic::Settings {
-            basis: &args.predict.basis,
-            count: args.vibronic_count,
-            temperature_k: args.temperature.unwrap_or(0.0),
-            vertical_basis: args.vertical_basis.as_deref(),
-            memory_gib: args.predict.memory,
-            verbose: args.predict.verbose,
-        };
+        let set = args.vibronic.settings(
+            &args.predict.basis,
+            None,
+            args.predict.memory,
+            args.predict.verbose,
+        );
         return super::vibronic::spectrum(
             &mol,
             &inputs[0].path,
