@@ -407,45 +407,20 @@ mod tests {
             assert!(parse(&without).is_err(), "{without:?}");
         }
         // ionize: --count gives the vibronic band count too; not both
-        let a = parse(&[
-            "ionize",
-            "m.xyz",
-            "--basis",
-            "B",
-            "--vibronic",
-            "--count",
-            "4",
-        ])
-        .unwrap();
-        let Command::Ionize(a) = a.command else {
+        let ionize = |more: &[&str]| {
+            let mut v = vec!["ionize", "m.xyz", "--basis", "B", "--vibronic"];
+            v.extend_from_slice(more);
+            parse(&v)
+        };
+        let Command::Ionize(a) = ionize(&["--count", "4"]).unwrap().command else {
             unreachable!()
         };
         assert_eq!(
             a.vibronic.settings("B", a.count, None, false).count,
             Some(4)
         );
-        assert!(parse(&[
-            "ionize",
-            "m.xyz",
-            "--basis",
-            "B",
-            "--vibronic",
-            "--count",
-            "4",
-            "--vibronic-count",
-            "2"
-        ])
-        .is_err());
-        assert!(parse(&[
-            "ionize",
-            "m.xyz",
-            "--basis",
-            "B",
-            "--vibronic",
-            "--method",
-            "ep2"
-        ])
-        .is_err());
+        assert!(ionize(&["--count", "4", "--vibronic-count", "2"]).is_err());
+        assert!(ionize(&["--method", "ep2"]).is_err());
     }
 
     #[test]
