@@ -369,3 +369,49 @@ fn malformed_measured_file_exits_2_naming_the_line() {
     assert!(err.contains("trace.csv:4"), "{err}");
     std::fs::remove_dir_all(&dir).unwrap();
 }
+
+/// A hand-made band at `ie_ev` (only what the assignment reads).
+fn hand_band(
+    label: &str,
+    ie_ev: f64,
+    region: bandcast::ionization::Region,
+) -> bandcast::ionization::Band {
+    bandcast::ionization::Band {
+        label: label.into(),
+        symmetry: None,
+        ie_ev,
+        degeneracy: 1,
+        occupation: 2.0,
+        pole_strength: None,
+        one_hole_weight: None,
+        character: None,
+        character_note: None,
+        makeup: Vec::new(),
+        method: "dscf".into(),
+        region,
+        atom: None,
+        environment: None,
+        lifetime_fwhm_ev: None,
+    }
+}
+
+#[test]
+fn core_assignment_says_the_confidence_is_outside_its_calibration() {
+    // The confidence model is fitted on He I valence traces only (src/spectrum/confidence.rs):
+    // on a core-level trace the assignment must say so with a typed note; on a valence
+    // trace with the same numbers it must not. Two invented lines 2.3 eV apart, 0.4 eV
+    // above the prediction, two resolved peaks.
+    use bandcast::spectrum::assignment::{assign_bands, AssignmentOptions};
+    let m = synthetic(&[290.4, 292.7], &[1.0, 1.0], 285.0, 298.0, 0.005, 7);
+    let code = "confidence_uncalibrated_for_core";
+    for (region, expect) in [(Region::Core, true), (Region::Valence, false)] {
+        let bands = [
+            hand_band("C1 1s", 290.0, region),
+            hand_band("C2 1s", 292.3, region),
+        ];
+        let a = assign_bands(&bands, &m, &AssignmentOptions::new(region)).unwrap();
+        assert_eq!(a.comparison.assignments.len(), 2, "{region:?}");
+        let codes: Vec<&str> = a.comparison.notes.iter().map(|n| n.code()).collect();
+        assert_eq!(codes.contains(&code), expect, "{region:?}: {codes:?}");
+    }
+}

@@ -147,10 +147,26 @@ fn assign_names_the_environments() {
     assert!(envs
         .iter()
         .any(|e| e["band"] == "C5 1s" && e["environment"] == "F–C–O"));
+    // The confidence model is fitted on He I valence traces only: a core-level assignment
+    // says so, in the JSON notes with its code and in the text.
+    let codes: Vec<&str> = j["note_details"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|n| n["code"].as_str().unwrap())
+        .collect();
+    assert!(
+        codes.contains(&"confidence_uncalibrated_for_core"),
+        "{codes:?}"
+    );
     let page = std::fs::read_to_string(&html).unwrap();
     assert!(page.contains("C1 1s (O–C(=O)–O)"));
     let text = String::from_utf8(bandcast(&args).stdout).unwrap();
     assert!(text.contains("C6 1s (C–O)"), "{text}");
+    assert!(
+        text.contains("note: the confidences come from a model fitted on He I valence traces"),
+        "{text}"
+    );
     let _ = std::fs::remove_file(html);
 }
 

@@ -237,6 +237,10 @@ pub fn assign_bands_with_envelopes(
         });
     }
     comparison.notes.extend(stick_notes);
+    // the confidence model is fitted on He I valence traces only (confidence.rs)
+    if opts.region == Region::Core && !comparison.assignments.is_empty() {
+        comparison.notes.push(Note::ConfidenceUncalibratedForCore);
+    }
     Ok(Assignment {
         comparison,
         sticks,

@@ -46,6 +46,9 @@ pub enum Note {
     /// Vibronic envelopes whose progression the trace's resolution does not separate: only
     /// the envelope's width is compared.
     ProgressionsUnresolved { bands: Vec<String>, fwhm_ev: f64 },
+    /// Core-level (XPS) assignment: the confidence model was fitted on He I valence traces
+    /// only (confidence.rs), so on this trace it is used outside its calibration.
+    ConfidenceUncalibratedForCore,
     /// A note or warning of the prediction itself.
     Prediction(Notice),
 }
@@ -79,6 +82,7 @@ impl Note {
             Note::HeaderAxisOverridden { .. } => "header_axis_overridden",
             Note::ProgressionsResolved { .. } => "progressions_resolved",
             Note::ProgressionsUnresolved { .. } => "progressions_unresolved",
+            Note::ConfidenceUncalibratedForCore => "confidence_uncalibrated_for_core",
             Note::Prediction(n) => n.code(),
         }
     }
@@ -156,6 +160,12 @@ impl fmt::Display for Note {
                 "at {fwhm_ev:.3} eV resolution the trace cannot resolve the vibrational \
                  progression of {}: only the envelope's width is compared",
                 bands.join(", ")
+            ),
+            Note::ConfidenceUncalibratedForCore => f.write_str(
+                "the confidences come from a model fitted on He I valence traces only; on a \
+                 core-level trace they are used outside that calibration: they rank the pairs \
+                 but are not tested probabilities, and the verdict's confidence criterion \
+                 shares that limit",
             ),
             Note::Prediction(n) => n.fmt(f),
         }
