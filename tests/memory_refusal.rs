@@ -155,3 +155,84 @@ fn benzene_cc_pvtz_half_gib_refused_before_the_scf() {
     ]);
     assert!(err.contains("0.50 GiB"), "{err}");
 }
+
+/// Exit status, stdout and stderr of the binary.
+fn run_binary(args: &[&str]) -> (Option<i32>, String, String) {
+    let out = Command::new(env!("CARGO_BIN_EXE_bandcast"))
+        .args(args)
+        .output()
+        .unwrap();
+    (
+        out.status.code(),
+        String::from_utf8_lossy(&out.stdout).to_string(),
+        String::from_utf8_lossy(&out.stderr).to_string(),
+    )
+}
+
+/// The first number of the estimate line of `stage` in `--verbose` output, in GiB.
+fn estimate_gib(stderr: &str, stage: &str) -> f64 {
+    let line = stderr
+        .lines()
+        .find(|l| l.contains(stage))
+        .unwrap_or_else(|| panic!("no '{stage}' estimate in {stderr}"));
+    assert!(line.trim_end().ends_with("GiB"), "{line}");
+    let value = line.rsplit_once(": ").unwrap().1;
+    value.trim_end_matches(" GiB").parse().unwrap()
+}
+
+/// The density-fitting tensor of core's default J and K is in the estimate: a budget that
+/// holds the SCF matrices but not the tensor is refused before work (water O 1s,
+/// cc-pVDZ); the same budget runs with exact integrals, which need no tensor.
+#[test]
+fn core_refuses_a_budget_below_its_fitting_tensor() {
+    let w = "tests/data/gw100/water.xyz";
+    let base = ["core", w, "--basis", "cc-pVDZ", "--method", "dscf"];
+    let (code, _, err) = run_binary(&[&base[..], &["--memory", "5", "--verbose"]].concat());
+    assert_eq!(code, Some(0), "{err}");
+    let scf = estimate_gib(&err, "SCF matrices of the cation");
+    let tensor = estimate_gib(&err, "three-index tensor");
+    assert!(scf < tensor, "{err}");
+    let between = format!("{}", (scf + tensor) / 2.0);
+    let err = refused_by_binary(&[&base[..], &["--memory", &between]].concat());
+    assert!(err.contains("three-index tensor"), "{err}");
+    assert!(
+        err.contains("--fock exact"),
+        "names the cheaper option: {err}"
+    );
+    assert!(!err.contains("MiB"), "GiB like the estimates: {err}");
+    let (code, out, err) =
+        run_binary(&[&base[..], &["--memory", &between, "--fock", "exact"]].concat());
+    assert_eq!(code, Some(0), "{err}");
+    assert!(out.contains("O1"), "{out}");
+}
+
+/// ΔMP2 of a 2p level is in the estimate too (the transformation of the cation's UMP2, with
+/// the fitting tensor held): HCl Cl 2p, cc-pVDZ, refused before work at a budget that holds
+/// the SCF and the tensor but not the transformation; ΔSCF runs at the same budget.
+#[test]
+fn core_refuses_a_2p_dmp2_transformation_that_cannot_fit() {
+    let f = "tests/data/gw100/hydrogen-chloride.xyz";
+    let base = ["core", f, "--basis", "cc-pVDZ", "--shell", "2p", "--quick"];
+    let (code, _, err) = run_binary(
+        &[
+            &base[..],
+            &["--method", "dmp2", "--memory", "5", "--verbose"],
+        ]
+        .concat(),
+    );
+    assert_eq!(code, Some(0), "{err}");
+    let tensor = estimate_gib(&err, "three-index tensor");
+    let mp2 = estimate_gib(&err, "ΔMP2: MO integrals");
+    assert!(mp2 > 2.0 * tensor, "{err}");
+    let between = format!("{}", (tensor + mp2) / 2.0);
+    let err = refused_by_binary(&[&base[..], &["--method", "dmp2", "--memory", &between]].concat());
+    assert!(err.contains("ΔMP2"), "{err}");
+    assert!(
+        err.contains("--method dscf"),
+        "names the cheaper option: {err}"
+    );
+    let (code, out, err) =
+        run_binary(&[&base[..], &["--method", "dscf", "--memory", &between]].concat());
+    assert_eq!(code, Some(0), "{err}");
+    assert!(out.contains("2p"), "{out}");
+}

@@ -275,24 +275,24 @@ pub fn run(args: Args) -> Result<()> {
     } else {
         None
     };
+    // before any integral: the SCF, the fitting tensor and the ΔMP2 transformation
     {
-        use bandcast::predict::{CoreMethod as Cm, MethodChoice, Request};
-        let mut req = Request::new(&mol, &set, bandcast::ionization::Region::Core);
-        if opts.mp2 {
-            req.method = MethodChoice::Core(Cm::Dmp2);
-        }
-        req.options.memory_bytes = opts.memory_bytes;
-        let budget = req.memory_bytes() as f64;
-        let estimates = bandcast::predict::memory_estimates(&req)?;
+        let budget = bandcast::core_level::memory_budget_bytes(&opts) as f64;
+        let estimates = bandcast::core_level::memory::stage_estimates(&mol, &set, &opts)?;
         if args.verbose {
             super::common::print_estimates(&mol.name, &estimates, budget);
         }
-        super::common::refuse_if_over(
-            &mol.name,
-            &estimates,
-            budget,
-            "a smaller basis (or --method dscf) needs less",
-        )?;
+        let exact = opts.fock == bandcast::core_level::CoreFock::Exact;
+        let cheaper = match (exact, opts.mp2) {
+            (false, true) => {
+                "--fock exact (no fitting tensor), --method dscf (no ΔMP2) or a smaller basis \
+                 needs less"
+            }
+            (false, false) => "--fock exact (no fitting tensor) or a smaller basis needs less",
+            (true, true) => "--method dscf (no ΔMP2) or a smaller basis needs less",
+            (true, false) => "a smaller basis needs less",
+        };
+        super::common::refuse_if_over(&mol.name, &estimates, budget, cheaper)?;
     }
     let bar = if std::io::stderr().is_terminal() {
         let b = indicatif::ProgressBar::new(0);

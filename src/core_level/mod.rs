@@ -44,6 +44,7 @@
 //! | default_method.rs | the default method: ΔCCSD(T) when it fits, else ΔSCF |
 //! | delta_cc.rs | ΔCCSD / ΔCCSD(T) on the kept cation, core-valence separated |
 //! | fitting.rs | density-fitted or exact J and K, the fitting set extended on the hole atom |
+//! | memory.rs | the memory estimate of a run before any integral, and the refusal |
 //!
 //! ΔMP2 uses `correlation::mp2::mp2_energy`; the benchmark workload is
 //! `bench::core_level`.
@@ -60,6 +61,7 @@ pub mod hole_check;
 pub mod holes;
 pub mod lifetime;
 pub mod localize;
+pub mod memory;
 pub mod neutrals;
 pub mod notes;
 pub mod options;

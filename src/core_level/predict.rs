@@ -41,6 +41,8 @@ pub fn predict_with_progress(
     progress: &(dyn Fn(usize, usize) + Sync),
 ) -> Result<CoreResult> {
     use crate::analysis::symmetry::{symmetrize, DEFAULT_TOLERANCE};
+    // before any integral: refuse a run whose SCF, fitting tensor or ΔMP2 cannot fit
+    super::memory::check_before_work(mol, basis, opts)?;
     // 2s/2p levels (and photon-energy notes) take their own path (`two_p.rs`).
     if let Some(r) = super::two_p::predict_shells(mol, basis, opts, progress)? {
         return Ok(r);
@@ -62,10 +64,6 @@ pub fn predict_with_progress(
         basis
     };
     let plan = plan(mol, opts)?;
-    if opts.mp2 {
-        // before the neutral SCF: refuse a transformation that cannot fit
-        crate::correlation::mp2::delta_mp2_preflight(basis, mol.n_electrons())?;
-    }
     let t_start = std::time::Instant::now();
     let cpu_start = cpu_seconds();
     let mut timings = CoreTimings::default();

@@ -50,8 +50,8 @@ fn valence_options(req: &Request, method: Method) -> ValenceOptions {
 
 /// The memory estimate of each stage of the request, from the molecule and basis alone
 /// (before any integral): the SCF, then the valence method's MO integrals and amplitudes
-/// (the default method as the default rule would choose it), or the core levels' ΔMP2
-/// transformation. Refuses with `Error::TooLarge` when a valence job cannot fit at all.
+/// (the default method as the default rule would choose it), or the core levels' stages
+/// (`core_level::memory`: SCF, fitting tensor, ΔMP2 transformation). Refuses with `Error::TooLarge` when a valence job cannot fit at all.
 pub fn memory_estimates(req: &Request) -> Result<Vec<StageEstimate>> {
     use crate::ionization::default_method;
     match (req.region, req.method) {
@@ -67,22 +67,11 @@ pub fn memory_estimates(req: &Request) -> Result<Vec<StageEstimate>> {
             &valence_options(req, Method::Koopmans),
         )?
         .estimates),
-        (Region::Core, m) => {
-            let scf = crate::scf::ScfOptions::default();
-            let mut out =
-                crate::scf::memory::estimates(req.basis.n_basis, req.basis.shells.len(), &scf);
-            if m == MethodChoice::Core(CoreMethod::Dmp2) {
-                let need = crate::correlation::mp2::delta_mp2_preflight(
-                    req.basis,
-                    req.molecule.n_electrons(),
-                )?;
-                out.push(StageEstimate::needed(
-                    "dmp2: MO integrals of the cation's UMP2",
-                    need as f64,
-                ));
-            }
-            Ok(out)
-        }
+        (Region::Core, _) => crate::core_level::memory::stage_estimates(
+            req.molecule,
+            req.basis,
+            &core_options(req, core_method(req)?),
+        ),
     }
 }
 
@@ -142,18 +131,21 @@ fn predict_valence(req: &Request) -> Result<Prediction> {
     })
 }
 
-fn predict_core(req: &Request, progress: &(dyn Fn(Progress) + Sync)) -> Result<Prediction> {
+/// The core method of a request (dscf by default).
+fn core_method(req: &Request) -> Result<CoreMethod> {
+    match req.method {
+        MethodChoice::Default => Ok(CoreMethod::Dscf),
+        MethodChoice::Core(m) => Ok(m),
+        MethodChoice::Valence(m) => Err(Error::input(format!(
+            "core levels are computed by dscf or dmp2, not '{}'",
+            m.name()
+        ))),
+    }
+}
+
+/// The core-level options of a request.
+fn core_options(req: &Request, method: CoreMethod) -> crate::core_level::CoreOptions {
     use crate::core_level::{CoreOptions, TargetSelection};
-    let method = match req.method {
-        MethodChoice::Default => CoreMethod::Dscf,
-        MethodChoice::Core(m) => m,
-        MethodChoice::Valence(m) => {
-            return Err(Error::input(format!(
-                "core levels are computed by dscf or dmp2, not '{}'",
-                m.name()
-            )))
-        }
-    };
     let mut opts = CoreOptions {
         mp2: method == CoreMethod::Dmp2,
         thorough: !req.options.quick,
@@ -166,6 +158,12 @@ fn predict_core(req: &Request, progress: &(dyn Fn(Progress) + Sync)) -> Result<P
     } else if let Some(z) = req.options.element {
         opts.targets = TargetSelection::Element(z);
     }
+    opts
+}
+
+fn predict_core(req: &Request, progress: &(dyn Fn(Progress) + Sync)) -> Result<Prediction> {
+    let method = core_method(req)?;
+    let opts = core_options(req, method);
     let r = core_levels(req.molecule, req.basis, &opts, progress)?;
     Ok(Prediction {
         region: Region::Core,

@@ -1,14 +1,14 @@
-//! Memory sizes in words a user reads: GiB (2^30 bytes) from 0.1 GiB up, MiB (2^20 bytes)
-//! below, so a small estimate never prints as "0.00 GiB".
+//! Memory sizes in words a user reads, always in GiB (2^30 bytes), the unit of `--memory`:
+//! two decimals from 0.1 GiB up, three significant digits below, so a small size never
+//! prints as "0.00 GiB".
 
-/// `bytes` as "1.25 GiB" or, below 0.1 GiB, "37.5 MiB".
+/// `bytes` as "1.25 GiB" or, below 0.1 GiB, "0.0375 GiB" (messages and refusals).
 pub fn format_bytes(bytes: f64) -> String {
     const GIB: f64 = (1u64 << 30) as f64;
-    const MIB: f64 = (1u64 << 20) as f64;
     if bytes >= 0.1 * GIB {
         format!("{:.2} GiB", bytes / GIB)
     } else {
-        format!("{:.1} MiB", bytes / MIB)
+        format_gib(bytes)
     }
 }
 
@@ -38,11 +38,11 @@ mod tests {
     }
 
     #[test]
-    fn small_sizes_are_in_mib_large_in_gib() {
-        // 2^30 bytes = 1 GiB, 2^20 bytes = 1 MiB (IEC binary prefixes, common practice).
+    fn messages_are_in_gib_at_every_size() {
+        // 2^30 bytes = 1 GiB, 2^20 bytes = 1/1024 GiB (IEC binary prefixes, common practice).
         assert_eq!(format_bytes((1u64 << 30) as f64), "1.00 GiB");
-        assert_eq!(format_bytes(3.0 * (1u64 << 20) as f64), "3.0 MiB");
-        assert_eq!(format_bytes(0.0), "0.0 MiB");
-        assert!(format_bytes(0.5 * (1u64 << 30) as f64).ends_with("GiB"));
+        assert_eq!(format_bytes(0.5 * (1u64 << 30) as f64), "0.50 GiB");
+        assert_eq!(format_bytes(3.0 * (1u64 << 20) as f64), "0.00293 GiB");
+        assert_eq!(format_bytes(0.0), "0.00 GiB");
     }
 }
