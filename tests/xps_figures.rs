@@ -28,26 +28,50 @@ fn ticks(svg: &str) -> Vec<f64> {
         .collect()
 }
 
+/// The arguments of every run here: `command FILE --basis sto-3g --region core --quick
+/// --photon alka`, then `more`.
+fn xps_args<'a>(command: &'a str, file: &'a str, more: &[&'a str]) -> Vec<&'a str> {
+    let mut v = vec![
+        command, file, "--basis", "sto-3g", "--region", "core", "--quick", "--photon", "alka",
+    ];
+    v.extend_from_slice(more);
+    v
+}
+
+const METHANOL: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/tests/data/gw100/methanol.xyz");
+
+/// The nested panels of a figure holding C 1s and O 1s: two, C 1s (lower binding energy)
+/// first, each axis's ticks inside its own range.
+fn c_and_o_panels(doc: &str, c_range: std::ops::Range<f64>, o_range: std::ops::Range<f64>) {
+    let panels: Vec<&str> = doc.split("<svg x=\"0\" y=").skip(1).collect();
+    assert_eq!(panels.len(), 2, "{doc}");
+    assert!(panels[0].contains(">C 1s<") && panels[1].contains(">O 1s<"));
+    let (c, o) = (ticks(panels[0]), ticks(panels[1]));
+    assert!(
+        !c.is_empty() && c.iter().all(|t| c_range.contains(t)),
+        "{c:?}"
+    );
+    assert!(
+        !o.is_empty() && o.iter().all(|t| o_range.contains(t)),
+        "{o:?}"
+    );
+}
+
 #[test]
 fn methanol_core_spectrum_has_a_panel_per_element_and_environments() {
     let svg = common::temp_path("xps", "methanol.svg");
     let html = common::temp_path("xps", "methanol.html");
-    let out = bandcast(&[
+    let out = bandcast(&xps_args(
         "spectrum",
-        concat!(env!("CARGO_MANIFEST_DIR"), "/tests/data/gw100/methanol.xyz"),
-        "--basis",
-        "sto-3g",
-        "--region",
-        "core",
-        "--quick",
-        "--photon",
-        "alka",
-        "--svg",
-        svg.to_str().unwrap(),
-        "--html",
-        html.to_str().unwrap(),
-        "--json",
-    ]);
+        METHANOL,
+        &[
+            "--svg",
+            svg.to_str().unwrap(),
+            "--html",
+            html.to_str().unwrap(),
+            "--json",
+        ],
+    ));
     let j: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
     let env: Vec<(&str, &str)> = j["bands"]
         .as_array()
@@ -62,21 +86,10 @@ fn methanol_core_spectrum_has_a_panel_per_element_and_environments() {
         .collect();
     assert_eq!(env, [("C1 1s", "C–O"), ("O2 1s", "C–O–H")]);
     let text = std::fs::read_to_string(&svg).unwrap();
-    // two nested panels, C 1s (lower binding energy) first, each with its own clip path
-    let panels: Vec<&str> = text.split("<svg x=\"0\" y=").skip(1).collect();
-    assert_eq!(panels.len(), 2, "{text}");
-    assert!(panels[0].contains(">C 1s<") && panels[1].contains(">O 1s<"));
-    assert!(text.contains("id=\"plotarea1\"") && text.contains("id=\"plotarea2\""));
+    // two nested panels, C 1s (lower binding energy) first, each with its own clip path;
     // each panel's axis covers its own level only: C 1s near 285–300 eV, O 1s near 530 eV
-    let (c, o) = (ticks(panels[0]), ticks(panels[1]));
-    assert!(
-        !c.is_empty() && c.iter().all(|&t| (270.0..320.0).contains(&t)),
-        "{c:?}"
-    );
-    assert!(
-        !o.is_empty() && o.iter().all(|&t| (510.0..560.0).contains(&t)),
-        "{o:?}"
-    );
+    c_and_o_panels(&text, 270.0..320.0, 510.0..560.0);
+    assert!(text.contains("id=\"plotarea1\"") && text.contains("id=\"plotarea2\""));
     assert!(text.contains("C1 1s (C–O)") && text.contains("O2 1s (C–O–H)"));
     let page = std::fs::read_to_string(&html).unwrap();
     assert!(page.contains("<td class=\"l\">C–O–H</td>") && page.contains(">O 1s<"));
@@ -88,21 +101,11 @@ fn methanol_core_spectrum_has_a_panel_per_element_and_environments() {
 #[test]
 fn one_element_is_one_plot() {
     let svg = common::temp_path("xps", "methanol-c.svg");
-    bandcast(&[
+    bandcast(&xps_args(
         "spectrum",
-        concat!(env!("CARGO_MANIFEST_DIR"), "/tests/data/gw100/methanol.xyz"),
-        "--basis",
-        "sto-3g",
-        "--region",
-        "core",
-        "--element",
-        "C",
-        "--quick",
-        "--photon",
-        "alka",
-        "--svg",
-        svg.to_str().unwrap(),
-    ]);
+        METHANOL,
+        &["--element", "C", "--svg", svg.to_str().unwrap()],
+    ));
     let text = std::fs::read_to_string(&svg).unwrap();
     assert_eq!(text.matches("<svg").count(), 1);
     let _ = std::fs::remove_file(svg);
@@ -121,22 +124,8 @@ fn assign_names_the_environments() {
         env!("CARGO_MANIFEST_DIR"),
         "/molecules/fluoroethylene-carbonate.xyz"
     );
-    let args = [
-        "assign",
-        fec,
-        "--basis",
-        "sto-3g",
-        "--region",
-        "core",
-        "--element",
-        "C",
-        "--quick",
-        "--photon",
-        "alka",
-        "--measured",
-        m,
-    ];
-    let mut with_json = args.to_vec();
+    let args = xps_args("assign", fec, &["--element", "C", "--measured", m]);
+    let mut with_json = args.clone();
     with_json.extend(["--json", "--html", html.to_str().unwrap()]);
     let out = bandcast(&with_json);
     let j: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
@@ -187,34 +176,18 @@ fn assign_draws_a_panel_per_element() {
         text.push_str(&format!("{x:.2},{v:.4}\n"));
     }
     std::fs::write(&data, text).unwrap();
-    bandcast(&[
+    bandcast(&xps_args(
         "assign",
-        concat!(env!("CARGO_MANIFEST_DIR"), "/tests/data/gw100/methanol.xyz"),
-        "--basis",
-        "sto-3g",
-        "--region",
-        "core",
-        "--quick",
-        "--photon",
-        "alka",
-        "--measured",
-        data.to_str().unwrap(),
-        "--html",
-        html.to_str().unwrap(),
-    ]);
+        METHANOL,
+        &[
+            "--measured",
+            data.to_str().unwrap(),
+            "--html",
+            html.to_str().unwrap(),
+        ],
+    ));
     let page = std::fs::read_to_string(&html).unwrap();
-    let panels: Vec<&str> = page.split("<svg x=\"0\" y=").skip(1).collect();
-    assert_eq!(panels.len(), 2);
-    assert!(panels[0].contains(">C 1s<") && panels[1].contains(">O 1s<"));
-    let (c, o) = (ticks(panels[0]), ticks(panels[1]));
-    assert!(
-        !c.is_empty() && c.iter().all(|&t| (280.0..305.0).contains(&t)),
-        "{c:?}"
-    );
-    assert!(
-        !o.is_empty() && o.iter().all(|&t| (520.0..546.0).contains(&t)),
-        "{o:?}"
-    );
+    c_and_o_panels(&page, 280.0..305.0, 520.0..546.0);
     for p in [data, html] {
         let _ = std::fs::remove_file(p);
     }
