@@ -312,48 +312,49 @@ fn carbon_monoxide_levels_and_shift_from_methane() {
 
 use common::bandcast;
 
+/// `bandcast core` on a GW100 molecule with `args` (any exit status).
+fn core_cli(molecule: &str, args: &[&str]) -> std::process::Output {
+    bandcast()
+        .args(["core"])
+        .arg(gw100(molecule))
+        .args(args)
+        .output()
+        .unwrap()
+}
+
+/// The stderr of a `core_cli` run that must be an input error (exit 2).
+fn core_input_error(molecule: &str, args: &[&str]) -> String {
+    let out = core_cli(molecule, args);
+    assert_eq!(out.status.code(), Some(2));
+    String::from_utf8_lossy(&out.stderr).to_string()
+}
+
 #[test]
 fn bad_atom_index_is_an_input_error_naming_it() {
-    let out = bandcast()
-        .args(["core"])
-        .arg(gw100("water"))
-        .args(["--basis", "sto-3g", "--atoms", "1,7"])
-        .output()
-        .unwrap();
-    assert_eq!(out.status.code(), Some(2));
-    let err = String::from_utf8_lossy(&out.stderr);
+    let err = core_input_error("water", &["--basis", "sto-3g", "--atoms", "1,7"]);
     assert!(err.contains("atom 7"), "{err}");
 }
 
 #[test]
 fn missing_element_is_an_input_error() {
-    let out = bandcast()
-        .args(["core"])
-        .arg(gw100("water"))
-        .args(["--basis", "sto-3g", "--element", "N"])
-        .output()
-        .unwrap();
-    assert_eq!(out.status.code(), Some(2));
-    let err = String::from_utf8_lossy(&out.stderr);
+    let err = core_input_error("water", &["--basis", "sto-3g", "--element", "N"]);
     assert!(err.contains("N is not in the molecule"), "{err}");
 }
 
 #[test]
 fn json_has_the_documented_fields() {
-    let out = bandcast()
-        .args(["core"])
-        .arg(gw100("water"))
-        .args(["--basis", BASIS, "--json", "--shift-from-atom", "1"])
-        .args(["--method", "dscf"])
-        .output()
-        .unwrap();
-    assert_eq!(
-        out.status.code(),
-        Some(0),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let v = common::json_of(&core_cli(
+        "water",
+        &[
+            "--basis",
+            BASIS,
+            "--json",
+            "--shift-from-atom",
+            "1",
+            "--method",
+            "dscf",
+        ],
+    ));
     assert_eq!(v["basis"].as_str().unwrap().to_ascii_lowercase(), "cc-pvdz");
     let l = &v["core_levels"][0];
     assert_eq!(l["atom"], 1);
@@ -380,19 +381,17 @@ fn json_has_the_documented_fields() {
 
 #[test]
 fn old_option_spellings_still_work_with_a_note() {
-    let out = bandcast()
-        .args(["core"])
-        .arg(gw100("water"))
-        .args([
+    let out = core_cli(
+        "water",
+        &[
             "--basis",
             "sto-3g",
             "--quick",
             "--reference-atom",
             "1",
             "--mp2",
-        ])
-        .output()
-        .unwrap();
+        ],
+    );
     assert_eq!(out.status.code(), Some(0));
     let err = String::from_utf8_lossy(&out.stderr);
     assert!(err.contains("--shift-from-atom"), "{err}");
@@ -403,33 +402,18 @@ fn old_option_spellings_still_work_with_a_note() {
 
 #[test]
 fn relativistic_option_prints_its_source() {
-    let out = bandcast()
-        .args(["core"])
-        .arg(gw100("water"))
-        .args(["--basis", "sto-3g", "--quick", "--relativistic"])
-        .output()
-        .unwrap();
+    let out = core_cli("water", &["--basis", "sto-3g", "--quick", "--relativistic"]);
     assert_eq!(out.status.code(), Some(0));
     let text = String::from_utf8_lossy(&out.stdout);
     assert!(text.contains("ΔSCF+rel/eV"), "{text}");
     assert!(text.contains("Takahata & Chong"), "{text}");
 }
 
+/// `core NEON --basis sto-3g --json` plus `args`: the JSON of a successful run.
 fn core_json(args: &[&str]) -> serde_json::Value {
-    let out = bandcast()
-        .args(["core"])
-        .arg(gw100("neon"))
-        .args(["--basis", "sto-3g", "--json"])
-        .args(args)
-        .output()
-        .unwrap();
-    assert_eq!(
-        out.status.code(),
-        Some(0),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    serde_json::from_slice(&out.stdout).unwrap()
+    let mut all = vec!["--basis", "sto-3g", "--json"];
+    all.extend_from_slice(args);
+    common::json_of(&core_cli("neon", &all))
 }
 
 /// Without `--method` a small molecule gets ΔCCSD(T), and the output says why; the absolute
@@ -485,28 +469,21 @@ fn rohf_reference_for_the_core_ionized_cation() {
     assert!(
         u["core_levels"][0]["dscf_ev"].as_f64().unwrap() <= l["dscf_ev"].as_f64().unwrap() + 1e-9
     );
-    let bad = bandcast()
-        .args(["core"])
-        .arg(gw100("neon"))
-        .args(["--basis", "sto-3g", "--reference", "rhf"])
-        .output()
-        .unwrap();
-    assert_eq!(bad.status.code(), Some(2));
-    assert!(String::from_utf8_lossy(&bad.stderr).contains("open-shell"));
-    let old = bandcast()
-        .args(["core"])
-        .arg(gw100("water"))
-        .args([
+    let bad = core_input_error("neon", &["--basis", "sto-3g", "--reference", "rhf"]);
+    assert!(bad.contains("open-shell"));
+    let water = gw100("water");
+    let old = core_cli(
+        "water",
+        &[
             "--basis",
             "sto-3g",
             "--quick",
             "--method",
             "dscf",
             "--reference",
-        ])
-        .arg(gw100("water"))
-        .output()
-        .unwrap();
+            water.to_str().unwrap(),
+        ],
+    );
     assert_eq!(old.status.code(), Some(0));
     assert!(String::from_utf8_lossy(&old.stderr).contains("--shift-from"));
 }
