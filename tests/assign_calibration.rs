@@ -182,10 +182,15 @@ fn make_case_with(
     }
 }
 
-fn run(case: &Case) -> Comparison {
+/// The comparison of a case's prediction with its trace (the method's error statistics in).
+fn try_run(case: &Case) -> bandcast::Result<Comparison> {
     let mut opt = CompareOptions::defaults(Region::Valence, case.resolution);
     opt.method_error = MethodError::of(case.method, Region::Valence);
-    compare(&case.lines, &case.measured, &opt).expect("synthetic trace has peaks")
+    compare(&case.lines, &case.measured, &opt)
+}
+
+fn run(case: &Case) -> Comparison {
+    try_run(case).expect("synthetic trace has peaks")
 }
 
 /// Is the pair's band one of the true bands under its peak?
@@ -199,11 +204,9 @@ fn right(case: &Case, measured_ev: f64, label: &str) -> bool {
     label.split(" + ").any(|l| under.contains(&l))
 }
 
-/// (features, right, confidence) of every pair of the cases with seeds of the given parity.
-fn dataset(parity: u64) -> Vec<([f64; FEATURES], bool, f64)> {
+/// `f(bands, method)` for each synthetic molecule's bands and each method, in a fixed order.
+fn each_molecule_and_method(mut f: impl FnMut(&[Band], &'static str)) {
     let all = bands();
-    let mut out = Vec::new();
-    let mut seed = 1000 + parity;
     for mol_name in MOLECULES {
         let mol: Vec<Band> = all
             .iter()
@@ -211,34 +214,59 @@ fn dataset(parity: u64) -> Vec<([f64; FEATURES], bool, f64)> {
             .cloned()
             .collect();
         for method in METHODS {
-            for noise in [0.005, 0.02, 0.06] {
-                for resolution in [0.03, 0.15, 0.35] {
-                    for rep in 0..2 {
-                        seed += 2;
-                        let mut rng = Rng(seed * 0x9E37_79B9_7F4A_7C15 | 1);
-                        let drop = (rep == 1).then(|| (rng.uniform() * mol.len() as f64) as usize);
-                        let case =
-                            make_case(&mol, method, noise, resolution, &mut rng, drop, false);
-                        let c = run(&case);
-                        for p in &c.assignments {
-                            let ev = PairEvidence {
-                                margin_feature: p.margin_ev / (p.margin_ev + 0.25),
-                                sigma_ev: MethodError::of(method, Region::Valence).map(|m| m.sd_ev),
-                                intensity_log_ratio: p.intensity_log_ratio,
-                                swaps: p.swaps_within_error,
-                                shape_mismatch: p.shape.as_ref().map(|s| s.mismatch),
-                            };
-                            out.push((
-                                features(&ev),
-                                right(&case, p.measured_ev, &p.label),
-                                p.confidence,
-                            ));
-                        }
-                    }
+            f(&mol, method);
+        }
+    }
+}
+
+/// The generator of the next trace: the seed moves on by 2 (so the halves keep their parity).
+fn next_rng(seed: &mut u64) -> Rng {
+    *seed += 2;
+    Rng(*seed * 0x9E37_79B9_7F4A_7C15 | 1)
+}
+
+/// (features, right, confidence) of every pair of `c`, the comparison of `case`; the
+/// features only `with_features` (zero otherwise).
+fn labelled_pairs(
+    case: &Case,
+    c: &Comparison,
+    with_features: bool,
+) -> Vec<([f64; FEATURES], bool, f64)> {
+    c.assignments
+        .iter()
+        .map(|p| {
+            let x = if with_features {
+                features(&PairEvidence {
+                    margin_feature: p.margin_ev / (p.margin_ev + 0.25),
+                    sigma_ev: MethodError::of(case.method, Region::Valence).map(|m| m.sd_ev),
+                    intensity_log_ratio: p.intensity_log_ratio,
+                    swaps: p.swaps_within_error,
+                    shape_mismatch: p.shape.as_ref().map(|s| s.mismatch),
+                })
+            } else {
+                [0.0; FEATURES]
+            };
+            (x, right(case, p.measured_ev, &p.label), p.confidence)
+        })
+        .collect()
+}
+
+/// (features, right, confidence) of every pair of the cases with seeds of the given parity.
+fn dataset(parity: u64) -> Vec<([f64; FEATURES], bool, f64)> {
+    let mut out = Vec::new();
+    let mut seed = 1000 + parity;
+    each_molecule_and_method(|mol, method| {
+        for noise in [0.005, 0.02, 0.06] {
+            for resolution in [0.03, 0.15, 0.35] {
+                for rep in 0..2 {
+                    let mut rng = next_rng(&mut seed);
+                    let drop = (rep == 1).then(|| (rng.uniform() * mol.len() as f64) as usize);
+                    let case = make_case(mol, method, noise, resolution, &mut rng, drop, false);
+                    out.extend(labelled_pairs(&case, &run(&case), true));
                 }
             }
         }
-    }
+    });
     out
 }
 
@@ -247,46 +275,26 @@ fn dataset(parity: u64) -> Vec<([f64; FEATURES], bool, f64)> {
 /// ± 0.6 eV and two bands left out in one trace of two; 16 traces per molecule and method.
 /// Predictions as in `dataset`.
 fn hard_dataset() -> Vec<([f64; FEATURES], bool, f64)> {
-    let all = bands();
     let mut out = Vec::new();
     let mut seed = 7001;
-    for mol_name in MOLECULES {
-        let mol: Vec<Band> = all
-            .iter()
-            .filter(|b| b.molecule == mol_name)
-            .cloned()
-            .collect();
-        for method in METHODS {
-            for rep in 0..16 {
-                seed += 2;
-                let mut rng = Rng(seed * 0x9E37_79B9_7F4A_7C15 | 1);
-                let n = mol.len() as f64;
-                let drops = if rep % 2 == 1 {
-                    vec![
-                        Some((rng.uniform() * n) as usize),
-                        Some((rng.uniform() * n) as usize),
-                    ]
-                } else {
-                    vec![None]
-                };
-                let case = make_case_with(&mol, method, 0.15, 0.6, &mut rng, &drops, false, 0.6);
-                let Ok(c) = compare(&case.lines, &case.measured, &{
-                    let mut o = CompareOptions::defaults(Region::Valence, case.resolution);
-                    o.method_error = MethodError::of(case.method, Region::Valence);
-                    o
-                }) else {
-                    continue;
-                };
-                for p in &c.assignments {
-                    out.push((
-                        [0.0; FEATURES],
-                        right(&case, p.measured_ev, &p.label),
-                        p.confidence,
-                    ));
-                }
+    each_molecule_and_method(|mol, method| {
+        for rep in 0..16 {
+            let mut rng = next_rng(&mut seed);
+            let n = mol.len() as f64;
+            let drops = if rep % 2 == 1 {
+                vec![
+                    Some((rng.uniform() * n) as usize),
+                    Some((rng.uniform() * n) as usize),
+                ]
+            } else {
+                vec![None]
+            };
+            let case = make_case_with(mol, method, 0.15, 0.6, &mut rng, &drops, false, 0.6);
+            if let Ok(c) = try_run(&case) {
+                out.extend(labelled_pairs(&case, &c, false));
             }
         }
-    }
+    });
     out
 }
 
