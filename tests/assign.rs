@@ -323,12 +323,7 @@ fn assign_command_json_schema() {
     // (eom-ccsd up to 300 basis functions; water/cc-pVDZ has 24) and a note says so.
     assert_eq!(v["molecule"], "water");
     assert_eq!(v["method"], "eom-ccsd");
-    let codes: Vec<&str> = v["note_details"]
-        .as_array()
-        .unwrap()
-        .iter()
-        .map(|n| n["code"].as_str().unwrap())
-        .collect();
+    let codes = common::note_codes(&v);
     assert!(codes.contains(&"default_method_chosen"), "{codes:?}");
     assert_eq!(v["notes"].as_array().unwrap().len(), codes.len());
     let page = std::fs::read_to_string(&html).unwrap();
@@ -370,31 +365,6 @@ fn malformed_measured_file_exits_2_naming_the_line() {
     std::fs::remove_dir_all(&dir).unwrap();
 }
 
-/// A hand-made band at `ie_ev` (only what the assignment reads).
-fn hand_band(
-    label: &str,
-    ie_ev: f64,
-    region: bandcast::ionization::Region,
-) -> bandcast::ionization::Band {
-    bandcast::ionization::Band {
-        label: label.into(),
-        symmetry: None,
-        ie_ev,
-        degeneracy: 1,
-        occupation: 2.0,
-        pole_strength: None,
-        one_hole_weight: None,
-        character: None,
-        character_note: None,
-        makeup: Vec::new(),
-        method: "dscf".into(),
-        region,
-        atom: None,
-        environment: None,
-        lifetime_fwhm_ev: None,
-    }
-}
-
 #[test]
 fn core_assignment_says_the_confidence_is_outside_its_calibration() {
     // The confidence model is fitted on He I valence traces only (src/spectrum/confidence.rs):
@@ -406,8 +376,8 @@ fn core_assignment_says_the_confidence_is_outside_its_calibration() {
     let code = "confidence_uncalibrated_for_core";
     for (region, expect) in [(Region::Core, true), (Region::Valence, false)] {
         let bands = [
-            hand_band("C1 1s", 290.0, region),
-            hand_band("C2 1s", 292.3, region),
+            common::hand_band("C1 1s", 290.0, &[], region),
+            common::hand_band("C2 1s", 292.3, &[], region),
         ];
         let a = assign_bands(&bands, &m, &AssignmentOptions::new(region)).unwrap();
         assert_eq!(a.comparison.assignments.len(), 2, "{region:?}");

@@ -427,12 +427,7 @@ fn default_method_is_stated_and_relativistic_is_on_by_default() {
     let t = l["dccsdt_ev"].as_f64().unwrap();
     let rel = l["relativistic_correction_ev"].as_f64().unwrap();
     assert!((l["binding_ev"].as_f64().unwrap() - (t + rel)).abs() < 1e-9);
-    let codes: Vec<&str> = v["note_details"]
-        .as_array()
-        .unwrap()
-        .iter()
-        .map(|n| n["code"].as_str().unwrap())
-        .collect();
+    let codes = common::note_codes(&v);
     assert_eq!(codes[0], "default_method_chosen", "{codes:?}");
     assert!(codes.contains(&"relativistic_added"), "{codes:?}");
     let off = core_json(&["--no-relativistic"]);

@@ -1,7 +1,9 @@
 //! Predicted spectra: line shapes, the Faddeeva function, photon energies, broadening,
 //! mixtures, the Gelius intensities.
 
-use bandcast::ionization::{Band, MakeupEntry, Region};
+mod common;
+
+use bandcast::ionization::{Band, Region};
 use bandcast::spectrum::broaden::{auto_grid, broaden};
 use bandcast::spectrum::build::{build_spectrum, Component, SpectrumOptions};
 use bandcast::spectrum::faddeeva::{dawson, faddeeva, Complex};
@@ -10,6 +12,7 @@ use bandcast::spectrum::note::Note;
 use bandcast::spectrum::photon::{Axis, Photon};
 use bandcast::spectrum::predicted::{sticks_from_bands, IntensityModel, StickOptions};
 use bandcast::spectrum::Shape;
+use common::hand_band as band;
 
 /// ∫ f over the whole real line by the substitution x = s·tan θ and composite Simpson on
 /// θ ∈ (−π/2, π/2) (common practice for heavy-tailed integrands).
@@ -109,33 +112,6 @@ fn kinetic_energies_at_the_four_sources() {
     }
     assert!(!Photon::He1.reaches(32.2)); // water 2a1 is beyond He I (docs/reference-data.md §3)
     assert!(Photon::He2.reaches(32.2));
-}
-
-fn band(label: &str, ie: f64, makeup: &[(&str, &str, f64)], region: Region) -> Band {
-    Band {
-        label: label.into(),
-        symmetry: None,
-        ie_ev: ie,
-        degeneracy: 1,
-        occupation: 2.0,
-        pole_strength: None,
-        one_hole_weight: None,
-        character: None,
-        character_note: None,
-        makeup: makeup
-            .iter()
-            .map(|(a, s, f)| MakeupEntry {
-                atom: a.to_string(),
-                shell: s.to_string(),
-                fraction: *f,
-            })
-            .collect(),
-        method: "hand-made".into(),
-        region,
-        atom: None,
-        lifetime_fwhm_ev: None,
-        environment: None,
-    }
 }
 
 #[test]

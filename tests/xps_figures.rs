@@ -138,12 +138,7 @@ fn assign_names_the_environments() {
         .any(|e| e["band"] == "C5 1s" && e["environment"] == "F–C–O"));
     // The confidence model is fitted on He I valence traces only: a core-level assignment
     // says so, in the JSON notes with its code and in the text.
-    let codes: Vec<&str> = j["note_details"]
-        .as_array()
-        .unwrap()
-        .iter()
-        .map(|n| n["code"].as_str().unwrap())
-        .collect();
+    let codes = common::note_codes(&j);
     assert!(
         codes.contains(&"confidence_uncalibrated_for_core"),
         "{codes:?}"

@@ -56,3 +56,47 @@ pub fn json_of(out: &std::process::Output) -> serde_json::Value {
     );
     serde_json::from_slice(&out.stdout).expect("JSON on stdout")
 }
+
+/// A hand-made band (method "hand-made", occupation 2, degeneracy 1) with the make-up
+/// `(atom, shell, fraction)`: only what spectra and assignments read.
+pub fn hand_band(
+    label: &str,
+    ie: f64,
+    makeup: &[(&str, &str, f64)],
+    region: bandcast::ionization::Region,
+) -> bandcast::ionization::Band {
+    bandcast::ionization::Band {
+        label: label.into(),
+        symmetry: None,
+        ie_ev: ie,
+        degeneracy: 1,
+        occupation: 2.0,
+        pole_strength: None,
+        one_hole_weight: None,
+        character: None,
+        character_note: None,
+        makeup: makeup
+            .iter()
+            .map(|(a, s, f)| bandcast::ionization::MakeupEntry {
+                atom: a.to_string(),
+                shell: s.to_string(),
+                fraction: *f,
+            })
+            .collect(),
+        method: "hand-made".into(),
+        region,
+        atom: None,
+        lifetime_fwhm_ev: None,
+        environment: None,
+    }
+}
+
+/// The `code` of every typed note of a command's JSON (`note_details`), in order.
+pub fn note_codes(v: &serde_json::Value) -> Vec<&str> {
+    v["note_details"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|n| n["code"].as_str().unwrap())
+        .collect()
+}
