@@ -14,8 +14,8 @@
 use super::radial::{bound, continuum, Grid};
 use crate::units::{BOHR_TO_ANGSTROM, FINE_STRUCTURE, HARTREE_TO_EV};
 
-/// Bound orbital energy (hartree) and the cross section per electron... see
-/// [`cross_section_mb`]. `rv`: r·V(r) at any r (hartree·bohr), Coulombic −c far out.
+/// A central field: nuclear charge `z` (sets the grid's inner end) and `rv`, r·V(r) at any r
+/// (hartree·bohr), constant (Coulombic) far out.
 pub struct Field<'a> {
     pub z: f64,
     pub rv: &'a dyn Fn(f64) -> f64,
