@@ -18,15 +18,21 @@
 //! - 1486.6 eV (Al Kα): Yeh & Lindau (1985) values as reproduced in the data file of an
 //!   open-source general-purpose materials library (read for this project; the published
 //!   table's numbers, not re-read from the paper itself).
-//! - 1253.6 eV (Mg Kα): derived by the project from the 1486.6 eV values with the
-//!   high-energy law σ_nl ∝ (hν)^-(7/2 + l) (H. A. Bethe & E. E. Salpeter, *Quantum Mechanics
-//!   of One- and Two-Electron Atoms*, 1957, §71; common practice). Not a table value: an
-//!   estimate good to roughly 10–20 % (the law is the high-energy limit; near 1.2 keV it
-//!   overstates the rise from Al to Mg Kα somewhat). Yeh & Lindau do tabulate 1253.6 eV, but
-//!   that column could not be found in any source reachable for this project (a digitised
-//!   copy exists: Kalha et al., figshare 2020); until it is typed in, Mg Kα stays scaled and
-//!   is flagged approximate. The Mg/Al ratio matters only when lines of different l are
-//!   compared across sources; within one run all lines share the source.
+//! - 1253.6 eV (Mg Kα): the 1486.6 eV table value times the ratio σ(1253.6)/σ(1486.6)
+//!   computed by the project in the Hartree–Fock–Slater central field, the model of the
+//!   Yeh & Lindau tables (`spectrum::central_field`; Herman–Skillman potential with Latter's
+//!   tail, dipole-length matrix elements, Manson & Cooper, Phys. Rev. 165 (1968) 126). The
+//!   tabulated Al Kα value stays the anchor; the ratio carries it to Mg Kα. The solver
+//!   reproduces the Al Kα column itself within 10 % for every row but C 2p and N 2p
+//!   (docs/spectrum-and-assign.md has the table) and the exact hydrogen 1s cross section
+//!   within 2e-4, so the anchored value is not flagged approximate (C 2p and N 2p are).
+//!   Yeh & Lindau's own 1253.6 eV column was not found in
+//!   any source reachable for this project (a digitised copy exists: Kalha et al., figshare
+//!   2020). A level the photon does not reach in the field (Mg 1s, 1292 eV there, 1303 eV
+//!   measured) has no value at Mg Kα.
+//! - 40.8 eV (He II), Na 2p: computed directly in the central field (no table to anchor it),
+//!   4.3 Mb; the photoelectron leaves only about 4.5 eV above the field's threshold
+//!   (36.3 eV), where the central-field model is least reliable: flagged approximate.
 //! - 21.2 eV (He I) and 40.8 eV (He II): typed **from memory** of the Yeh & Lindau tables,
 //!   not re-read; trust them to perhaps ±30 %. Each is marked in the table below.
 //! - H 1s at every energy: the exact non-relativistic dipole cross section of the hydrogen
@@ -38,6 +44,7 @@
 //! Other photon energies are interpolated log–log between the tabulated energies (an
 //! estimate; flagged in the output). Outside 21.2–1486.6 eV there are no values.
 
+use super::central_field;
 use crate::ionization::{Band, Region};
 use crate::units::{BOHR_TO_ANGSTROM, FINE_STRUCTURE, HARTREE_TO_EV};
 
@@ -48,8 +55,14 @@ pub enum Provenance {
     YehLindau,
     /// Yeh & Lindau (1985), typed from memory.
     YehLindauFromMemory,
-    /// Scaled from the 1486.6 eV value by the high-energy power law.
-    PowerLawScaled,
+    /// The 1486.6 eV table value times the central-field ratio σ(E)/σ(1486.6 eV)
+    /// (`spectrum::central_field`).
+    CentralFieldScaled,
+    /// As `CentralFieldScaled`, for a row whose 1486.6 eV value the solver does not
+    /// reproduce within `CENTRAL_FIELD_AGREEMENT` (C 2p, N 2p): flagged approximate.
+    CentralFieldScaledLoose,
+    /// Computed directly in the central field (no tabulated anchor).
+    CentralField,
     /// Exact hydrogen-atom formula.
     HydrogenExact,
     /// Log–log interpolation between tabulated energies.
@@ -90,8 +103,8 @@ const TABLE: &[Row] = &[
     // typed from memory that were 0–30 % off (Na 2p 1.7e-3 → 2.5e-3, Mg 2p 3.3e-3 → 4.6e-3).
     // Reach of the 2p/2s at the He lines (free-atom binding energies, core_level::shell):
     // He I (21.2 eV) reaches none; He II (40.8 eV) reaches only Na 2p (≈ 31 eV; Mg 2p ≈ 50 eV
-    // and every 2s lie above). The Na 2p value at 40.8 eV was not found: left untabulated,
-    // so a Na 2p band at He II gets no intensity and counts as untabulated.
+    // and every 2s lie above). The Na 2p value at 40.8 eV is computed in the central field
+    // (subshell_mb), there being no table value.
     (11, 1, 0, 2.0, None, None, 1.17e-1),
     (11, 2, 0, 2.0, None, None, 5.8e-3),
     (11, 2, 1, 6.0, None, None, 2.5e-3),
@@ -111,6 +124,13 @@ const TABLE: &[Row] = &[
     (18, 2, 0, 2.0, None, None, 2.6e-2),
     (18, 2, 1, 6.0, None, None, 4.1e-2),
 ];
+
+/// How closely (relative) the central-field solver must reproduce a row's tabulated 1486.6 eV
+/// value for the ratio it carries to other energies to count as exact as the table: the
+/// measured spread of the 1s, 2s and Na–Ar 2p rows is −1.8 % … +7.3 % (N 2s the largest),
+/// O 2p +9.2 %, F 2p −4.8 %, so 10 %. C 2p (×2.13) and N 2p (×1.21), tiny valence values
+/// at 1486.6 eV (1e-5 and 7e-5 Mb), fall outside; their carried values are flagged.
+pub const CENTRAL_FIELD_AGREEMENT: f64 = 0.10;
 
 /// Hydrogen ionization energy used in the exact formula (eV): 0.5 Eh.
 const H_IONIZATION_EV: f64 = 0.5 * HARTREE_TO_EV;
@@ -138,16 +158,29 @@ pub fn subshell_mb(z: u32, n: u32, l: u32, hv_ev: f64) -> Option<(f64, f64, Prov
     }
     let row = TABLE.iter().find(|r| r.0 == z && r.1 == n && r.2 == l)?;
     let (_, _, _, occ, s_he1, s_he2, s_alka) = *row;
-    let s_mgka = s_alka * (E_MGKA / E_ALKA).powf(-(3.5 + l as f64));
+    let computed = central_field::table::lookup(z, n, l).map(|r| r.4);
     // (energy, value, provenance) points in increasing energy.
     let mut pts: Vec<(f64, f64, Provenance)> = Vec::new();
     if let Some(v) = s_he1 {
         pts.push((E_HE1, v, Provenance::YehLindauFromMemory));
     }
-    if let Some(v) = s_he2 {
-        pts.push((E_HE2, v, Provenance::YehLindauFromMemory));
+    match (s_he2, computed.and_then(|c| c[1])) {
+        (Some(v), _) => pts.push((E_HE2, v, Provenance::YehLindauFromMemory)),
+        (None, Some(v)) => pts.push((E_HE2, v, Provenance::CentralField)),
+        (None, None) => {}
     }
-    pts.push((E_MGKA, s_mgka, Provenance::PowerLawScaled));
+    // Mg Kα: the Al Kα table value carried by the computed ratio; none when the photon
+    // does not reach the level in the field.
+    if let Some(c) = computed {
+        if let (Some(mg), Some(al)) = (c[2], c[3]) {
+            let prov = if (al / s_alka - 1.0).abs() <= CENTRAL_FIELD_AGREEMENT {
+                Provenance::CentralFieldScaled
+            } else {
+                Provenance::CentralFieldScaledLoose
+            };
+            pts.push((E_MGKA, s_alka * mg / al, prov));
+        }
+    }
     pts.push((E_ALKA, s_alka, Provenance::YehLindau));
     // Exact hit (within the rounding of the nominal line energies).
     for &(e, v, p) in &pts {
@@ -230,7 +263,12 @@ pub fn gelius_intensity(band: &Band, hv_ev: f64) -> GeliusIntensity {
         match subshell_mb(z, n, l, hv_ev) {
             Some((sigma, occ, prov)) => {
                 sum += m.fraction * sigma / occ;
-                if prov != Provenance::YehLindau && prov != Provenance::HydrogenExact {
+                if !matches!(
+                    prov,
+                    Provenance::YehLindau
+                        | Provenance::HydrogenExact
+                        | Provenance::CentralFieldScaled
+                ) {
                     approximate = true;
                 }
             }
@@ -279,9 +317,51 @@ mod tests {
         assert!((s2p / c1s / 1.68 - 1.0).abs() < 0.3, "{}", s2p / c1s);
         // He II does not reach a 2p beyond Na's: no values there.
         assert!(subshell_mb(16, 2, 1, 40.8).is_none());
-        // Mg Kα is scaled from Al Kα (flagged), larger at the lower energy.
+        // Mg Kα is the Al Kα value carried by the central-field ratio, larger at the lower
+        // energy; Mg 1s (1303 eV, X-ray Data Booklet) is out of reach of Mg Kα.
         let (smg, _, p) = subshell_mb(16, 2, 1, 1253.6).unwrap();
-        assert_eq!(p, Provenance::PowerLawScaled);
+        assert_eq!(p, Provenance::CentralFieldScaled);
         assert!(smg > s2p);
+        assert!(subshell_mb(12, 1, 0, 1253.6).is_none());
+        assert!(subshell_mb(11, 1, 0, 1253.6).is_some());
+        // Na 2p at He II: computed in the central field, flagged through its provenance.
+        let (sna, occ, p) = subshell_mb(11, 2, 1, 40.8).unwrap();
+        assert_eq!((occ, p), (6.0, Provenance::CentralField));
+        assert!(sna > 1.0 && sna < 10.0, "{sna}");
+    }
+
+    /// Measured agreement of the central-field solver with the Yeh & Lindau Al Kα column
+    /// (the rows typed in from the reproduced table, two significant digits). External
+    /// check: Yeh & Lindau (1985) through the reproduced table. Measured computed/table:
+    /// 1s 0.995–1.049, 2s 0.986–1.073, Na–Ar 2p 0.982–1.052, O 2p 1.09, F 2p 0.95; C 2p 2.13
+    /// and N 2p 1.21 (valence, 1e-5 and 7e-5 Mb) are the only rows outside 10 %, flagged.
+    #[test]
+    fn central_field_reproduces_yeh_lindau_al_ka() {
+        let mut worst: f64 = 0.0;
+        let mut loose = Vec::new();
+        for row in TABLE {
+            let (z, n, l, _, _, _, yl) = *row;
+            let c = central_field::table::lookup(z, n, l).expect("computed row");
+            let ratio = c.4[3].expect("reached at Al Kα") / yl;
+            if (ratio - 1.0).abs() > CENTRAL_FIELD_AGREEMENT {
+                loose.push((z, n, l));
+                let p = subshell_mb(z, n, l, 1253.6).unwrap().2;
+                assert_eq!(p, Provenance::CentralFieldScaledLoose);
+                // even these stay within a factor 2.2 (C 2p: 2.13)
+                assert!(ratio < 2.2 && ratio > 0.45, "Z={z} {n}{l}: {ratio:.3}");
+                continue;
+            }
+            worst = worst.max((ratio - 1.0).abs());
+        }
+        assert_eq!(loose, vec![(6, 2, 1), (7, 2, 1)]);
+        // every other row within 10 %, the largest measured 9.2 % (O 2p); core rows ≤ 7.3 %
+        assert!(worst > 0.05 && worst < CENTRAL_FIELD_AGREEMENT, "{worst}");
+        // The Mg/Al ratio of the central field is not the high-energy power law: the law
+        // (hν)^-(7/2+l) overstates the rise (Bethe & Salpeter 1957 §71 gives it as the
+        // high-energy limit only). For S 2p: law 1.93, field 1.70.
+        let c = central_field::table::lookup(16, 2, 1).unwrap().4;
+        let field = c[2].unwrap() / c[3].unwrap();
+        let law = (1253.6f64 / 1486.6).powf(-4.5);
+        assert!(field < law && field > 1.3, "{field} vs {law}");
     }
 }

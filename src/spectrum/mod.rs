@@ -19,6 +19,7 @@ pub mod background;
 pub mod band_shape;
 pub mod broaden;
 pub mod build;
+pub mod central_field;
 pub mod compare;
 pub mod confidence;
 pub mod cross_section;
