@@ -23,7 +23,6 @@ use std::cell::RefCell;
 use crate::basis::cartesian::n_cartesian;
 use crate::integrals::quartet::{batch_lanes, contract, finish, grow, Scratch, ShellMeta};
 use crate::integrals::shell_pair::{PairData, Prim};
-use crate::integrals::transform::transform_axis;
 use crate::integrals::vrr;
 
 /// Which centre derivatives one side (bra or ket) of a quartet contributes.
@@ -39,12 +38,19 @@ pub(crate) enum SideDerivs {
     Both,
 }
 
-/// Per-shell matrices from raw raised / lowered Cartesian components to ∂/∂A_k of the
-/// final AOs: `plus[k]` is n_f × n_cart(l+1), `minus[k]` n_f × n_cart(l−1).
+/// Per shell: how Γ (final AOs) goes to raw Cartesian components, and which raised /
+/// lowered components the derivative of each component takes. With T the raw-Cartesian →
+/// AO matrix of the shell, ∂/∂A_k of AO μ is Σ_q T_μq (2α (q+1_k| − q_k (q−1_k|), so
+/// Σ_μ Γ_μ ∂_k(μ| = Σ_q Γc_q (2α (q+1_k| − q_k (q−1_k|) with Γc = Tᵀ Γ: the derivative
+/// blocks are dotted with Γc in raw Cartesian components and never transformed.
 #[derive(Debug, Clone)]
 pub(crate) struct DerivMaps {
-    pub plus: [Vec<f64>; 3],
-    pub minus: [Vec<f64>; 3],
+    /// Tᵀ (n_cart × n_f, row-major); None when T is the identity.
+    pub back: Option<Vec<f64>>,
+    /// Per direction k: (index of q in l, index of q + 1_k in l + 1).
+    pub raised: [Vec<(usize, usize)>; 3],
+    /// Per direction k: (index of q in l, index of q − 1_k in l − 1, −q_k), q_k > 0.
+    pub lowered: [Vec<(usize, usize, f64)>; 3],
 }
 
 /// The shell-level inputs of one quartet, in the order computed.
@@ -66,7 +72,6 @@ struct PassScratch {
     idx: Vec<(u32, u32)>,
     sub: Vec<f64>,
     block: Vec<f64>,
-    tmp: Vec<f64>,
 }
 
 thread_local! {
@@ -88,24 +93,52 @@ fn span(lo: usize, hi: usize) -> usize {
     (lo..hi).map(n_cartesian).sum()
 }
 
-/// The centre derivatives of the quartet `q` asked for by `bra` and `ket`, in final AOs
-/// with the quartet's layout, written to `out` as groups in this order: bra (Combined: one
-/// group ∂_a+∂_b; First: ∂_a; Both: ∂_a, ∂_b), then ket likewise; each group is three
-/// blocks (x, y, z). Returns the number of groups.
-pub(crate) fn quartet_derivatives(
+/// The centre-derivative contractions Σ Γ ∂(ab|cd) of the quartet `q` asked for by `bra`
+/// and `ket`, with `gamma_c` = Γ over the quartet in raw Cartesian components (layout of
+/// the quartet, see [`DerivMaps`]), written to `out` as groups in this order: bra
+/// (Combined: one group ∂_a+∂_b; First: ∂_a; Both: ∂_a, ∂_b), then ket likewise; each group
+/// is [x, y, z]. Returns the number of groups.
+pub(crate) fn quartet_gradient(
     q: &QuartetInput,
     bra: SideDerivs,
     ket: SideDerivs,
-    out: &mut Vec<[Vec<f64>; 3]>,
+    gamma_c: &[f64],
+    out: &mut [[f64; 3]; 4],
 ) -> usize {
-    PASS.with(|p| run(q, bra, ket, out, &mut p.borrow_mut()))
+    PASS.with(|p| run(q, bra, ket, gamma_c, out, &mut p.borrow_mut()))
+}
+
+/// Σ over the quartet of f · Γc[.., q, ..] · C[.., t, ..] along axis `pos` for the listed
+/// (q, t, f); `dims` are C's dimensions, Γc has `nq` components on axis `pos`.
+fn gather_dot(
+    gc: &[f64],
+    c: &[f64],
+    dims: [usize; 4],
+    pos: usize,
+    nq: usize,
+    list: impl Iterator<Item = (usize, usize, f64)> + Clone,
+) -> f64 {
+    let outer: usize = dims[..pos].iter().product();
+    let inner: usize = dims[pos + 1..].iter().product();
+    let nt = dims[pos];
+    let mut total = 0.0;
+    for o in 0..outer {
+        for (qi, ti, f) in list.clone() {
+            let a = &gc[(o * nq + qi) * inner..(o * nq + qi + 1) * inner];
+            let b = &c[(o * nt + ti) * inner..(o * nt + ti + 1) * inner];
+            let d: f64 = a.iter().zip(b).map(|(x, y)| x * y).sum();
+            total += f * d;
+        }
+    }
+    total
 }
 
 fn run(
     q: &QuartetInput,
     bra: SideDerivs,
     ket: SideDerivs,
-    out: &mut Vec<[Vec<f64>; 3]>,
+    gamma_c: &[f64],
+    out: &mut [[f64; 3]; 4],
     ps: &mut PassScratch,
 ) -> usize {
     let l = q.metas.map(|m| m.l);
@@ -141,7 +174,6 @@ fn run(
         idx,
         sub,
         block,
-        tmp,
     } = ps;
     for (a, &on) in acc.iter_mut().zip(&wants) {
         a.clear();
@@ -248,16 +280,16 @@ fn run(
             groups.push(vec![(3, true, 4), (3, false, 0)]);
         }
     }
-    let nf = q.metas.map(|m| m.n_func);
-    let size: usize = nf.iter().product();
-    while out.len() < groups.len() {
-        out.push(Default::default());
-    }
+    let nc = l.map(n_cartesian);
+    let raw = |l: usize| ShellMeta {
+        l,
+        n_func: n_cartesian(l),
+        n_cart: n_cartesian(l),
+        transform: None,
+    };
+    let raws = l.map(raw);
     for (g, terms) in groups.iter().enumerate() {
-        for o in out[g].iter_mut() {
-            o.clear();
-            o.resize(size, 0.0);
-        }
+        out[g] = [0.0; 3];
         for &(pos, up, ai) in terms {
             if !up && l[pos] == 0 {
                 continue;
@@ -273,32 +305,32 @@ fn run(
             for fi in f0..f1 {
                 sub.extend_from_slice(&src[fi * plan.n_e + e0..fi * plan.n_e + e1]);
             }
-            let raw = ShellMeta {
-                l: lc[pos],
-                n_func: n_cartesian(lc[pos]),
-                n_cart: n_cartesian(lc[pos]),
-                transform: None,
-            };
-            let mut metas = q.metas;
-            metas[pos] = &raw;
-            let mut dims = nf;
-            dims[pos] = raw.n_func;
+            let changed = raw(lc[pos]);
+            let mut metas = [&raws[0], &raws[1], &raws[2], &raws[3]];
+            metas[pos] = &changed;
+            let mut dims = nc;
+            dims[pos] = changed.n_func;
             let len: usize = dims.iter().product();
             block.clear();
             block.resize(len, 0.0);
-            let ab = q.pb.ab;
-            let cd = q.pk.ab;
-            finish(metas, &sub[..n_e * (f1 - f0)], ab, cd, n_e, block, s);
-            let maps = if up {
-                &q.maps[pos].plus
-            } else {
-                &q.maps[pos].minus
-            };
+            finish(
+                metas,
+                &sub[..n_e * (f1 - f0)],
+                q.pb.ab,
+                q.pk.ab,
+                n_e,
+                block,
+                s,
+            );
+            let m = q.maps[pos];
             for (k, o) in out[g].iter_mut().enumerate() {
-                transform_axis(block, &dims, pos, &maps[k], nf[pos], tmp);
-                for (x, y) in o.iter_mut().zip(tmp.iter()) {
-                    *x += y;
-                }
+                *o += if up {
+                    let list = m.raised[k].iter().map(|&(a, b)| (a, b, 1.0));
+                    gather_dot(gamma_c, block, dims, pos, nc[pos], list)
+                } else {
+                    let list = m.lowered[k].iter().copied();
+                    gather_dot(gamma_c, block, dims, pos, nc[pos], list)
+                };
             }
         }
     }
