@@ -19,6 +19,10 @@
 //! [`super::eri::EriDerivative::centre_derivative`], which shares their primitive work.
 
 use std::cell::RefCell;
+use std::collections::HashMap;
+use std::rc::Rc;
+
+type Selection = ([usize; 4], SideDerivs, SideDerivs);
 
 use crate::basis::cartesian::n_cartesian;
 use crate::integrals::quartet::{batch_lanes, contract, finish, grow, Scratch, ShellMeta};
@@ -26,7 +30,7 @@ use crate::integrals::shell_pair::{PairData, Prim};
 use crate::integrals::vrr;
 
 /// Which centre derivatives one side (bra or ket) of a quartet contributes.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
 pub(crate) enum SideDerivs {
     /// None (obtained by translational invariance).
     No,
@@ -72,6 +76,11 @@ struct PassScratch {
     idx: Vec<(u32, u32)>,
     sub: Vec<f64>,
     block: Vec<f64>,
+    /// Per (l of the four shells, bra, ket) and accumulator: the flat target positions it
+    /// contracts and their VRR targets (made once per thread and shape).
+    sel: HashMap<Selection, Rc<[(Vec<u32>, Vec<u32>); 5]>>,
+    /// Per accumulator: the compact sums.
+    cacc: [Vec<f64>; 5],
 }
 
 thread_local! {
@@ -165,6 +174,30 @@ fn run(
         raise_k,
         ket == SideDerivs::Both,
     ];
+    // the classes: (position, raised?, accumulator)
+    let mut groups: Vec<Vec<(usize, bool, usize)>> = Vec::new();
+    match bra {
+        SideDerivs::No => {}
+        SideDerivs::Combined => {
+            groups.push(vec![(0, true, 1), (0, false, 0), (1, false, 0)]);
+        }
+        SideDerivs::First => groups.push(vec![(0, true, 1), (0, false, 0)]),
+        SideDerivs::Both => {
+            groups.push(vec![(0, true, 1), (0, false, 0)]);
+            groups.push(vec![(1, true, 2), (1, false, 0)]);
+        }
+    }
+    match ket {
+        SideDerivs::No => {}
+        SideDerivs::Combined => {
+            groups.push(vec![(2, true, 3), (2, false, 0), (3, false, 0)]);
+        }
+        SideDerivs::First => groups.push(vec![(2, true, 3), (2, false, 0)]),
+        SideDerivs::Both => {
+            groups.push(vec![(2, true, 3), (2, false, 0)]);
+            groups.push(vec![(3, true, 4), (3, false, 0)]);
+        }
+    }
     let PassScratch {
         s,
         acc,
@@ -174,11 +207,59 @@ fn run(
         idx,
         sub,
         block,
+        sel,
+        cacc,
     } = ps;
-    for (a, &on) in acc.iter_mut().zip(&wants) {
-        a.clear();
-        if on {
-            a.resize(nt, 0.0);
+    // each accumulator contracts only the targets its classes read: the sub-blocks
+    // e ∈ [lc0, lc0+lc1], f ∈ [lc2, lc2+lc3] of the widened range (the same per-target
+    // sums, fewer of them)
+    let rect = |lc: [usize; 4]| {
+        (
+            span(e_lo, lc[0]),
+            span(e_lo, lc[0] + lc[1] + 1),
+            span(f_lo, lc[2]),
+            span(f_lo, lc[2] + lc[3] + 1),
+        )
+    };
+    let key = (l, bra, ket);
+    let selection = match sel.get(&key) {
+        Some(x) => x.clone(),
+        None => {
+            let mut rects: [Vec<(usize, usize, usize, usize)>; 5] = Default::default();
+            for terms in &groups {
+                for &(pos, up, ai) in terms {
+                    if !up && l[pos] == 0 {
+                        continue;
+                    }
+                    let mut lc = l;
+                    lc[pos] = if up { l[pos] + 1 } else { l[pos] - 1 };
+                    rects[ai].push(rect(lc));
+                }
+            }
+            let mut lists: [(Vec<u32>, Vec<u32>); 5] = Default::default();
+            for ai in 0..5 {
+                for t in 0..nt {
+                    let (fi, ei) = (t / plan.n_e, t % plan.n_e);
+                    if rects[ai]
+                        .iter()
+                        .any(|&(e0, e1, f0, f1)| ei >= e0 && ei < e1 && fi >= f0 && fi < f1)
+                    {
+                        lists[ai].0.push(t as u32);
+                        lists[ai].1.push(plan.targets[t]);
+                    }
+                }
+            }
+            let x = std::rc::Rc::new(lists);
+            sel.insert(key, x.clone());
+            x
+        }
+    };
+    for ai in 0..5 {
+        cacc[ai].clear();
+        acc[ai].clear();
+        if wants[ai] {
+            acc[ai].resize(nt, 0.0);
+            cacc[ai].resize(selection[ai].0.len(), 0.0);
         }
     }
     // per-primitive-pair weights
@@ -249,35 +330,16 @@ fn run(
             }
         }
         let v = s.vrr_slice();
-        contract(&plan.targets, None, v, st, nb, &mut acc[0]);
+        contract(&selection[0].1, None, v, st, nb, &mut cacc[0]);
         for i in 1..5 {
             if wants[i] {
-                contract(&plan.targets, Some(&w[i - 1][..nb]), v, st, nb, &mut acc[i]);
+                contract(&selection[i].1, Some(&w[i - 1][..nb]), v, st, nb, &mut cacc[i]);
             }
         }
     }
-    // the classes: (position, raised?, accumulator)
-    let mut groups: Vec<Vec<(usize, bool, usize)>> = Vec::new();
-    match bra {
-        SideDerivs::No => {}
-        SideDerivs::Combined => {
-            groups.push(vec![(0, true, 1), (0, false, 0), (1, false, 0)]);
-        }
-        SideDerivs::First => groups.push(vec![(0, true, 1), (0, false, 0)]),
-        SideDerivs::Both => {
-            groups.push(vec![(0, true, 1), (0, false, 0)]);
-            groups.push(vec![(1, true, 2), (1, false, 0)]);
-        }
-    }
-    match ket {
-        SideDerivs::No => {}
-        SideDerivs::Combined => {
-            groups.push(vec![(2, true, 3), (2, false, 0), (3, false, 0)]);
-        }
-        SideDerivs::First => groups.push(vec![(2, true, 3), (2, false, 0)]),
-        SideDerivs::Both => {
-            groups.push(vec![(2, true, 3), (2, false, 0)]);
-            groups.push(vec![(3, true, 4), (3, false, 0)]);
+    for ai in 0..5 {
+        for (&t, &x) in selection[ai].0.iter().zip(&cacc[ai]) {
+            acc[ai][t as usize] = x;
         }
     }
     let nc = l.map(n_cartesian);
