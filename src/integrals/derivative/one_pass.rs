@@ -7,8 +7,10 @@
 //! ζ, only with other |e| and other weights: 2α_i for A raised, 2β_j for B raised, 1 for the
 //! lowered terms. So the recurrence is run once on the widened range
 //! |e| = l_a−1 … l_a+l_b+1 (and |f| likewise on the ket when a ket centre is needed), and the
-//! targets are contracted with each weight in its own accumulator; the horizontal
-//! recurrence and the AO transforms then run per class on contracted integrals. On a
+//! targets are contracted with each weight in its own accumulator (each accumulator only
+//! over the targets its classes read); the horizontal recurrence then runs per class on
+//! contracted integrals, and each class is dotted with Γ taken back to raw Cartesian
+//! components ([`DerivMaps`]) — no derivative block is transformed to AOs. On a
 //! one-centre pair (A = B) only ∂_A + ∂_B is needed, and 2α(a+1|+2β(b+1| collapse to
 //! 2ζ(a+1| (the same function at one centre), so the merged primitive pairs of the engine
 //! serve as they are. Translational invariance (Σ of the four centre derivatives = 0) gives
@@ -333,7 +335,14 @@ fn run(
         contract(&selection[0].1, None, v, st, nb, &mut cacc[0]);
         for i in 1..5 {
             if wants[i] {
-                contract(&selection[i].1, Some(&w[i - 1][..nb]), v, st, nb, &mut cacc[i]);
+                contract(
+                    &selection[i].1,
+                    Some(&w[i - 1][..nb]),
+                    v,
+                    st,
+                    nb,
+                    &mut cacc[i],
+                );
             }
         }
     }
