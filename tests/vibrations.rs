@@ -217,3 +217,48 @@ fn near_symmetric_input_is_symmetrised_before_the_hessian() {
     );
     let _ = std::fs::remove_dir_all(&dir);
 }
+
+/// The density-fitted gradient's arrays ((P|μν) and T, two n_aux·n² arrays) are counted
+/// before any work (exit 2, the rule for a budget too small): water/cc-pVDZ with a budget
+/// (0.0004 GiB ≈ 0.4 MiB) that holds the exact-integral working set (about 0.3 MiB) but not
+/// the fitted one (about 1.5 MiB) is refused with `--fock df` by `vibrations` and
+/// `optimize` (no output file written), and runs with exact integrals.
+#[test]
+fn fitted_gradient_memory_refused_before_work() {
+    let water = format!("{}/tests/data/gw100/water.xyz", env!("CARGO_MANIFEST_DIR"));
+    let out_xyz =
+        std::env::temp_dir().join(format!("bandcast-df-mem-opt-{}.xyz", std::process::id()));
+    let run = |args: &[&str]| {
+        std::process::Command::new(env!("CARGO_BIN_EXE_bandcast"))
+            .args(args)
+            .output()
+            .unwrap()
+    };
+    let base = [&water[..], "--basis", "cc-pVDZ", "--memory", "0.0004"];
+    let vib_df = run(&[&["vibrations"], &base[..], &["--fock", "df"]].concat());
+    let err = String::from_utf8_lossy(&vib_df.stderr);
+    assert_eq!(vib_df.status.code(), Some(2), "{err}");
+    assert!(err.contains("density-fitted gradient"), "{err}");
+    assert!(vib_df.stdout.is_empty());
+    let opt_df = run(&[
+        &["optimize"],
+        &base[..],
+        &["--fock", "df", "--out", out_xyz.to_str().unwrap()],
+    ]
+    .concat());
+    let err = String::from_utf8_lossy(&opt_df.stderr);
+    assert_eq!(opt_df.status.code(), Some(2), "{err}");
+    assert!(err.contains("memory"), "{err}");
+    assert!(
+        !out_xyz.exists(),
+        "optimize wrote its output before refusing"
+    );
+    // the same budget holds the exact-integral harmonic analysis
+    let vib = run(&[&["vibrations"], &base[..]].concat());
+    assert_eq!(
+        vib.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&vib.stderr)
+    );
+}

@@ -3,7 +3,7 @@
 use bandcast::chem::Molecule;
 use bandcast::geometry::state::resolve_hole;
 use bandcast::geometry::StateSpec;
-use bandcast::scf::{Reference, ScfOptions};
+use bandcast::scf::{FockMethod, Reference, ScfOptions};
 use bandcast::{Error, Result};
 
 use super::common::MoleculeArgs;
@@ -24,6 +24,12 @@ pub struct GeometryStateArgs {
     /// `bandcast ionize` prints it (1b1, 3σg).
     #[arg(long, value_name = "ORBITAL")]
     pub hole: Option<String>,
+    /// How J and K are built: auto (exact integrals, in-core when they fit --memory, else
+    /// integral-direct) or df (density-fitted J and K, the default fitting set, and the
+    /// exact gradient of that fitted energy: faster, but the energy carries the fitting
+    /// error).
+    #[arg(long, value_name = "HOW", default_value = "auto", value_parser = ["auto", "df"])]
+    pub fock: String,
 }
 
 impl GeometryStateArgs {
@@ -50,6 +56,9 @@ impl GeometryStateArgs {
                 ..ScfOptions::default()
             },
         };
+        if self.fock == "df" {
+            spec.scf.fock = FockMethod::DensityFitted;
+        }
         if let Some(h) = &self.hole {
             spec.hole = Some(resolve_hole(&mol, &spec, h)?);
         }

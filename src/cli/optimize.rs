@@ -84,18 +84,21 @@ pub fn run(a: Args) -> Result<()> {
     // harmonic analysis for one displacement) plus the quasi-Newton Hessian and its update
     let n_basis = bandcast::basis::load(&spec.basis, &spec.molecule_at(&mol)?, None)?.n_basis;
     let n3 = 3 * mol.atoms.len();
+    let fitted = spec.gradient_bytes(&mol)?;
     let per_gradient =
-        bandcast::vibrations::hessian_estimate(mol.atoms.len(), n_basis, 1, 0.0).per_gradient_bytes;
+        bandcast::vibrations::hessian_estimate(mol.atoms.len(), n_basis, 1, 0.0, fitted)
+            .per_gradient_bytes;
     let minimum = per_gradient + 8.0 * (3 * n3 * n3) as f64;
     let budget = budget_bytes.unwrap_or_else(bandcast::system::default_memory_budget) as f64;
     if a.verbose {
         eprintln!(
             "{}: memory estimate before any work (budget {}): {n_basis} basis functions; SCF \
-             and gradient working set {}, quasi-Newton Hessian {}; stored integrals use what \
-             is left when they fit",
+             and gradient working set {} (density-fitted gradient arrays {}), quasi-Newton \
+             Hessian {}; stored integrals use what is left when they fit",
             mol.name,
             bandcast::system::format_gib(budget),
             bandcast::system::format_gib(per_gradient),
+            bandcast::system::format_gib(fitted),
             bandcast::system::format_gib(8.0 * (3 * n3 * n3) as f64),
         );
     }

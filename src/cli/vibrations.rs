@@ -5,7 +5,7 @@ use std::io::IsTerminal;
 
 use bandcast::analysis::symmetry::symmetrize::{symmetrize, MOVED_BOHR};
 use bandcast::analysis::symmetry::{detect_point_group, DEFAULT_TOLERANCE};
-use bandcast::gradient::{scf_gradient, GradientOptions};
+use bandcast::gradient::GradientOptions;
 use bandcast::system::format_bytes;
 use bandcast::units::BOHR_TO_ANGSTROM;
 use bandcast::vibrations::{
@@ -100,18 +100,27 @@ pub fn run(a: Args) -> Result<()> {
     let n_basis = bandcast::basis::load(&spec.basis, &spec.molecule_at(&mol)?, None)?.n_basis;
     let threads = rayon::current_num_threads();
     let mut concurrency = threads;
-    let mut est = hessian_estimate(mol.atoms.len(), n_basis, concurrency, 0.0);
+    let fitted = spec.gradient_bytes(&mol)?;
+    let fitted_note = if fitted > 0.0 {
+        format!(
+            ", of which the density-fitted gradient's arrays {}",
+            format_bytes(fitted)
+        )
+    } else {
+        String::new()
+    };
+    let mut est = hessian_estimate(mol.atoms.len(), n_basis, concurrency, 0.0, fitted);
     if let Some(gib) = a.memory {
         let budget = gib * (1u64 << 30) as f64;
         while concurrency > 1 && est.minimum_bytes > budget {
             concurrency -= 1;
-            est = hessian_estimate(mol.atoms.len(), n_basis, concurrency, 0.0);
+            est = hessian_estimate(mol.atoms.len(), n_basis, concurrency, 0.0, fitted);
         }
         if est.minimum_bytes > budget {
             return Err(Error::input(format!(
                 "--memory {gib} GiB is too small for this harmonic analysis: it needs at least \
                  {} (Hessian and gradients {}, one displaced SCF and gradient {} for {n_basis} \
-                 basis functions)",
+                 basis functions{fitted_note})",
                 format_bytes(est.minimum_bytes),
                 format_bytes(est.hessian_bytes),
                 format_bytes(est.per_gradient_bytes)
@@ -123,8 +132,8 @@ pub fn run(a: Args) -> Result<()> {
     if a.verbose {
         eprintln!(
             "estimate: {n_basis} basis functions, {} gradients, {concurrency} at a time; memory \
-             at least {} (Hessian and gradients {}, {} per displaced SCF and gradient) plus \
-             stored integrals up to {}",
+             at least {} (Hessian and gradients {}, {} per displaced SCF and gradient{fitted_note}) \
+             plus stored integrals up to {}",
             est.gradients,
             format_bytes(est.minimum_bytes),
             format_bytes(est.hessian_bytes),
@@ -143,17 +152,18 @@ pub fn run(a: Args) -> Result<()> {
             "the hole state could not be made: {reason}"
         )));
     }
-    let g = scf_gradient(
-        &st.molecule,
-        &st.basis,
-        &st.wavefunction,
-        &GradientOptions::default(),
-    )?;
-    let gmax = g.total.iter().flatten().fold(0.0f64, |m, x| m.max(x.abs()));
+    let g = st.gradient(&spec, &GradientOptions::default())?;
+    let gmax = g.iter().flatten().fold(0.0f64, |m, x| m.max(x.abs()));
     let total = 6 * mol.atoms.len();
     let reference_seconds = clock.elapsed().as_secs_f64();
     if a.verbose {
-        let e = hessian_estimate(mol.atoms.len(), n_basis, concurrency, reference_seconds);
+        let e = hessian_estimate(
+            mol.atoms.len(),
+            n_basis,
+            concurrency,
+            reference_seconds,
+            fitted,
+        );
         eprintln!(
             "reference SCF and gradient: {reference_seconds:.2} s; Hessian: about {:.0} s wall \
              ({} gradients, {concurrency} at a time; displaced SCFs start from the reference \

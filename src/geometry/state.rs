@@ -88,6 +88,31 @@ pub struct HoleTrack {
 }
 
 impl StateSpec {
+    /// Bytes the gradient of this state holds beyond the SCF's working set, known before
+    /// any work: the density-fitted gradient's (P|μν) and T arrays and the exchange
+    /// blocks (`gradient::density_fitted::fitted_gradient_bytes`); 0 for exact integrals
+    /// (integral-direct, a few quartets per thread).
+    pub fn gradient_bytes(&self, mol: &Molecule) -> Result<f64> {
+        if self.scf.fock != scf::FockMethod::DensityFitted {
+            return Ok(0.0);
+        }
+        let m = self.molecule_at(mol)?;
+        let n = basis::load(&self.basis, &m, None)?.n_basis;
+        let name = self
+            .scf
+            .jk_fitting
+            .as_deref()
+            .unwrap_or(scf::context::DEFAULT_JK_FITTING);
+        let naux = basis::load_auxiliary(name, &m)?.n_basis;
+        let (na, _) = m.n_alpha_beta();
+        let terms = if self.reference == Reference::Rhf {
+            1
+        } else {
+            2
+        };
+        Ok(crate::gradient::density_fitted::fitted_gradient_bytes(n, naux, na, terms) as f64)
+    }
+
     /// The molecule carrying this state's charge and multiplicity (the cation for holes).
     pub fn molecule_at(&self, mol: &Molecule) -> Result<Molecule> {
         let parent = mol

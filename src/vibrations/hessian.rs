@@ -121,7 +121,8 @@ pub struct HessianEstimate {
     pub hessian_bytes: f64,
     /// Working memory of one displaced SCF and gradient apart from stored integrals:
     /// about 64 n_basis² doubles (orbitals, densities, Fock matrices, DIIS history of both
-    /// spins, the gradient's Fock rebuild; a generous count, not measured).
+    /// spins, the gradient's Fock rebuild; a generous count, not measured), plus what the
+    /// gradient itself holds (`StateSpec::gradient_bytes`: the density-fitted arrays).
     pub per_gradient_bytes: f64,
     /// Hessian + concurrency × per-gradient working memory.
     pub minimum_bytes: f64,
@@ -131,18 +132,20 @@ pub struct HessianEstimate {
 }
 
 /// The estimate for `n_atoms` atoms, `n_basis` functions, `concurrency` displacements at a
-/// time and `seconds_per_gradient` (a measured reference SCF + gradient).
+/// time, `seconds_per_gradient` (a measured reference SCF + gradient) and
+/// `gradient_bytes` held by each gradient (`StateSpec::gradient_bytes`).
 pub fn hessian_estimate(
     n_atoms: usize,
     n_basis: usize,
     concurrency: usize,
     seconds_per_gradient: f64,
+    gradient_bytes: f64,
 ) -> HessianEstimate {
     let n3 = 3 * n_atoms;
     let gradients = 2 * n3;
     let c = concurrency.max(1);
     let hessian_bytes = 8.0 * (n3 * n3 + gradients * n3) as f64;
-    let per_gradient_bytes = 64.0 * 8.0 * (n_basis * n_basis) as f64;
+    let per_gradient_bytes = 64.0 * 8.0 * (n_basis * n_basis) as f64 + gradient_bytes;
     HessianEstimate {
         gradients,
         concurrency: c,

@@ -21,7 +21,7 @@ use crate::integrals::EriEngine;
 use bandcast_linalg::Mat;
 use rayon::prelude::*;
 
-use super::one_pass::{quartet_derivatives, DerivMaps, QuartetInput, SideDerivs};
+use super::one_pass::{quartet_gradient, DerivMaps, QuartetInput, SideDerivs};
 
 /// The engine over a basis and its raised/lowered derivative shells.
 pub struct EriDerivative {
@@ -123,8 +123,8 @@ impl EriDerivative {
             };
             let mut gp: [Vec<f64>; 3] = std::array::from_fn(|_| vec![0.0; nf * ncp]);
             let mut gm: [Vec<f64>; 3] = std::array::from_fn(|_| vec![0.0; nf * ncm]);
-            let mut rp: [Vec<f64>; 3] = std::array::from_fn(|_| vec![0.0; nf * ncp]);
-            let mut rm: [Vec<f64>; 3] = std::array::from_fn(|_| vec![0.0; nf * ncm]);
+            let mut raised: [Vec<(usize, usize)>; 3] = Default::default();
+            let mut lowered: [Vec<(usize, usize, f64)>; 3] = Default::default();
             for (iq, q) in components(l).iter().enumerate() {
                 for k in 0..3 {
                     let mut up = *q;
@@ -133,8 +133,8 @@ impl EriDerivative {
                     let cf_up = tp[iu * ncp + iu];
                     for mu in 0..nf {
                         gp[k][mu * ncp + iu] += t[mu * nc + iq] / cf_up;
-                        rp[k][mu * ncp + iu] += t[mu * nc + iq];
                     }
+                    raised[k].push((iq, iu));
                     if q[k] > 0 {
                         let mut dn = *q;
                         dn[k] -= 1;
@@ -142,16 +142,22 @@ impl EriDerivative {
                         let cf_dn = tm[id * ncm + id];
                         for mu in 0..nf {
                             gm[k][mu * ncm + id] -= q[k] as f64 * t[mu * nc + iq] / cf_dn;
-                            rm[k][mu * ncm + id] -= q[k] as f64 * t[mu * nc + iq];
                         }
+                        lowered[k].push((iq, id, -(q[k] as f64)));
                     }
                 }
             }
             g_plus.push(gp);
             g_minus.push(gm);
+            let identity = nf == nc
+                && (0..nf)
+                    .all(|i| (0..nc).all(|j| t[i * nc + j] == if i == j { 1.0 } else { 0.0 }));
+            let back =
+                (!identity).then(|| (0..nc * nf).map(|x| t[(x % nf) * nc + x / nf]).collect());
             maps.push(DerivMaps {
-                plus: rp,
-                minus: rm,
+                back,
+                raised,
+                lowered,
             });
         }
         EriDerivative {
@@ -266,17 +272,23 @@ impl EriDerivative {
             tau: self.engine.tau(),
         };
         GROUPS.with(|cell| {
-            let (groups, gam) = &mut *cell.borrow_mut();
-            quartet_derivatives(&input, bra, ket, groups);
-            gamma_block(q2, q2.map(|x| self.nf[x]), off, coulomb, exchange, gam);
+            let (gam, gc) = &mut *cell.borrow_mut();
+            let mut dims = q2.map(|x| self.nf[x]);
+            gamma_block(q2, dims, off, coulomb, exchange, gam);
+            // Γ to raw Cartesian components on every axis (see `DerivMaps`)
+            for pos in 0..4 {
+                if let Some(m) = &self.maps[q2[pos]].back {
+                    let ncart = n_cartesian(self.l[q2[pos]]);
+                    transform_axis(gam, &dims, pos, m, ncart, gc);
+                    dims[pos] = ncart;
+                    std::mem::swap(gam, gc);
+                }
+            }
+            let mut vals = [[0.0; 3]; 4];
+            quartet_gradient(&input, bra, ket, gam, &mut vals);
             for (gi, &pos) in targets.iter().enumerate() {
                 for k in 0..3 {
-                    let v: f64 = groups[gi][k]
-                        .iter()
-                        .zip(gam.iter())
-                        .map(|(x, y)| x * y)
-                        .sum::<f64>()
-                        * scale;
+                    let v = vals[gi][k] * scale;
                     g[3 * at[pos] + k] += v;
                     g[3 * at[rest] + k] -= v;
                 }
@@ -387,8 +399,8 @@ impl EriDerivative {
 }
 
 thread_local! {
-    /// Derivative blocks and Γ of the quartet in hand (per thread).
-    static GROUPS: std::cell::RefCell<(Vec<[Vec<f64>; 3]>, Vec<f64>)> =
+    /// Γ of the quartet in hand and a work array for its transforms (per thread).
+    static GROUPS: std::cell::RefCell<(Vec<f64>, Vec<f64>)> =
         std::cell::RefCell::new((Vec::new(), Vec::new()));
 }
 

@@ -7,8 +7,10 @@
 //! ζ, only with other |e| and other weights: 2α_i for A raised, 2β_j for B raised, 1 for the
 //! lowered terms. So the recurrence is run once on the widened range
 //! |e| = l_a−1 … l_a+l_b+1 (and |f| likewise on the ket when a ket centre is needed), and the
-//! targets are contracted with each weight in its own accumulator; the horizontal
-//! recurrence and the AO transforms then run per class on contracted integrals. On a
+//! targets are contracted with each weight in its own accumulator (each accumulator only
+//! over the targets its classes read); the horizontal recurrence then runs per class on
+//! contracted integrals, and each class is dotted with Γ taken back to raw Cartesian
+//! components ([`DerivMaps`]) — no derivative block is transformed to AOs. On a
 //! one-centre pair (A = B) only ∂_A + ∂_B is needed, and 2α(a+1|+2β(b+1| collapse to
 //! 2ζ(a+1| (the same function at one centre), so the merged primitive pairs of the engine
 //! serve as they are. Translational invariance (Σ of the four centre derivatives = 0) gives
@@ -19,15 +21,18 @@
 //! [`super::eri::EriDerivative::centre_derivative`], which shares their primitive work.
 
 use std::cell::RefCell;
+use std::collections::HashMap;
+use std::rc::Rc;
+
+type Selection = ([usize; 4], SideDerivs, SideDerivs);
 
 use crate::basis::cartesian::n_cartesian;
 use crate::integrals::quartet::{batch_lanes, contract, finish, grow, Scratch, ShellMeta};
 use crate::integrals::shell_pair::{PairData, Prim};
-use crate::integrals::transform::transform_axis;
 use crate::integrals::vrr;
 
 /// Which centre derivatives one side (bra or ket) of a quartet contributes.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
 pub(crate) enum SideDerivs {
     /// None (obtained by translational invariance).
     No,
@@ -39,12 +44,19 @@ pub(crate) enum SideDerivs {
     Both,
 }
 
-/// Per-shell matrices from raw raised / lowered Cartesian components to ∂/∂A_k of the
-/// final AOs: `plus[k]` is n_f × n_cart(l+1), `minus[k]` n_f × n_cart(l−1).
+/// Per shell: how Γ (final AOs) goes to raw Cartesian components, and which raised /
+/// lowered components the derivative of each component takes. With T the raw-Cartesian →
+/// AO matrix of the shell, ∂/∂A_k of AO μ is Σ_q T_μq (2α (q+1_k| − q_k (q−1_k|), so
+/// Σ_μ Γ_μ ∂_k(μ| = Σ_q Γc_q (2α (q+1_k| − q_k (q−1_k|) with Γc = Tᵀ Γ: the derivative
+/// blocks are dotted with Γc in raw Cartesian components and never transformed.
 #[derive(Debug, Clone)]
 pub(crate) struct DerivMaps {
-    pub plus: [Vec<f64>; 3],
-    pub minus: [Vec<f64>; 3],
+    /// Tᵀ (n_cart × n_f, row-major); None when T is the identity.
+    pub back: Option<Vec<f64>>,
+    /// Per direction k: (index of q in l, index of q + 1_k in l + 1).
+    pub raised: [Vec<(usize, usize)>; 3],
+    /// Per direction k: (index of q in l, index of q − 1_k in l − 1, −q_k), q_k > 0.
+    pub lowered: [Vec<(usize, usize, f64)>; 3],
 }
 
 /// The shell-level inputs of one quartet, in the order computed.
@@ -66,7 +78,11 @@ struct PassScratch {
     idx: Vec<(u32, u32)>,
     sub: Vec<f64>,
     block: Vec<f64>,
-    tmp: Vec<f64>,
+    /// Per (l of the four shells, bra, ket) and accumulator: the flat target positions it
+    /// contracts and their VRR targets (made once per thread and shape).
+    sel: HashMap<Selection, Rc<[(Vec<u32>, Vec<u32>); 5]>>,
+    /// Per accumulator: the compact sums.
+    cacc: [Vec<f64>; 5],
 }
 
 thread_local! {
@@ -88,24 +104,52 @@ fn span(lo: usize, hi: usize) -> usize {
     (lo..hi).map(n_cartesian).sum()
 }
 
-/// The centre derivatives of the quartet `q` asked for by `bra` and `ket`, in final AOs
-/// with the quartet's layout, written to `out` as groups in this order: bra (Combined: one
-/// group ∂_a+∂_b; First: ∂_a; Both: ∂_a, ∂_b), then ket likewise; each group is three
-/// blocks (x, y, z). Returns the number of groups.
-pub(crate) fn quartet_derivatives(
+/// The centre-derivative contractions Σ Γ ∂(ab|cd) of the quartet `q` asked for by `bra`
+/// and `ket`, with `gamma_c` = Γ over the quartet in raw Cartesian components (layout of
+/// the quartet, see [`DerivMaps`]), written to `out` as groups in this order: bra
+/// (Combined: one group ∂_a+∂_b; First: ∂_a; Both: ∂_a, ∂_b), then ket likewise; each group
+/// is [x, y, z]. Returns the number of groups.
+pub(crate) fn quartet_gradient(
     q: &QuartetInput,
     bra: SideDerivs,
     ket: SideDerivs,
-    out: &mut Vec<[Vec<f64>; 3]>,
+    gamma_c: &[f64],
+    out: &mut [[f64; 3]; 4],
 ) -> usize {
-    PASS.with(|p| run(q, bra, ket, out, &mut p.borrow_mut()))
+    PASS.with(|p| run(q, bra, ket, gamma_c, out, &mut p.borrow_mut()))
+}
+
+/// Σ over the quartet of f · Γc[.., q, ..] · C[.., t, ..] along axis `pos` for the listed
+/// (q, t, f); `dims` are C's dimensions, Γc has `nq` components on axis `pos`.
+fn gather_dot(
+    gc: &[f64],
+    c: &[f64],
+    dims: [usize; 4],
+    pos: usize,
+    nq: usize,
+    list: impl Iterator<Item = (usize, usize, f64)> + Clone,
+) -> f64 {
+    let outer: usize = dims[..pos].iter().product();
+    let inner: usize = dims[pos + 1..].iter().product();
+    let nt = dims[pos];
+    let mut total = 0.0;
+    for o in 0..outer {
+        for (qi, ti, f) in list.clone() {
+            let a = &gc[(o * nq + qi) * inner..(o * nq + qi + 1) * inner];
+            let b = &c[(o * nt + ti) * inner..(o * nt + ti + 1) * inner];
+            let d: f64 = a.iter().zip(b).map(|(x, y)| x * y).sum();
+            total += f * d;
+        }
+    }
+    total
 }
 
 fn run(
     q: &QuartetInput,
     bra: SideDerivs,
     ket: SideDerivs,
-    out: &mut Vec<[Vec<f64>; 3]>,
+    gamma_c: &[f64],
+    out: &mut [[f64; 3]; 4],
     ps: &mut PassScratch,
 ) -> usize {
     let l = q.metas.map(|m| m.l);
@@ -132,6 +176,30 @@ fn run(
         raise_k,
         ket == SideDerivs::Both,
     ];
+    // the classes: (position, raised?, accumulator)
+    let mut groups: Vec<Vec<(usize, bool, usize)>> = Vec::new();
+    match bra {
+        SideDerivs::No => {}
+        SideDerivs::Combined => {
+            groups.push(vec![(0, true, 1), (0, false, 0), (1, false, 0)]);
+        }
+        SideDerivs::First => groups.push(vec![(0, true, 1), (0, false, 0)]),
+        SideDerivs::Both => {
+            groups.push(vec![(0, true, 1), (0, false, 0)]);
+            groups.push(vec![(1, true, 2), (1, false, 0)]);
+        }
+    }
+    match ket {
+        SideDerivs::No => {}
+        SideDerivs::Combined => {
+            groups.push(vec![(2, true, 3), (2, false, 0), (3, false, 0)]);
+        }
+        SideDerivs::First => groups.push(vec![(2, true, 3), (2, false, 0)]),
+        SideDerivs::Both => {
+            groups.push(vec![(2, true, 3), (2, false, 0)]);
+            groups.push(vec![(3, true, 4), (3, false, 0)]);
+        }
+    }
     let PassScratch {
         s,
         acc,
@@ -141,12 +209,59 @@ fn run(
         idx,
         sub,
         block,
-        tmp,
+        sel,
+        cacc,
     } = ps;
-    for (a, &on) in acc.iter_mut().zip(&wants) {
-        a.clear();
-        if on {
-            a.resize(nt, 0.0);
+    // each accumulator contracts only the targets its classes read: the sub-blocks
+    // e ∈ [lc0, lc0+lc1], f ∈ [lc2, lc2+lc3] of the widened range (the same per-target
+    // sums, fewer of them)
+    let rect = |lc: [usize; 4]| {
+        (
+            span(e_lo, lc[0]),
+            span(e_lo, lc[0] + lc[1] + 1),
+            span(f_lo, lc[2]),
+            span(f_lo, lc[2] + lc[3] + 1),
+        )
+    };
+    let key = (l, bra, ket);
+    let selection = match sel.get(&key) {
+        Some(x) => x.clone(),
+        None => {
+            let mut rects: [Vec<(usize, usize, usize, usize)>; 5] = Default::default();
+            for terms in &groups {
+                for &(pos, up, ai) in terms {
+                    if !up && l[pos] == 0 {
+                        continue;
+                    }
+                    let mut lc = l;
+                    lc[pos] = if up { l[pos] + 1 } else { l[pos] - 1 };
+                    rects[ai].push(rect(lc));
+                }
+            }
+            let mut lists: [(Vec<u32>, Vec<u32>); 5] = Default::default();
+            for ai in 0..5 {
+                for t in 0..nt {
+                    let (fi, ei) = (t / plan.n_e, t % plan.n_e);
+                    if rects[ai]
+                        .iter()
+                        .any(|&(e0, e1, f0, f1)| ei >= e0 && ei < e1 && fi >= f0 && fi < f1)
+                    {
+                        lists[ai].0.push(t as u32);
+                        lists[ai].1.push(plan.targets[t]);
+                    }
+                }
+            }
+            let x = std::rc::Rc::new(lists);
+            sel.insert(key, x.clone());
+            x
+        }
+    };
+    for ai in 0..5 {
+        cacc[ai].clear();
+        acc[ai].clear();
+        if wants[ai] {
+            acc[ai].resize(nt, 0.0);
+            cacc[ai].resize(selection[ai].0.len(), 0.0);
         }
     }
     // per-primitive-pair weights
@@ -217,47 +332,35 @@ fn run(
             }
         }
         let v = s.vrr_slice();
-        contract(&plan.targets, None, v, st, nb, &mut acc[0]);
+        contract(&selection[0].1, None, v, st, nb, &mut cacc[0]);
         for i in 1..5 {
             if wants[i] {
-                contract(&plan.targets, Some(&w[i - 1][..nb]), v, st, nb, &mut acc[i]);
+                contract(
+                    &selection[i].1,
+                    Some(&w[i - 1][..nb]),
+                    v,
+                    st,
+                    nb,
+                    &mut cacc[i],
+                );
             }
         }
     }
-    // the classes: (position, raised?, accumulator)
-    let mut groups: Vec<Vec<(usize, bool, usize)>> = Vec::new();
-    match bra {
-        SideDerivs::No => {}
-        SideDerivs::Combined => {
-            groups.push(vec![(0, true, 1), (0, false, 0), (1, false, 0)]);
-        }
-        SideDerivs::First => groups.push(vec![(0, true, 1), (0, false, 0)]),
-        SideDerivs::Both => {
-            groups.push(vec![(0, true, 1), (0, false, 0)]);
-            groups.push(vec![(1, true, 2), (1, false, 0)]);
+    for ai in 0..5 {
+        for (&t, &x) in selection[ai].0.iter().zip(&cacc[ai]) {
+            acc[ai][t as usize] = x;
         }
     }
-    match ket {
-        SideDerivs::No => {}
-        SideDerivs::Combined => {
-            groups.push(vec![(2, true, 3), (2, false, 0), (3, false, 0)]);
-        }
-        SideDerivs::First => groups.push(vec![(2, true, 3), (2, false, 0)]),
-        SideDerivs::Both => {
-            groups.push(vec![(2, true, 3), (2, false, 0)]);
-            groups.push(vec![(3, true, 4), (3, false, 0)]);
-        }
-    }
-    let nf = q.metas.map(|m| m.n_func);
-    let size: usize = nf.iter().product();
-    while out.len() < groups.len() {
-        out.push(Default::default());
-    }
+    let nc = l.map(n_cartesian);
+    let raw = |l: usize| ShellMeta {
+        l,
+        n_func: n_cartesian(l),
+        n_cart: n_cartesian(l),
+        transform: None,
+    };
+    let raws = l.map(raw);
     for (g, terms) in groups.iter().enumerate() {
-        for o in out[g].iter_mut() {
-            o.clear();
-            o.resize(size, 0.0);
-        }
+        out[g] = [0.0; 3];
         for &(pos, up, ai) in terms {
             if !up && l[pos] == 0 {
                 continue;
@@ -273,32 +376,32 @@ fn run(
             for fi in f0..f1 {
                 sub.extend_from_slice(&src[fi * plan.n_e + e0..fi * plan.n_e + e1]);
             }
-            let raw = ShellMeta {
-                l: lc[pos],
-                n_func: n_cartesian(lc[pos]),
-                n_cart: n_cartesian(lc[pos]),
-                transform: None,
-            };
-            let mut metas = q.metas;
-            metas[pos] = &raw;
-            let mut dims = nf;
-            dims[pos] = raw.n_func;
+            let changed = raw(lc[pos]);
+            let mut metas = [&raws[0], &raws[1], &raws[2], &raws[3]];
+            metas[pos] = &changed;
+            let mut dims = nc;
+            dims[pos] = changed.n_func;
             let len: usize = dims.iter().product();
             block.clear();
             block.resize(len, 0.0);
-            let ab = q.pb.ab;
-            let cd = q.pk.ab;
-            finish(metas, &sub[..n_e * (f1 - f0)], ab, cd, n_e, block, s);
-            let maps = if up {
-                &q.maps[pos].plus
-            } else {
-                &q.maps[pos].minus
-            };
+            finish(
+                metas,
+                &sub[..n_e * (f1 - f0)],
+                q.pb.ab,
+                q.pk.ab,
+                n_e,
+                block,
+                s,
+            );
+            let m = q.maps[pos];
             for (k, o) in out[g].iter_mut().enumerate() {
-                transform_axis(block, &dims, pos, &maps[k], nf[pos], tmp);
-                for (x, y) in o.iter_mut().zip(tmp.iter()) {
-                    *x += y;
-                }
+                *o += if up {
+                    let list = m.raised[k].iter().map(|&(a, b)| (a, b, 1.0));
+                    gather_dot(gamma_c, block, dims, pos, nc[pos], list)
+                } else {
+                    let list = m.lowered[k].iter().copied();
+                    gather_dot(gamma_c, block, dims, pos, nc[pos], list)
+                };
             }
         }
     }
