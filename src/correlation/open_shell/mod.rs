@@ -11,7 +11,11 @@
 
 pub mod ccsd;
 pub mod reference;
+pub mod spin_blocks;
+pub mod spin_system;
 pub mod triples;
+pub mod uccsd;
+pub mod utriples;
 
 #[cfg(test)]
 mod tests;
