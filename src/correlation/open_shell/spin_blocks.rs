@@ -130,28 +130,37 @@ impl Blocked {
         self.dot(self).sqrt()
     }
 
-    /// The stored blocks of `template`'s spin masks, in mask order, joined (missing = 0).
-    pub fn flatten_like(&self, template: &Blocked) -> Vec<f64> {
+    /// The blocks of these masks, joined (each must be stored).
+    pub fn flatten_masks(&self, masks: &[usize]) -> Vec<f64> {
         let mut out = Vec::new();
-        for (mask, t) in template.blocks.iter().enumerate() {
-            if let Some(t) = t {
-                match &self.blocks[mask] {
-                    Some(b) => out.extend_from_slice(&b.data),
-                    None => out.extend(std::iter::repeat(0.0).take(t.data.len())),
-                }
-            }
+        for &m in masks {
+            out.extend_from_slice(&self.blocks[m].as_ref().expect("block").data);
         }
         out
     }
 
-    /// Inverse of `flatten_like` with self as the template.
-    pub fn fill_from(&mut self, x: &[f64]) {
+    /// Inverse of `flatten_masks`.
+    pub fn fill_masks(&mut self, masks: &[usize], x: &[f64]) {
         let mut k = 0;
-        for b in self.blocks.iter_mut().flatten() {
+        for &m in masks {
+            let b = self.blocks[m].as_mut().expect("block");
             let n = b.data.len();
             b.data.copy_from_slice(&x[k..k + n]);
             k += n;
         }
+    }
+
+    /// A 4-index tensor antisymmetric in its first and in its last pair: set the blocks
+    /// βα·· and ··βα (masks 0110, 1001, 0101) from the αβαβ block (mask 1010).
+    pub fn restore_mixed_images(&mut self) {
+        let ab = self.blocks[0b1010].clone().expect("αβαβ block");
+        let mut x = ab.permute(&[0, 1, 3, 2]);
+        x.scale(-1.0);
+        self.blocks[0b0110] = Some(x);
+        let mut x = ab.permute(&[1, 0, 2, 3]);
+        x.scale(-1.0);
+        self.blocks[0b1001] = Some(x);
+        self.blocks[0b0101] = Some(ab.permute(&[1, 0, 3, 2]));
     }
 }
 

@@ -337,14 +337,7 @@ impl SpinBlockedSystem {
             out.blocks[mask] = Some(r);
         }
         // βα blocks from antisymmetry of the αβ one
-        let ab = out.blocks[0b1010].clone().unwrap();
-        let mut x = ab.permute(&[0, 1, 3, 2]);
-        x.scale(-1.0);
-        out.blocks[0b0110] = Some(x);
-        let mut x = ab.permute(&[1, 0, 2, 3]);
-        x.scale(-1.0);
-        out.blocks[0b1001] = Some(x);
-        out.blocks[0b0101] = Some(ab.permute(&[1, 0, 3, 2]));
+        out.restore_mixed_images();
         out
     }
 }

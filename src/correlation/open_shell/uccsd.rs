@@ -10,7 +10,9 @@
 //! or batches rebuilt from the factors); the rest of W_abef is contracted piece by piece.
 //!
 //! Memory (f64 words, n2 = Σ over the t2 spin blocks = o_α²v_α² + o_β²v_β² + 4 o_α o_β v_α
-//! v_β): amplitudes, residuals, intermediates and temporaries ≈ 16 n2, DIIS 2 × size × n2.
+//! v_β): amplitudes, residuals, intermediates and temporaries ≈ 16 n2; DIIS keeps only the
+//! distinct blocks αα, ββ, αβ (u2 = o_α²v_α² + o_β²v_β² + o_α o_β v_α v_β words; the other
+//! αβ images follow by antisymmetry), 2 × size × u2.
 
 use super::spin_blocks::{beinsum, Blocked};
 use super::spin_system::SpinBlockedSystem;
@@ -34,10 +36,20 @@ pub fn t2_words(o: [usize; 2], v: [usize; 2]) -> f64 {
     oa * oa * va * va + ob * ob * vb * vb + 4.0 * oa * ob * va * vb
 }
 
+/// Words of the distinct t2 blocks (αα, ββ, αβ).
+pub fn t2_unique_words(o: [usize; 2], v: [usize; 2]) -> f64 {
+    let (oa, ob, va, vb) = (o[0] as f64, o[1] as f64, v[0] as f64, v[1] as f64);
+    oa * oa * va * va + ob * ob * vb * vb + oa * ob * va * vb
+}
+
 /// Words of the ground-state stage (see the module text).
 pub fn peak_words(o: [usize; 2], v: [usize; 2], diis_size: usize) -> f64 {
-    (16.0 + 2.0 * diis_size as f64) * t2_words(o, v)
+    16.0 * t2_words(o, v) + 2.0 * diis_size as f64 * t2_unique_words(o, v)
 }
+
+/// The distinct blocks of t1 (α, β) and t2 (αα, ββ, αβ) that DIIS extrapolates.
+const T1_MASKS: [usize; 2] = [0b00, 0b11];
+const T2_MASKS: [usize; 3] = [0b0000, 0b1111, 0b1010];
 
 fn p_ab(x: &Blocked) -> Blocked {
     let mut r = x.clone();
@@ -203,7 +215,7 @@ pub fn solve(
     let mut e_old = energy(sys, &t1, &t2);
     let mut diis = VectorDiis::new(opts.diis_size);
     let mut de = f64::INFINITY;
-    let (fd1, fd2) = (d1.flatten_like(&t1), d2.flatten_like(&t2));
+    let (fd1, fd2) = (d1.flatten_masks(&T1_MASKS), d2.flatten_masks(&T2_MASKS));
     for it in 1..=opts.max_iter {
         let (r1, r2) = residual(sys, &t1, &t2);
         let rnorm = (r1.dot(&r1) + r2.dot(&r2)).sqrt();
@@ -221,17 +233,18 @@ pub fn solve(
                 residual_norm: rnorm,
             });
         }
-        let (fr1, fr2) = (r1.flatten_like(&t1), r2.flatten_like(&t2));
+        let (fr1, fr2) = (r1.flatten_masks(&T1_MASKS), r2.flatten_masks(&T2_MASKS));
         drop((r1, r2));
         let n1 = fr1.len();
         let mut step = Vec::with_capacity(n1 + fr2.len());
         step.extend(fr1.iter().zip(&fd1).map(|(r, d)| r / d));
         step.extend(fr2.iter().zip(&fd2).map(|(r, d)| r / d));
-        let mut x = t1.flatten_like(&t1);
-        x.extend(t2.flatten_like(&t2));
+        let mut x = t1.flatten_masks(&T1_MASKS);
+        x.extend(t2.flatten_masks(&T2_MASKS));
         let xn = diis.extrapolate(x, step);
-        t1.fill_from(&xn[..n1]);
-        t2.fill_from(&xn[n1..]);
+        t1.fill_masks(&T1_MASKS, &xn[..n1]);
+        t2.fill_masks(&T2_MASKS, &xn[n1..]);
+        t2.restore_mixed_images();
         let e_new = energy(sys, &t1, &t2);
         de = e_new - e_old;
         log(&format!(
