@@ -23,7 +23,7 @@ use serde::Serialize;
 use crate::basis::BasisSet;
 use crate::chem::Molecule;
 use crate::correlation::memory::expected_cholesky_vectors;
-use crate::correlation::open_shell::{estimate_bytes, CcsdOptions};
+use crate::correlation::open_shell::{estimate, CcsdOptions};
 use crate::error::Result;
 
 use super::delta_cc::DeltaCc;
@@ -99,7 +99,11 @@ pub fn cc_size(n_basis: usize, n_electrons: usize) -> (f64, f64) {
     let v = (2 * n_basis).saturating_sub(n_electrons);
     let naux = expected_cholesky_vectors(n_basis, CHOLESKY_THRESHOLD);
     let diis = CcsdOptions::default().diis_size;
-    let peak = estimate_bytes(naux, [n_basis, n_basis], o, v, diis, true);
+    let (oa, ob) = (n_electrons.div_ceil(2), n_electrons / 2);
+    let ov = [oa, ob];
+    let vv = [n_basis.saturating_sub(oa), n_basis.saturating_sub(ob)];
+    // the smallest peak: the ladder integrals rebuilt in batches
+    let peak = estimate(naux, [n_basis, n_basis], ov, vv, diis, true, 0.0).peak_bytes;
     (peak, (o as f64).powi(3) * (v as f64).powi(4))
 }
 

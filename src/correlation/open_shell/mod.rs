@@ -1,17 +1,26 @@
-//! Coupled cluster on open-shell and other non-closed-shell references: spin-orbital CCSD
-//! and (T) on UHF, ROHF (semicanonical) and core-hole (MOM) determinants.
+//! Coupled cluster on open-shell and other non-closed-shell references: CCSD and (T) on
+//! UHF, ROHF (semicanonical) and core-hole (MOM) determinants, in spin blocks.
 //!
-//! Files: reference.rs (orbital selection, Fock, semicanonical rotation, ⟨pq||rs⟩ blocks
-//! from the three-index factors of two_electron.rs), ccsd.rs (amplitude equations),
-//! triples.rs ((T)), this file (memory plan, refusal, the one entry `run`).
+//! Files: reference.rs (orbital selection, Fock, semicanonical rotation; also the
+//! spin-orbital ⟨pq||rs⟩ blocks of the check code), spin_blocks.rs (tensors held as their
+//! spin-conserving blocks, contraction over blocks), spin_system.rs (integral blocks of each
+//! spin case and the particle–particle ladder from the factors), uccsd.rs (amplitude
+//! equations), utriples.rs ((T)), this file (memory plan, refusal, the one entry `run`).
+//! ccsd.rs and triples.rs are the spin-orbital form of the same equations (every index over
+//! α and β spin orbitals, a v⁴ block 16× the spatial one): kept as the independent check of
+//! the spin-blocked code in tests (tests.rs), not used by `run`.
 //!
-//! Spin orbitals make every block twice as long per index as the closed-shell code, so the
-//! v⁴ block (16× the spatial one) bounds the size: a few dozen basis functions per
-//! molecule in practice (memory plan below), enough for core holes of small molecules.
+//! Size: the v⁴ ladder integrals are held (3 spatial v⁴ blocks) when they fit the budget,
+//! otherwise rebuilt every iteration in batches from the factors, so the memory is bounded
+//! by the o²v² amplitudes and the o v³ blocks.
 
 pub mod ccsd;
 pub mod reference;
+pub mod spin_blocks;
+pub mod spin_system;
 pub mod triples;
+pub mod uccsd;
+pub mod utriples;
 
 #[cfg(test)]
 mod tests;
@@ -90,30 +99,60 @@ impl OpenShellResult {
     }
 }
 
-/// Peak estimate in bytes for a job of this size: the reference stage, then the CCSD stage
-/// (integral blocks + amplitudes/intermediates/DIIS), then (T) (blocks + amplitudes + one
-/// task's arrays per thread). Formulas in reference.rs, ccsd.rs and triples.rs.
-pub fn estimate_bytes(
+/// Peak estimate of a job of this size and whether the ladder integrals are held.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct MemoryPlan {
+    pub peak_bytes: f64,
+    pub hold_ladder: bool,
+}
+
+/// Peak estimate for `naux` factors, `m` kept orbitals per spin (frozen included), `o`/`v`
+/// active occupied/virtual orbitals per spin: the reference stage (prepared factors, active
+/// factors, integral blocks and the largest block's temporaries), the CCSD stage (factors,
+/// blocks, the held ladder integrals or one rebuilt batch, amplitudes/intermediates/DIIS)
+/// and (T) (factors, blocks, t1/t2 and one task's arrays per thread). The ladder integrals
+/// are held when that peak fits `budget` (bytes). Formulas in spin_system.rs, uccsd.rs and
+/// utriples.rs.
+pub fn estimate(
     naux: usize,
     m: [usize; 2],
-    o: usize,
-    v: usize,
+    o: [usize; 2],
+    v: [usize; 2],
     diis: usize,
     triples: bool,
-) -> f64 {
-    let (of, vf) = (o as f64, v as f64);
-    let blocks =
-        of.powi(4) + of.powi(3) * vf + 2.0 * of * of * vf * vf + of * vf.powi(3) + vf.powi(4);
-    let reference = reference::peak_words(naux, m, o, v);
-    let cc = blocks + ccsd::peak_words(o, v, diis);
+    budget: f64,
+) -> MemoryPlan {
+    let nq = naux as f64;
+    let (omax, vmax) = (o[0].max(o[1]) as f64, v[0].max(v[1]) as f64);
+    let sq = |x: usize| (x * x) as f64;
+    let fac_prep = nq * (sq(m[0]) + sq(m[1]));
+    let fac = nq * (sq(o[0] + v[0]) + sq(o[1] + v[1]));
+    let blocks = spin_system::block_words(o, v);
+    let reference =
+        (fac_prep + fac).max(fac + blocks + 2.0 * omax * vmax.powi(3) + nq * vmax * vmax);
+    let amplitudes = uccsd::peak_words(o, v, diis);
+    let batch = vmax.powi(4).min((1u64 << 25) as f64 + vmax.powi(3));
+    let batched = fac + blocks + 3.0 * batch + amplitudes;
+    let held = fac + blocks + spin_system::ladder_words(v) + amplitudes.max(2.0 * vmax.powi(4));
     let t = if triples {
-        blocks
-            + 2.0 * of * of * vf * vf
-            + rayon::current_num_threads() as f64 * triples::task_words(v)
+        fac + blocks
+            + 2.0 * uccsd::t2_words(o, v)
+            + rayon::current_num_threads() as f64 * utriples::task_words(vmax as usize)
     } else {
         0.0
     };
-    8.0 * reference.max(cc).max(t)
+    let with_store = 8.0 * reference.max(held).max(t);
+    if with_store <= budget {
+        MemoryPlan {
+            peak_bytes: with_store,
+            hold_ladder: true,
+        }
+    } else {
+        MemoryPlan {
+            peak_bytes: 8.0 * reference.max(batched).max(t),
+            hold_ladder: false,
+        }
+    }
 }
 
 /// Frozen orbitals per spin for these options.
@@ -134,7 +173,7 @@ pub fn plan(
     basis: &BasisSet,
     wfn: &Wavefunction,
     opts: &OpenShellOptions,
-) -> Result<(f64, Resolved)> {
+) -> Result<(MemoryPlan, Resolved)> {
     let how = two_electron::resolve(&opts.two_electron, mol, basis, opts.cholesky_threshold)?;
     let nf = frozen_counts(mol, wfn, &opts.frozen_core);
     let sel = Selection {
@@ -146,13 +185,18 @@ pub fn plan(
         lists[0].0.len() + lists[0].1.len(),
         lists[1].0.len() + lists[1].1.len(),
     ];
-    let o = lists[0].0.len() + lists[1].0.len() - nf[0] - nf[1];
-    let v = lists[0].1.len() + lists[1].1.len();
+    let oo = [
+        lists[0].0.len().saturating_sub(nf[0]),
+        lists[1].0.len().saturating_sub(nf[1]),
+    ];
+    let vv = [lists[0].1.len(), lists[1].1.len()];
+    let (o, v) = (oo[0] + oo[1], vv[0] + vv[1]);
     let naux = how.expected_rank(basis.n_basis);
-    let peak = estimate_bytes(naux, m, o, v, opts.ccsd.diis_size, opts.triples);
     let budget = opts
         .memory_budget
         .unwrap_or_else(|| 0.8 * crate::system::available_bytes());
+    let mp = estimate(naux, m, oo, vv, opts.ccsd.diis_size, opts.triples, budget);
+    let peak = mp.peak_bytes;
     if peak > budget {
         let hint = if opts.triples {
             "try CCSD without (T), ΔMP2 or ΔSCF, or a smaller basis"
@@ -168,7 +212,7 @@ pub fn plan(
             crate::system::format_bytes(budget)
         )));
     }
-    Ok((peak, how))
+    Ok((mp, how))
 }
 
 /// CCSD (and (T)) energy of `wfn` (UHF, ROHF, or RHF treated as UHF).
@@ -184,7 +228,8 @@ pub fn run(
             "the SCF reference is not converged; coupled cluster on it would be meaningless",
         ));
     }
-    let (peak, how) = plan(mol, basis, wfn, opts)?;
+    let (mp, how) = plan(mol, basis, wfn, opts)?;
+    let peak = mp.peak_bytes;
     let nf = frozen_counts(mol, wfn, &opts.frozen_core);
     let sel = Selection {
         n_frozen: nf,
@@ -196,20 +241,38 @@ pub fn run(
         .unwrap_or_else(|| 0.8 * crate::system::available_bytes());
     let npair = (basis.n_basis * (basis.n_basis + 1) / 2) as f64;
     let max_chol = ((budget - peak).max(0.0) / (8.0 * npair) / 2.0) as usize;
-    let (sys, note) = reference::build(basis, &h, wfn, &sel, &how, max_chol.max(1), log)?;
+    let (mut sys, note) = spin_system::build(
+        basis,
+        &h,
+        wfn,
+        &sel,
+        &how,
+        max_chol.max(1),
+        mp.hold_ladder,
+        log,
+    )?;
+    let (nocc, nvir) = (sys.o[0] + sys.o[1], sys.v[0] + sys.v[1]);
     log(&format!(
-        "open-shell CCSD: {} correlated occupied and {} virtual spin orbitals, frozen {}α/{}β; \
-         memory estimate {}",
-        sys.nocc,
-        sys.nvir,
+        "open-shell CCSD (spin blocks): {}α+{}β correlated occupied and {}α+{}β virtual \
+         orbitals, frozen {}α/{}β; ladder integrals {}; memory estimate {}",
+        sys.o[0],
+        sys.o[1],
+        sys.v[0],
+        sys.v[1],
         nf[0],
         nf[1],
+        if mp.hold_ladder {
+            "held"
+        } else {
+            "rebuilt in batches each iteration"
+        },
         crate::system::format_bytes(peak)
     ));
-    let cc = ccsd::solve(&sys, &opts.ccsd, log)?;
+    let cc = uccsd::solve(&sys, &opts.ccsd, log)?;
+    sys.ladder_store = None;
     let e_t = opts
         .triples
-        .then(|| triples::correction(&sys, &cc.t1, &cc.t2));
+        .then(|| utriples::correction(&sys, &cc.t1, &cc.t2));
     let mut notes = vec![note];
     if sys.semicanonical {
         notes.push(
@@ -224,8 +287,8 @@ pub fn run(
         e_triples: e_t,
         iterations: cc.iterations,
         n_frozen: nf,
-        nocc: sys.nocc,
-        nvir: sys.nvir,
+        nocc,
+        nvir,
         semicanonical: sys.semicanonical,
         peak_estimate_bytes: peak,
         notes,

@@ -99,11 +99,11 @@ pub fn orbital_lists(wfn: &Wavefunction, sel: &Selection) -> [(Vec<usize>, Vec<u
 }
 
 /// Per-spin factors over [occupied (all), kept virtual] as a dense [Q][p][q] array.
-struct SpinFactors {
-    naux: usize,
-    m: usize,
-    nocc: usize,
-    b: Vec<f64>,
+pub(super) struct SpinFactors {
+    pub(super) naux: usize,
+    pub(super) m: usize,
+    pub(super) nocc: usize,
+    pub(super) b: Vec<f64>,
 }
 
 fn columns(c: &bandcast_linalg::Mat<f64>, cols: &[usize]) -> Vec<f64> {
@@ -263,9 +263,19 @@ fn semicanonical(f: &[f64], m: usize, o: usize) -> (Vec<f64>, Vec<f64>) {
     (u, diag)
 }
 
-/// Build the spin-orbital system for `wfn` (UHF or ROHF; an RHF wavefunction is treated
-/// as UHF with equal spins).
-pub fn build(
+/// Per-spin factors and Fock matrices over each spin's [occupied (all), kept virtual]
+/// orbitals (semicanonical for ROHF), before the frozen core is removed.
+pub(super) struct Prepared {
+    pub(super) fac: Vec<SpinFactors>,
+    pub(super) fock: Vec<Vec<f64>>,
+    pub(super) e_det: Option<f64>,
+    pub(super) rohf: bool,
+    pub(super) note: String,
+}
+
+/// Factors, Fock matrices and (ROHF) semicanonical rotation, shared by the spin-orbital
+/// and the spin-blocked systems.
+pub(super) fn prepare(
     basis: &BasisSet,
     h_ao: &bandcast_linalg::Mat<f64>,
     wfn: &Wavefunction,
@@ -273,7 +283,7 @@ pub fn build(
     how: &Resolved,
     max_cholesky_vectors: usize,
     log: &mut dyn FnMut(&str),
-) -> Result<(SpinOrbitalSystem, String)> {
+) -> Result<Prepared> {
     let n = basis.n_basis;
     let lists = orbital_lists(wfn, sel);
     let mut fac = Vec::new();
@@ -340,6 +350,43 @@ pub fn build(
             fock.push(f);
         }
     }
+    for s in 0..2 {
+        let nf = sel.n_frozen[s];
+        if nf > fac[s].nocc {
+            return Err(Error::input(format!(
+                "{nf} frozen orbitals requested but spin {} has only {} occupied",
+                if s == 0 { "α" } else { "β" },
+                fac[s].nocc
+            )));
+        }
+    }
+    Ok(Prepared {
+        fac,
+        fock,
+        e_det,
+        rohf,
+        note,
+    })
+}
+
+/// Build the spin-orbital system for `wfn` (UHF or ROHF; an RHF wavefunction is treated
+/// as UHF with equal spins).
+pub fn build(
+    basis: &BasisSet,
+    h_ao: &bandcast_linalg::Mat<f64>,
+    wfn: &Wavefunction,
+    sel: &Selection,
+    how: &Resolved,
+    max_cholesky_vectors: usize,
+    log: &mut dyn FnMut(&str),
+) -> Result<(SpinOrbitalSystem, String)> {
+    let Prepared {
+        fac,
+        fock,
+        e_det,
+        rohf,
+        note,
+    } = prepare(basis, h_ao, wfn, sel, how, max_cholesky_vectors, log)?;
     // Active spin orbitals: (spin, index within that spin's kept list).
     let mut occ_so = Vec::new();
     let mut vir_so = Vec::new();

@@ -1,0 +1,178 @@
+//! The perturbative triples correction (T) on a spin-blocked CCSD solution.
+//!
+//! The spin-orbital formula of triples.rs (Raghavachari, Trucks, Pople & Head-Gordon, Chem.
+//! Phys. Lett. 157 (1989) 479; with the f_ia t_jk^bc term of Watts, Gauss & Bartlett,
+//! J. Chem. Phys. 98 (1993) 8718, for ROHF in semicanonical orbitals), evaluated in spin
+//! blocks:
+//! - occupied triples i < j < k run over spin orbitals (α, then β); a, b, c only over the one
+//!   spin pattern (ααα, ααβ, αββ or βββ, α first) that conserves the spin of i, j, k. The
+//!   summand t_c D (t_c + t_d) is unchanged by a permutation of a, b, c (both factors change
+//!   sign together), so the other orderings of the pattern (αβα, βαα, …) count through a
+//!   multiplicity 3.
+//! - t(ijk,abc) = P(a/bc) Y(abc), Y = P(i/jk) raw; for the pattern (p0,p1,p2) this needs Y
+//!   of the patterns (p0,p1,p2), (p1,p0,p2) and (p2,p1,p0); each raw term is one matrix
+//!   product over spin blocks and is skipped when spin makes its blocks zero.
+//!
+//! Work: of order o³v⁴ (a few v⁴ products per occupied triple). Memory: the blocks and t2
+//! are already held; each parallel task holds at most 12 v³ arrays (`task_words`).
+
+use rayon::prelude::*;
+
+use super::spin_blocks::{conserving, Blocked};
+use super::spin_system::SpinBlockedSystem;
+use crate::correlation::tensor::gemm_rm;
+
+/// Words per parallel task (v = the larger spin's virtual count).
+pub fn task_words(v: usize) -> f64 {
+    12.0 * (v * v * v) as f64
+}
+
+fn mask4(s: [usize; 4]) -> usize {
+    s[0] | (s[1] << 1) | (s[2] << 2) | (s[3] << 3)
+}
+
+/// Row (p, q) of a 4-index block [p,q,·,·] as a slice, if the block is stored.
+fn row<'a>(t: &'a Blocked, s: [usize; 4], p: usize, q: usize) -> Option<&'a [f64]> {
+    let m = mask4(s);
+    if !conserving(m, 4) {
+        return None;
+    }
+    let b = t.block(m)?;
+    let w = b.shape[2] * b.shape[3];
+    let off = (p * b.shape[1] + q) * w;
+    Some(&b.data[off..off + w])
+}
+
+/// Slice [p,·,·,·] of a 4-index block.
+fn slab<'a>(t: &'a Blocked, s: [usize; 4], p: usize) -> Option<&'a [f64]> {
+    let m = mask4(s);
+    if !conserving(m, 4) {
+        return None;
+    }
+    let b = t.block(m)?;
+    let w = b.shape[1] * b.shape[2] * b.shape[3];
+    Some(&b.data[p * w..(p + 1) * w])
+}
+
+/// E(T) in hartree.
+pub fn correction(sys: &SpinBlockedSystem, t1: &Blocked, t2: &Blocked) -> f64 {
+    let (o, v) = (sys.o, sys.v);
+    let occ: Vec<(usize, usize)> = (0..2)
+        .flat_map(|s| (0..o[s]).map(move |i| (s, i)))
+        .collect();
+    let mut triples = Vec::new();
+    for i in 0..occ.len() {
+        for j in i + 1..occ.len() {
+            for k in j + 1..occ.len() {
+                triples.push((occ[i], occ[j], occ[k]));
+            }
+        }
+    }
+    type So = (usize, usize);
+    // raw_q(I,J,K)[a,b,c], connected (into xc) and disconnected (into xd), accumulated × sgn
+    let raw = |q: [usize; 3], ii: So, jj: So, kk: So, sgn: f64, xc: &mut [f64], xd: &mut [f64]| {
+        let (va, vb, vc) = (v[q[0]], v[q[1]], v[q[2]]);
+        let bc = vb * vc;
+        // Σ_e t_JK^ae (−⟨Ie||bc⟩)
+        for se in 0..2 {
+            let (Some(t), Some(w)) = (
+                row(t2, [jj.0, kk.0, q[0], se], jj.1, kk.1),
+                slab(&sys.ovvv, [ii.0, se, q[1], q[2]], ii.1),
+            ) else {
+                continue;
+            };
+            gemm_rm(xc, true, t, w, va, v[se], bc, -sgn);
+        }
+        // − Σ_m ⟨JK||ma⟩ t_Im^bc
+        for sm in 0..2 {
+            let (Some(g), Some(t)) = (
+                row(&sys.ooov, [jj.0, kk.0, sm, q[0]], jj.1, kk.1),
+                slab(t2, [ii.0, sm, q[1], q[2]], ii.1),
+            ) else {
+                continue;
+            };
+            let om = o[sm];
+            let mut gt = vec![0.0; va * om];
+            for m in 0..om {
+                for a in 0..va {
+                    gt[a * om + m] = g[m * va + a];
+                }
+            }
+            gemm_rm(xc, true, &gt, t, va, om, bc, -sgn);
+        }
+        // t_I^a ⟨JK||bc⟩ + f_Ia t_JK^bc
+        if ii.0 == q[0] {
+            let (Some(w), Some(t)) = (
+                row(&sys.oovv, [jj.0, kk.0, q[1], q[2]], jj.1, kk.1),
+                row(t2, [jj.0, kk.0, q[1], q[2]], jj.1, kk.1),
+            ) else {
+                return;
+            };
+            let t1b = t1.block(ii.0 * 3).unwrap();
+            let fb = sys.fov.block(ii.0 * 3).unwrap();
+            for a in 0..va {
+                let ta = sgn * t1b.data[ii.1 * va + a];
+                let fa = sgn * fb.data[ii.1 * va + a];
+                let out = &mut xd[a * bc..(a + 1) * bc];
+                for n in 0..bc {
+                    out[n] += ta * w[n] + fa * t[n];
+                }
+            }
+        }
+    };
+    let sum: f64 = triples
+        .par_iter()
+        .map(|&(ii, jj, kk)| {
+            let nb = ii.0 + jj.0 + kk.0;
+            let p: [usize; 3] = match nb {
+                0 => [0, 0, 0],
+                1 => [0, 0, 1],
+                2 => [0, 1, 1],
+                _ => [1, 1, 1],
+            };
+            let mult = if nb == 0 || nb == 3 { 1.0 } else { 3.0 };
+            let pats = [p, [p[1], p[0], p[2]], [p[2], p[1], p[0]]];
+            // Y of each needed pattern (connected, disconnected)
+            let mut ys: Vec<([usize; 3], Vec<f64>, Vec<f64>)> = Vec::new();
+            for q in pats {
+                if ys.iter().any(|y| y.0 == q) {
+                    continue;
+                }
+                let n = v[q[0]] * v[q[1]] * v[q[2]];
+                let (mut yc, mut yd) = (vec![0.0; n], vec![0.0; n]);
+                for (sgn, (a, b, c)) in [
+                    (1.0, (ii, jj, kk)),
+                    (-1.0, (jj, ii, kk)),
+                    (-1.0, (kk, jj, ii)),
+                ] {
+                    raw(q, a, b, c, sgn, &mut yc, &mut yd);
+                }
+                ys.push((q, yc, yd));
+            }
+            let get = |q: [usize; 3]| ys.iter().find(|y| y.0 == q).unwrap();
+            let (y0, y1, y2) = (get(pats[0]), get(pats[1]), get(pats[2]));
+            let (na, nb_, nc) = (v[p[0]], v[p[1]], v[p[2]]);
+            let fva = &sys.fv[p[0]];
+            let fvb = &sys.fv[p[1]];
+            let fvc = &sys.fv[p[2]];
+            let dijk = sys.fo[ii.0][ii.1] + sys.fo[jj.0][jj.1] + sys.fo[kk.0][kk.1];
+            let mut e = 0.0;
+            for a in 0..na {
+                for b in 0..nb_ {
+                    for c in 0..nc {
+                        // Y_p[a,b,c] − Y_p'[b,a,c] − Y_p''[c,b,a]
+                        let n0 = (a * nb_ + b) * nc + c;
+                        let n1 = (b * na + a) * nc + c;
+                        let n2 = (c * nb_ + b) * na + a;
+                        let wc = y0.1[n0] - y1.1[n1] - y2.1[n2];
+                        let wd = y0.2[n0] - y1.2[n1] - y2.2[n2];
+                        let d = dijk - fva[a] - fvb[b] - fvc[c];
+                        e += wc * (wc + wd) / d;
+                    }
+                }
+            }
+            mult * e
+        })
+        .sum();
+    sum / 6.0
+}
