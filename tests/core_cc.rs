@@ -132,3 +132,83 @@ fn co_minus_methane_c1s_shift_dccsd_t() {
         a - b
     );
 }
+
+/// The recommended Ne 1s value (`binding_ev` = ΔCCSD(T) + relativistic correction, the
+/// default route) against experiment, 870.2 eV (X-ray Data Booklet, docs/reference-data.md
+/// §4). The correction is added once (binding − ΔCCSD(T) = the law at the ΔSCF value,
+/// regression) and is positive. Measured in cc-pVDZ (uncontracted s/p): 870.28 + 1.01 =
+/// 871.29 eV, +1.09 eV: the 0.2 eV target of issue 16 is NOT met (docs/core-levels.md,
+/// "Accuracy against experiment"); the bound here is the measured error plus 0.1 eV, so a
+/// correction applied twice (+2.1 eV) or with the wrong sign (−0.9 eV) fails.
+#[test]
+fn neon_1s_recommended_value_with_relativistic_correction() {
+    let ne = load("neon");
+    let r = run_with(
+        &ne,
+        CoreOptions {
+            thorough: false,
+            cc: Some(DeltaCc::CcsdT),
+            relativistic: true,
+            ..CoreOptions::default()
+        },
+    );
+    let l = &r.core_levels[0];
+    let t = l.cc.dccsdt_ev.unwrap();
+    let rel = l.relativistic_correction_ev.unwrap();
+    assert!(rel > 0.9 && rel < 1.1, "{rel}");
+    assert!((l.cc.binding_ev - t - rel).abs() < 1e-9);
+    assert!((rel - bandcast::core_level::relativistic::correction_ev(l.dscf_ev)).abs() < 1e-12);
+    let err = l.cc.binding_ev - 870.2;
+    assert!(err > 0.0 && err < 1.2, "Ne 1s error {err}");
+}
+
+/// N2 N 1s (409.9 eV, X-ray Data Booklet) and CH4 C 1s (290.8 eV, Thomas 1970; both
+/// docs/reference-data.md §4) in the default route, ΔCCSD(T) + relativistic correction.
+/// Measured +0.73 and +0.68 eV: the 0.2 eV target is not met; the bound is the measured
+/// error plus 0.1 eV (a guard against regressions, not the target).
+#[test]
+#[ignore = "about 4 minutes (N2 115 s, CH4 130 s wall on a loaded machine); figures in docs/core-levels.md"]
+fn nitrogen_and_methane_1s_recommended_values() {
+    for (name, z, exp, bound) in [("nitrogen", 7, 409.9, 0.85), ("methane", 6, 290.8, 0.8)] {
+        let r = run_with(
+            &load(name),
+            CoreOptions {
+                targets: TargetSelection::Element(z),
+                thorough: false,
+                cc: Some(DeltaCc::CcsdT),
+                relativistic: true,
+                ..CoreOptions::default()
+            },
+        );
+        let err = r.core_levels[0].cc.binding_ev - exp;
+        assert!(err > 0.0 && err < bound, "{name}: error {err}");
+    }
+}
+
+/// CO2 − CH4 C 1s shift, ΔCCSD(T), default basis: 6.89 eV (Jolly, Bomben & Eyermann, At.
+/// Data Nucl. Data Tables 31 (1984) 433, from memory, minus Thomas 1970; docs/reference-
+/// data.md §4). Measured 6.63 eV (−0.26): the issue's 0.15 eV target is NOT met; this test
+/// holds the measured 0.3 eV.
+#[test]
+#[ignore = "about 7 minutes (CO2 226 CPU-s, CH4 130 s on a loaded machine); figures in docs/core-levels.md"]
+fn co2_minus_methane_c1s_shift_dccsd_t_within_0_3_ev() {
+    let opts = CoreOptions {
+        targets: TargetSelection::Element(6),
+        thorough: false,
+        cc: Some(DeltaCc::CcsdT),
+        ..CoreOptions::default()
+    };
+    let a = run_with(&load("carbon-dioxide"), opts.clone()).core_levels[0]
+        .cc
+        .dccsdt_ev
+        .unwrap();
+    let b = run_with(&load("methane"), opts).core_levels[0]
+        .cc
+        .dccsdt_ev
+        .unwrap();
+    assert!(
+        (a - b - 6.89).abs() < 0.3,
+        "CO2 {a} CH4 {b}: shift {}",
+        a - b
+    );
+}

@@ -37,6 +37,7 @@
 //! | cation.rs | the SCF starts for one hole (MOM, IMOM, ROHF) |
 //! | shared_eri.rs | integrals shared by the bases of different holes |
 //! | relativistic.rs | the optional relativistic correction of 1s levels |
+//! | pauli.rs | first-order mass-velocity + Darwin energy at one nucleus (checks relativistic.rs) |
 //! | shell.rs | which shell (1s, 2s, 2p) each atom gets, by request or photon energy |
 //! | shell_hole.rs | the atom-localised 2s / 2p hole orbitals (principal axes for 2p) |
 //! | spin_orbit.rs | the 2p spin–orbit doublet from the three 2p-hole energies |
@@ -65,6 +66,7 @@ pub mod memory;
 pub mod neutrals;
 pub mod notes;
 pub mod options;
+pub mod pauli;
 pub mod plan;
 pub mod population;
 pub mod predict;
