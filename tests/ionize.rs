@@ -558,7 +558,7 @@ fn hydroxyl_radical_dccsd_t_lowest_cation_state_against_experiment() {
 /// ΔCCSD(T)). The hole in each band's orbital gives the lowest cation state of that
 /// symmetry (²B1, ²A1, ²B2); the hole weight must show the hole stayed.
 #[test]
-#[ignore = "three cation coupled-cluster runs in def2-TZVPP: several CPU-minutes; figures in docs/valence-methods.md"]
+#[ignore = "three cation coupled-cluster runs in def2-TZVPP: several CPU-minutes (1b1 alone 113 CPU-s); not yet run to the end, docs/valence-methods.md"]
 fn water_three_bands_dccsd_t_against_he_i_spectrum() {
     let m = mol(WATER);
     let b = basis(&m, "def2-TZVPP");
