@@ -469,23 +469,31 @@ fn neon_dccsd_t_def2_tzvpp_matches_krause_2015() {
     dccsd_t_homo(NEON, 1, "2p", 21.32107);
 }
 
-/// Four more light GW100 molecules of docs/reference-data.md §2. CO at the GW100 file's
-/// 1.283 Å: the benchmark values belong to that structure (our HF/def2-TZVPP −ε HOMO there,
-/// 15.37374 eV, matches the GW100 repository's 15.37373; at the experimental 1.1283 Å it is
-/// 15.09 and ΔCCSD(T) gives 13.92, not 14.209). Measured values and CPU times are in
+/// Water and N2 of docs/reference-data.md §2. Measured values and CPU times are in
 /// docs/valence-methods.md.
 #[test]
-#[ignore = "minutes per molecule on two cores (water 113 CPU-s); figures in docs/valence-methods.md"]
+#[ignore = "minutes per molecule on two cores (water 113 CPU-s, N2 346 CPU-s); figures in docs/valence-methods.md"]
 fn gw100_dccsd_t_def2_tzvpp_matches_krause_2015() {
     dccsd_t_homo(WATER, 1, "1b1", 12.565);
     dccsd_t_homo(NITROGEN, 2, "3σg", 15.4767);
+}
+
+/// CO at the GW100 file's 1.283 Å bond, where the published values belong (our
+/// HF/def2-TZVPP −ε HOMO there, 15.37374 eV, matches the GW100 repository's 15.37373). The
+/// 5σ-hole UHF cation does not converge at this bond; the ROHF cation gives 14.0339 eV
+/// against 14.209 (−0.175, outside 0.02; the 1π hole gives 15.476). Kept as a record of the
+/// open discrepancy (docs/valence-methods.md), expected to fail.
+#[test]
+#[ignore = "fails by −0.175 eV (open discrepancy, docs/valence-methods.md); about 160 CPU-s, 10 min wall at load 15"]
+fn carbon_monoxide_dccsd_t_def2_tzvpp_matches_krause_2015() {
     dccsd_t_homo(CARBON_MONOXIDE, 1, "5σ", 14.209);
 }
 
-/// F2 1πg: measured 15.7009 eV against 15.58481 (+0.12 eV, outside 0.02): the UHF cation
-/// with the hole in one component of the degenerate πg pair is one of several
-/// symmetry-broken references, and which one the published value used is not known here.
-/// Kept as a record of the open discrepancy (docs/valence-methods.md), expected to fail.
+/// F2 1πg: measured 15.7009 eV against 15.58481 (+0.12 eV, outside 0.02). The MOM cation
+/// is the inversion-symmetric UHF (⟨S²⟩ 0.770); the ROHF cation gives 15.708 and the UHF
+/// with the hole localised on one atom (1.46 eV lower at the SCF level) 15.749, so no
+/// reference choice reaches the published value. Kept as a record of the open
+/// discrepancy (docs/valence-methods.md), expected to fail.
 #[test]
 #[ignore = "fails by 0.12 eV (open discrepancy, docs/valence-methods.md); 352 CPU-s"]
 fn fluorine_dccsd_t_def2_tzvpp_matches_krause_2015() {
@@ -499,4 +507,90 @@ fn fluorine_dccsd_t_def2_tzvpp_matches_krause_2015() {
 #[ignore = "75 CPU-s and 1.7 GB (CH4/def2-TZVPP ΔCCSD(T)); figure in docs/valence-methods.md"]
 fn methane_dccsd_t_def2_tzvpp_matches_krause_2015() {
     dccsd_t_homo(METHANE, 1, "1t2", 14.373);
+}
+
+/// ΔCCSD(T)/def2-TZVPP of a radical: OH (X²Π, r_e 0.9697 Å, from memory) to the lowest
+/// cation state, OH⁺ X³Σ⁻, reached by taking a β electron from the doubly occupied π
+/// component (the high-spin cation). Experiment: adiabatic IE 13.017 eV (NIST Chemistry
+/// WebBook ion energetics of OH, from ZEKE photoelectron spectra; value from memory). The computed number is vertical and lacks the zero-point change; both effects
+/// are under 0.1 eV here (OH⁺ r_e 1.029 Å and ω_e 3113 cm⁻¹ against 0.970 Å and
+/// 3738 cm⁻¹, from memory: about +0.06 and +0.04 eV, so the vertical value is near
+/// 13.12 eV), and the def2-TZVPP basis lowers ΔCCSD(T) IEs by a tenth or two (common
+/// practice). Measured 12.868 eV (−0.15 against the adiabatic value); 0.25 eV tolerance.
+/// The singlet cations (α holes) lie over 1 eV higher (ΔSCF/cc-pVDZ: 12.37 against
+/// 11.21 eV) and would fail the check.
+#[test]
+#[ignore = "three cation coupled-cluster runs (count 1 plus the two margin bands): about 40 CPU-s, 141 s wall at load 15"]
+fn hydroxyl_radical_dccsd_t_lowest_cation_state_against_experiment() {
+    let m = mol("2\nOH radical, r_e\nO 0 0 0\nH 0 0 0.9697\n")
+        .with_charge_multiplicity(0, 2)
+        .unwrap();
+    let b = basis(&m, "def2-TZVPP");
+    let r = predict(
+        &m,
+        &b,
+        &ValenceOptions {
+            method: Method::DccsdT,
+            count: Some(1),
+            ..Default::default()
+        },
+    )
+    .unwrap();
+    let lowest = &r.bands[0];
+    eprintln!(
+        "OH ΔCCSD(T)/def2-TZVPP lowest cation state {:.4} eV (experiment 13.017)",
+        lowest.ie_ev
+    );
+    assert!(
+        lowest.label.ends_with('β'),
+        "the triplet cation comes from a β hole: {:?}",
+        lowest.label
+    );
+    assert!((lowest.ie_ev - 13.017).abs() < 0.25, "{}", lowest.ie_ev);
+}
+
+/// Each band its own cation SCF and coupled cluster: the three outer-valence bands of water
+/// (GW100 structure), ΔCCSD(T)/def2-TZVPP, against the vertical IEs of the He I spectrum
+/// (Kimura et al., Handbook of HeI Photoelectron Spectra of Fundamental Organic Molecules,
+/// 1981: 1b1 12.62 published; 3a1 14.74 and 1b2 18.51 from memory; docs/reference-data.md
+/// §3), within 0.15 eV (the basis and the missing vibrational averaging of a vertical
+/// band maximum; the 1b1 value is 0.05 eV below experiment and 0.002 eV from the published
+/// ΔCCSD(T)). The hole in each band's orbital gives the lowest cation state of that
+/// symmetry (²B1, ²A1, ²B2); the hole weight must show the hole stayed.
+#[test]
+#[ignore = "three cation coupled-cluster runs in def2-TZVPP: several CPU-minutes (1b1 alone 113 CPU-s); not yet run to the end, docs/valence-methods.md"]
+fn water_three_bands_dccsd_t_against_he_i_spectrum() {
+    let m = mol(WATER);
+    let b = basis(&m, "def2-TZVPP");
+    let r = predict(
+        &m,
+        &b,
+        &ValenceOptions {
+            method: Method::DccsdT,
+            window_ev: Some(19.5),
+            ..Default::default()
+        },
+    )
+    .unwrap();
+    assert!(!r.warnings.iter().any(|w| w.code() == "hole_moved"));
+    for (label, exp) in [("1b1", 12.62), ("3a1", 14.74), ("1b2", 18.51)] {
+        let band = r.bands.iter().find(|x| x.label == label).unwrap();
+        eprintln!(
+            "water {label}: ΔCCSD(T) {:.4} eV, experiment {exp}",
+            band.ie_ev
+        );
+        assert!((band.ie_ev - exp).abs() < 0.15, "{label}: {}", band.ie_ev);
+    }
+}
+
+/// CO at the GW100 1.283 Å bond, cc-pVDZ: the 5σ-hole UHF cation does not converge (5σ and
+/// 1π holes within 0.6 eV), so the cation is the MOM-held ROHF determinant, said in a note.
+/// Exact condition: the relaxed ROHF cation lies at or below the frozen-orbital (Koopmans)
+/// determinant, which is one of the ROHF determinants it minimises over, so ΔSCF ≤ Koopmans.
+#[test]
+fn co_gw100_5sigma_cation_falls_back_to_rohf_below_koopmans() {
+    let r = run(CARBON_MONOXIDE, "cc-pVDZ", Method::Dscf);
+    let i = r.bands.iter().position(|b| b.label == "5σ").unwrap();
+    assert!(r.bands[i].ie_ev <= r.koopmans_ev[i], "{:?}", r.bands[i]);
+    assert!(r.notes.iter().any(|n| n.code() == "cation_rohf"));
 }

@@ -16,7 +16,7 @@ use crate::chem::Molecule;
 use crate::correlation::open_shell::{self, FrozenCore, OpenShellOptions};
 use crate::correlation::two_electron::TwoElectron;
 use crate::error::Result;
-use crate::ionization::dscf::{cation_wavefunction, hole_weight, HOLE_KEPT};
+use crate::ionization::dscf::{cation_wavefunction, exact_s2, hole_weight, HoldRoute, HOLE_KEPT};
 use crate::ionization::koopmans::Spin;
 use crate::scf::{ScfOptions, Wavefunction};
 
@@ -29,7 +29,11 @@ pub struct CcHole {
     pub ie_scf: f64,
     pub hole_overlap: f64,
     pub hole_moved: bool,
+    /// ⟨S²⟩ of the cation's UHF determinant, and the exact S(S+1) of its spin state.
     pub s2: f64,
+    pub s2_exact: f64,
+    /// How the cation SCF was held on the hole (None for a cation without electrons).
+    pub route: Option<HoldRoute>,
 }
 
 /// ΔCCSD(T) for the given holes of a converged neutral; a hole whose cation SCF or coupled
@@ -63,7 +67,7 @@ pub fn dccsd_t(
         .map(|&(spin, orbital)| -> Result<CcHole> {
             let (cation, hole_spin, wf) =
                 cation_wavefunction(mol, basis, neutral, spin, orbital, base)?;
-            let Some(wf) = wf else {
+            let Some((wf, route)) = wf else {
                 let e = cation.nuclear_repulsion();
                 return Ok(CcHole {
                     ie: e - en,
@@ -72,6 +76,8 @@ pub fn dccsd_t(
                     hole_overlap: 1.0,
                     hole_moved: false,
                     s2: 0.0,
+                    s2_exact: 0.0,
+                    route: None,
                 });
             };
             let (c_ref, c, occ) = match hole_spin {
@@ -87,6 +93,8 @@ pub fn dccsd_t(
                 hole_overlap: w,
                 hole_moved: w < HOLE_KEPT,
                 s2: wf.s2,
+                s2_exact: exact_s2(&cation),
+                route: Some(route),
             })
         })
         .collect())

@@ -40,9 +40,18 @@ pub struct DscfHole {
     pub hole_overlap: f64,
     /// The hole ended up in another orbital (hole_overlap < HOLE_KEPT).
     pub hole_moved: bool,
-    /// ⟨S²⟩ of the cation.
+    /// ⟨S²⟩ of the cation, and the exact S(S+1) of its spin state.
     pub s2: f64,
+    pub s2_exact: f64,
     pub iterations: usize,
+    /// How the SCF was held on the hole (None for a cation without electrons).
+    pub route: Option<HoldRoute>,
+}
+
+/// S(S+1) of a molecule's multiplicity 2S + 1.
+pub fn exact_s2(mol: &Molecule) -> f64 {
+    let s = (mol.multiplicity as f64 - 1.0) / 2.0;
+    s * (s + 1.0)
 }
 
 /// The cation obtained by removing one electron of `spin` from `neutral`: (molecule,
@@ -105,9 +114,10 @@ pub fn hole_weight(
     (1.0 - kept).clamp(0.0, 1.0)
 }
 
-/// ΔSCF IEs for the given (spin, MO index) holes of a converged neutral wavefunction.
-/// `base` supplies thresholds and memory settings; reference, guess and occupation are set
-/// here. `overlap` is the AO overlap matrix.
+/// ΔSCF IEs for the given (spin, MO index) holes of a converged neutral wavefunction; the
+/// first hole whose cation fails is the error. `base` supplies thresholds and memory
+/// settings; reference, guess and occupation are set here. `overlap` is the AO overlap
+/// matrix.
 pub fn dscf(
     mol: &Molecule,
     basis: &BasisSet,
@@ -116,17 +126,32 @@ pub fn dscf(
     holes: &[(Spin, usize)],
     base: &ScfOptions,
 ) -> Result<Vec<DscfHole>> {
+    dscf_each(mol, basis, neutral, overlap, holes, base)?
+        .into_iter()
+        .collect()
+}
+
+/// As [`dscf`], one result per hole: a cation whose SCF fails (a deep hole of a
+/// non-aufbau state) is an error of its own and the others stand.
+pub fn dscf_each(
+    mol: &Molecule,
+    basis: &BasisSet,
+    neutral: &Wavefunction,
+    overlap: &Mat<f64>,
+    holes: &[(Spin, usize)],
+    base: &ScfOptions,
+) -> Result<Vec<Result<DscfHole>>> {
     if !neutral.converged {
         return Err(Error::computation(
             "ΔSCF needs a converged neutral reference".to_string(),
         ));
     }
-    holes
+    Ok(holes
         .iter()
-        .map(|&(spin, orbital)| {
+        .map(|&(spin, orbital)| -> Result<DscfHole> {
             let (cation, hole_spin, wf) =
                 cation_wavefunction(mol, basis, neutral, spin, orbital, base)?;
-            let Some(wf) = wf else {
+            let Some((wf, route)) = wf else {
                 let e = cation.nuclear_repulsion();
                 return Ok(DscfHole {
                     spin: hole_spin,
@@ -136,7 +161,9 @@ pub fn dscf(
                     hole_overlap: 1.0,
                     hole_moved: false,
                     s2: 0.0,
+                    s2_exact: 0.0,
                     iterations: 0,
+                    route: None,
                 });
             };
             let (c_ref, c, occ) = match hole_spin {
@@ -152,15 +179,37 @@ pub fn dscf(
                 hole_overlap: w,
                 hole_moved: w < HOLE_KEPT,
                 s2: wf.s2,
+                s2_exact: exact_s2(&cation),
                 iterations: wf.iterations,
+                route: Some(route),
             })
         })
-        .collect()
+        .collect())
+}
+
+/// Which cation SCF holds the hole.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum HoldRoute {
+    /// UHF held by MOM (the first try).
+    Uhf,
+    /// ROHF held by MOM, after the UHF did not converge (closed-shell neutrals only).
+    Rohf,
 }
 
 /// The MOM-held cation with one electron of `spin` removed from MO `orbital` of `neutral`:
-/// (cation molecule, spin that lost the electron, wavefunction — None when no electron is
-/// left).
+/// (cation molecule, spin that lost the electron, wavefunction and which SCF held it — None
+/// when no electron is left).
+///
+/// The first try is a UHF cation held by MOM from the neutral's orbitals. Where two holes
+/// lie close in energy the UHF landscape can have no stable solution near the start (CO at
+/// the GW100 1.283 Å bond: 5σ and 1π within 0.4 eV; the 5σ-hole UHF wanders at a
+/// commutator of 1e-4 for 400 iterations with any level shift or damping, and even from a
+/// superposition-of-atoms start). A closed-shell neutral then gets the spin-restricted
+/// (ROHF) cation, held by MOM the same way, which has no spin polarisation to wander in.
+/// Coupled cluster on top removes most of the reference dependence (F2⁺ 1πg hole:
+/// ΔCCSD(T) 15.7009 eV on UHF, 15.7077 eV on ROHF, def2-TZVPP; docs/valence-methods.md);
+/// ΔSCF on ROHF lies above the UHF value. An SCF that converges on the first try is never
+/// repeated, so the fallback changes no result that converged before.
 pub fn cation_wavefunction(
     mol: &Molecule,
     basis: &BasisSet,
@@ -168,36 +217,58 @@ pub fn cation_wavefunction(
     spin: Spin,
     orbital: usize,
     base: &ScfOptions,
-) -> Result<(Molecule, Spin, Option<Wavefunction>)> {
-    {
-        {
-            let (cation, occ_a, occ_b, hole_spin) = cation_state(mol, neutral, spin, orbital)?;
-            if cation.n_electrons() == 0 {
-                return Ok((cation, hole_spin, None));
-            }
-            let opts = ScfOptions {
-                reference: Reference::Uhf,
-                guess: Guess::Orbitals {
-                    c_alpha: neutral.c_alpha.clone(),
-                    c_beta: neutral.c_beta.clone(),
-                },
-                occupation: Occupation::Mom {
-                    c_alpha_ref: neutral.c_alpha.clone(),
-                    c_beta_ref: neutral.c_beta.clone(),
-                    occ_alpha: occ_a,
-                    occ_beta: occ_b,
-                    initial: false,
-                },
-                ..base.clone()
-            };
-            let wf = crate::scf::run(&cation, basis, &opts).map_err(|e| {
-                Error::computation(format!(
-                    "ΔSCF cation with a hole in orbital {} failed: {e}",
-                    orbital + 1
-                ))
-            })?;
-            Ok((cation, hole_spin, Some(wf)))
-        }
+) -> Result<(Molecule, Spin, Option<(Wavefunction, HoldRoute)>)> {
+    let (cation, occ_a, occ_b, hole_spin) = cation_state(mol, neutral, spin, orbital)?;
+    if cation.n_electrons() == 0 {
+        return Ok((cation, hole_spin, None));
+    }
+    let opts = ScfOptions {
+        reference: Reference::Uhf,
+        guess: Guess::Orbitals {
+            c_alpha: neutral.c_alpha.clone(),
+            c_beta: neutral.c_beta.clone(),
+        },
+        occupation: Occupation::Mom {
+            c_alpha_ref: neutral.c_alpha.clone(),
+            c_beta_ref: neutral.c_beta.clone(),
+            occ_alpha: occ_a.clone(),
+            occ_beta: occ_b.clone(),
+            initial: false,
+        },
+        ..base.clone()
+    };
+    let first = match crate::scf::run(&cation, basis, &opts) {
+        Ok(wf) => return Ok((cation, hole_spin, Some((wf, HoldRoute::Uhf)))),
+        Err(e) => e,
+    };
+    let failed = |e: &Error| {
+        Error::computation(format!(
+            "ΔSCF cation with a hole in orbital {} failed: {e}",
+            orbital + 1
+        ))
+    };
+    if neutral.reference != Reference::Rhf {
+        return Err(failed(&first));
+    }
+    // ROHF: both spins in the alpha orbitals, the beta set inside the alpha one.
+    let rohf = ScfOptions {
+        reference: Reference::Rohf,
+        guess: Guess::Orbitals {
+            c_alpha: neutral.c_alpha.clone(),
+            c_beta: neutral.c_alpha.clone(),
+        },
+        occupation: Occupation::Mom {
+            c_alpha_ref: neutral.c_alpha.clone(),
+            c_beta_ref: neutral.c_alpha.clone(),
+            occ_alpha: occ_a,
+            occ_beta: occ_b,
+            initial: false,
+        },
+        ..base.clone()
+    };
+    match crate::scf::run(&cation, basis, &rohf) {
+        Ok(wf) => Ok((cation, hole_spin, Some((wf, HoldRoute::Rohf)))),
+        Err(_) => Err(failed(&first)),
     }
 }
 

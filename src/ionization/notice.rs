@@ -23,6 +23,20 @@ pub enum ValenceNotice {
     HoleMoved { mo: usize, percent: f64 },
     /// ΔSCF: the cation of MO `mo` (1-based) lies below the neutral by `ie_ev` ≤ 0 (warning).
     CationBelowNeutral { mo: usize, ie_ev: f64 },
+    /// ΔSCF/ΔCCSD(T): the cation of MO `mo` (1-based) has ⟨S²⟩ more than 0.1 above the
+    /// exact S(S+1) of its spin state (warning).
+    CationSpinContaminated { mo: usize, s2: f64, exact: f64 },
+    /// ΔSCF/ΔCCSD(T): the UHF cation of MO `mo` did not converge; the ROHF cation was
+    /// used (note).
+    CationRohf { mo: usize },
+    /// ΔCCSD(T): the three levels of one band, eV, with the cation's ⟨S²⟩ (note).
+    DeltaCcLevels {
+        mo: usize,
+        dscf_ev: f64,
+        dccsd_ev: f64,
+        dccsdt_ev: f64,
+        s2: f64,
+    },
     /// A band's pole strength is below `ionization::valence::LOW_POLE_STRENGTH` (warning).
     LowPoleStrength { band: String, pole_strength: f64 },
     /// The default rule chose the method (note).
@@ -61,6 +75,9 @@ impl ValenceNotice {
             ValenceNotice::HoleMoved { .. } => "hole_moved",
             ValenceNotice::CationBelowNeutral { .. } => "cation_below_neutral",
             ValenceNotice::LowPoleStrength { .. } => "low_pole_strength",
+            ValenceNotice::CationSpinContaminated { .. } => "cation_spin_contaminated",
+            ValenceNotice::CationRohf { .. } => "cation_rohf",
+            ValenceNotice::DeltaCcLevels { .. } => "delta_cc_levels",
             ValenceNotice::DefaultMethodChosen(_) => "default_method_chosen",
             ValenceNotice::DefaultFellBack { .. } => "default_method_fell_back",
             ValenceNotice::Symmetrised { .. } => "symmetrised",
@@ -88,6 +105,28 @@ impl fmt::Display for ValenceNotice {
             ValenceNotice::CationBelowNeutral { mo, ie_ev } => write!(
                 f,
                 "ΔSCF for MO {mo}: the cation lies below the neutral ({ie_ev:.2} eV)"
+            ),
+            ValenceNotice::CationSpinContaminated { mo, s2, exact } => write!(
+                f,
+                "the cation with a hole in MO {mo} is spin-contaminated (<S²> = {s2:.3}, exact \
+                 {exact:.3}): its IE is less reliable"
+            ),
+            ValenceNotice::CationRohf { mo } => write!(
+                f,
+                "the UHF cation with a hole in MO {mo} did not converge; the spin-restricted \
+                 (ROHF) cation was used (ΔSCF lies higher on it; coupled cluster removes most \
+                 of the difference)"
+            ),
+            ValenceNotice::DeltaCcLevels {
+                mo,
+                dscf_ev,
+                dccsd_ev,
+                dccsdt_ev,
+                s2,
+            } => write!(
+                f,
+                "MO {mo}: ΔSCF {dscf_ev:.3} eV, ΔCCSD {dccsd_ev:.3} eV, ΔCCSD(T) {dccsdt_ev:.3} \
+                 eV (cation <S²> {s2:.3})"
             ),
             ValenceNotice::LowPoleStrength {
                 band,

@@ -17,7 +17,7 @@ use crate::ionization::band::Band;
 use crate::ionization::bands::{
     group_degenerate, make_band, BandEnergy, OrbitalSet, DEGENERACY_TOL,
 };
-use crate::ionization::dscf::dscf;
+use crate::ionization::dscf::{dscf_each, HoldRoute};
 use crate::ionization::ep2::{ep2, Ep2Options};
 use crate::ionization::koopmans::{koopmans, Spin};
 use crate::ionization::method::Method;
@@ -342,8 +342,28 @@ fn method_energies(
         Method::Dscf => {
             let holes: Vec<(Spin, usize)> =
                 sets.iter().map(|s| (s.spin, s.representative())).collect();
-            let res = dscf(mol, basis, wf, s, &holes, &opts.scf)?;
-            for (set, h) in sets.iter().zip(&res) {
+            let res = dscf_each(mol, basis, wf, s, &holes, &opts.scf)?;
+            let mut out = Vec::new();
+            for (set, h) in sets.iter().zip(res) {
+                let h = match h {
+                    Ok(h) => h,
+                    Err(e) => {
+                        warnings.push(ValenceNotice::MethodWarning(format!(
+                            "MO {}: ΔSCF failed: {e}",
+                            set.representative() + 1
+                        )));
+                        out.push(None);
+                        continue;
+                    }
+                };
+                cation_notices(
+                    set.representative() + 1,
+                    h.route,
+                    h.s2,
+                    h.s2_exact,
+                    notes,
+                    warnings,
+                );
                 if h.hole_moved {
                     warnings.push(ValenceNotice::HoleMoved {
                         mo: set.representative() + 1,
@@ -356,14 +376,12 @@ fn method_energies(
                         ie_ev: ev(h.ie),
                     });
                 }
-            }
-            Ok(all(res
-                .iter()
-                .map(|h| BandEnergy {
+                out.push(Some(BandEnergy {
                     ie: h.ie,
                     ..Default::default()
-                })
-                .collect()))
+                }));
+            }
+            Ok(out)
         }
         Method::DccsdT => {
             let holes: Vec<(Spin, usize)> =
@@ -383,6 +401,15 @@ fn method_energies(
             for (set, h) in sets.iter().zip(res) {
                 match h {
                     Ok(h) => {
+                        let mo = set.representative() + 1;
+                        cation_notices(mo, h.route, h.s2, h.s2_exact, notes, warnings);
+                        notes.push(ValenceNotice::DeltaCcLevels {
+                            mo,
+                            dscf_ev: ev(h.ie_scf),
+                            dccsd_ev: ev(h.ie_ccsd),
+                            dccsdt_ev: ev(h.ie),
+                            s2: h.s2,
+                        });
                         if h.hole_moved {
                             warnings.push(ValenceNotice::HoleMoved {
                                 mo: set.representative() + 1,
@@ -438,6 +465,28 @@ fn method_energies(
                 })
                 .collect())
         }
+    }
+}
+
+/// The notes and warnings of one ΔSCF/ΔCCSD(T) cation: how its SCF was held, and its spin
+/// contamination (more than 0.1 above S(S+1), the threshold of the neutral's warning).
+fn cation_notices(
+    mo: usize,
+    route: Option<HoldRoute>,
+    s2: f64,
+    s2_exact: f64,
+    notes: &mut Vec<ValenceNotice>,
+    warnings: &mut Vec<ValenceNotice>,
+) {
+    if route == Some(HoldRoute::Rohf) {
+        notes.push(ValenceNotice::CationRohf { mo });
+    }
+    if route.is_some() && s2 - s2_exact > 0.1 {
+        warnings.push(ValenceNotice::CationSpinContaminated {
+            mo,
+            s2,
+            exact: s2_exact,
+        });
     }
 }
 
