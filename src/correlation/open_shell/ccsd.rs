@@ -13,7 +13,7 @@
 //! Memory (f64 words, o/v active occupied/virtual spin orbitals): amplitudes, residuals and
 //! the intermediates and einsum temporaries of one residual ≈ 16 o²v², DIIS 2 × size × o²v².
 
-use super::reference::SpinOrbitalSystem;
+use super::spin_orbital::SpinOrbitalSystem;
 use crate::correlation::tensor::{einsum, Tensor};
 use crate::scf::diis::VectorDiis;
 use crate::{Error, Result};

@@ -1,23 +1,26 @@
 //! Coupled cluster on open-shell and other non-closed-shell references: CCSD and (T) on
 //! UHF, ROHF (semicanonical) and core-hole (MOM) determinants, in spin blocks.
 //!
-//! Files: reference.rs (orbital selection, Fock, semicanonical rotation; also the
-//! spin-orbital ⟨pq||rs⟩ blocks of the check code), spin_blocks.rs (tensors held as their
+//! Files: reference.rs (orbital selection, Fock, semicanonical rotation), spin_blocks.rs (tensors held as their
 //! spin-conserving blocks, contraction over blocks), spin_system.rs (integral blocks of each
 //! spin case and the particle–particle ladder from the factors), uccsd.rs (amplitude
 //! equations), utriples.rs ((T)), this file (memory plan, refusal, the one entry `run`).
-//! ccsd.rs and triples.rs are the spin-orbital form of the same equations (every index over
+//! spin_orbital.rs, ccsd.rs and triples.rs are the spin-orbital form of the same equations (every index over
 //! α and β spin orbitals, a v⁴ block 16× the spatial one): kept as the independent check of
-//! the spin-blocked code in tests (tests.rs), not used by `run`.
+//! the spin-blocked code in tests (tests.rs), compiled for tests only.
 //!
 //! Size: the v⁴ ladder integrals are held (3 spatial v⁴ blocks) when they fit the budget,
 //! otherwise rebuilt every iteration in batches from the factors, so the memory is bounded
 //! by the o²v² amplitudes and the o v³ blocks.
 
+#[cfg(test)]
 pub mod ccsd;
 pub mod reference;
 pub mod spin_blocks;
+#[cfg(test)]
+pub mod spin_orbital;
 pub mod spin_system;
+#[cfg(test)]
 pub mod triples;
 pub mod uccsd;
 pub mod utriples;
@@ -32,7 +35,7 @@ use crate::correlation::two_electron::{self, Resolved, TwoElectron};
 use crate::scf::Wavefunction;
 use crate::{Error, Result};
 
-pub use ccsd::CcsdOptions;
+pub use crate::correlation::ccsd::CcsdOptions;
 pub use reference::Selection;
 
 /// How the frozen core is chosen.

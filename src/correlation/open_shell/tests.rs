@@ -140,7 +140,7 @@ fn two_electrons_non_hf_reference_is_exact() {
     let opts = tight(FrozenCore::None, true, 1e-11);
     let (_, how) = plan(&mol, &basis, &w, &opts).unwrap();
     let h = crate::scf::context::core_hamiltonian(&basis, &mol);
-    let (sys, _) = reference::build(
+    let (sys, _) = spin_orbital::build(
         &basis,
         &h,
         &w,
@@ -217,7 +217,7 @@ fn spin_blocked_matches_spin_orbital(
     let opts = tight(FrozenCore::None, true, tau);
     let (_, how) = plan(mol, basis, wfn, &opts).unwrap();
     let h = crate::scf::context::core_hamiltonian(basis, mol);
-    let (so, _) = reference::build(basis, &h, wfn, sel, &how, 100000, &mut |_| {}).unwrap();
+    let (so, _) = spin_orbital::build(basis, &h, wfn, sel, &how, 100000, &mut |_| {}).unwrap();
     let cc = ccsd::solve(&so, &opts.ccsd, &mut |_| {}).unwrap();
     let t_so = triples::correction(&so, &cc.t1, &cc.t2);
     for hold in [true, false] {

@@ -15,7 +15,7 @@
 
 use rayon::prelude::*;
 
-use super::reference::SpinOrbitalSystem;
+use super::spin_orbital::SpinOrbitalSystem;
 use crate::correlation::tensor::{gemm_rm, Tensor};
 
 /// Words per parallel task.
