@@ -52,9 +52,9 @@ fn neon_1s_dccsd_t() {
 }
 
 /// H2O O 1s: experiment 539.827 eV vertical (Wang et al. 2021, docs/reference-data.md §4);
-/// measured 540.13 eV in cc-pVDZ (uncontracted s/p on O). About 50 s: ignored by default.
+/// measured 540.13 eV in cc-pVDZ (uncontracted s/p on O).
+/// About 2 s wall on an idle 2-core machine (spin-blocked coupled cluster).
 #[test]
-#[ignore = "about 50 s in release mode on two cores; figure in docs/core-levels.md"]
 fn water_o1s_dccsd_t() {
     let r = run(&load("water"), "cc-pVDZ", DeltaCc::CcsdT);
     let t = r.core_levels[0].cc.dccsdt_ev.unwrap();
@@ -101,8 +101,8 @@ fn neon_1s_dccsd_t_on_rohf_and_uhf_references_agree() {
 /// r = 1.1283 Å (tests/data/core; the GW100 file's 1.283 Å is a misprint). Measured 5.29 eV
 /// (UHF cation; 5.25 on the ROHF cation). The CO2 − CH4 shift (6.63 against 6.89) misses
 /// the 0.15 eV target and is documented, not tested as passing.
+/// About 6 s wall on an idle 2-core machine.
 #[test]
-#[ignore = "several CPU-minutes (CO 58 CPU-s, CH4 130 s on a loaded machine); figures in docs/core-levels.md"]
 fn co_minus_methane_c1s_shift_dccsd_t() {
     let co = read_xyz(
         &Path::new(concat!(
@@ -166,8 +166,8 @@ fn neon_1s_recommended_value_with_relativistic_correction() {
 /// docs/reference-data.md §4) in the default route, ΔCCSD(T) + relativistic correction.
 /// Measured +0.73 and +0.68 eV: the 0.2 eV target is not met; the bound is the measured
 /// error plus 0.1 eV (a guard against regressions, not the target).
+/// About 6 s wall on an idle 2-core machine.
 #[test]
-#[ignore = "about 4 minutes (N2 115 s, CH4 130 s wall on a loaded machine); figures in docs/core-levels.md"]
 fn nitrogen_and_methane_1s_recommended_values() {
     for (name, z, exp, bound) in [("nitrogen", 7, 409.9, 0.85), ("methane", 6, 290.8, 0.8)] {
         let r = run_with(
@@ -189,8 +189,8 @@ fn nitrogen_and_methane_1s_recommended_values() {
 /// Data Nucl. Data Tables 31 (1984) 433, from memory, minus Thomas 1970; docs/reference-
 /// data.md §4). Measured 6.63 eV (−0.26): the 0.15 eV target is NOT met; this test
 /// holds the measured 0.3 eV.
+/// About 20 s wall on an idle 2-core machine.
 #[test]
-#[ignore = "about 7 minutes (CO2 226 CPU-s, CH4 130 s on a loaded machine); figures in docs/core-levels.md"]
 fn co2_minus_methane_c1s_shift_dccsd_t_within_0_3_ev() {
     let opts = CoreOptions {
         targets: TargetSelection::Element(6),
