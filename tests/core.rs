@@ -120,8 +120,9 @@ fn neon_1s_with_and_without_the_relativistic_correction() {
     .expect("Ne run");
     let lr = &r.core_levels[0];
     let c = lr.relativistic_correction_ev.expect("correction asked");
-    // First-order mass-velocity + Darwin ΔSCF value of Ne 1s: 1.00 eV (computed in
-    // tests/core_relativistic.rs; the law of core_level/relativistic.rs is fitted to it).
+    // Regression: the first-order mass-velocity + Darwin ΔSCF value of Ne 1s, 1.00 eV
+    // (computed in tests/core_relativistic.rs; the law of core_level/relativistic.rs is
+    // fitted to it).
     assert!((c - 1.00).abs() < 0.03, "correction {c}");
     let corrected = lr.dscf_relativistic_ev.unwrap();
     assert!((corrected - lr.dscf_ev - c).abs() < 1e-12);

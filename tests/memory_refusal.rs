@@ -6,7 +6,7 @@
 //! refusal before any integral. The binary checks assert the exit code, the message, and that
 //! stdout holds nothing and stderr only the one error (no SCF or stage output before it).
 
-use std::process::Command;
+mod common;
 
 use bandcast::basis::BasisSet;
 use bandcast::chem::xyz::{parse_xyz, LengthUnit};
@@ -93,10 +93,7 @@ fn a_budget_below_the_direct_scf_floor_is_refused() {
 }
 
 fn refused_by_binary(args: &[&str]) -> String {
-    let out = Command::new(env!("CARGO_BIN_EXE_bandcast"))
-        .args(args)
-        .output()
-        .unwrap();
+    let out = common::bandcast().args(args).output().unwrap();
     let err = String::from_utf8_lossy(&out.stderr).to_string();
     assert_eq!(out.status.code(), Some(2), "{err}");
     assert!(out.stdout.is_empty());
@@ -158,10 +155,7 @@ fn benzene_cc_pvtz_half_gib_refused_before_the_scf() {
 
 /// Exit status, stdout and stderr of the binary.
 fn run_binary(args: &[&str]) -> (Option<i32>, String, String) {
-    let out = Command::new(env!("CARGO_BIN_EXE_bandcast"))
-        .args(args)
-        .output()
-        .unwrap();
+    let out = common::bandcast().args(args).output().unwrap();
     (
         out.status.code(),
         String::from_utf8_lossy(&out.stdout).to_string(),

@@ -3,6 +3,8 @@
 //! from memory) within 5 %; the number of zero modes after projection (6, linear 5: exact
 //! condition).
 
+mod common;
+
 use bandcast::analysis::symmetry::{detect_point_group, DEFAULT_TOLERANCE};
 use bandcast::chem::{Atom, Molecule};
 use bandcast::geometry::{optimize, OptimizeOptions, StateSpec};
@@ -152,7 +154,7 @@ fn vibrations_memory_refused_before_work() {
         "3\nwater\nO 0 0 0.12\nH 0 0.76 -0.47\nH 0 -0.76 -0.47\n",
     )
     .unwrap();
-    let out = std::process::Command::new(env!("CARGO_BIN_EXE_bandcast"))
+    let out = common::bandcast()
         .args([
             "vibrations",
             f.to_str().unwrap(),
@@ -182,7 +184,7 @@ fn near_symmetric_input_is_symmetrised_before_the_hessian() {
         "3\nwater\nO 0 0 0.1173\nH 0 0.7572 -0.4692\nH 0.004 -0.7662 -0.4692\n",
     )
     .unwrap();
-    let out = std::process::Command::new(env!("CARGO_BIN_EXE_bandcast"))
+    let out = common::bandcast()
         .args([
             "vibrations",
             f.to_str().unwrap(),
@@ -228,12 +230,7 @@ fn fitted_gradient_memory_refused_before_work() {
     let water = format!("{}/tests/data/gw100/water.xyz", env!("CARGO_MANIFEST_DIR"));
     let out_xyz =
         std::env::temp_dir().join(format!("bandcast-df-mem-opt-{}.xyz", std::process::id()));
-    let run = |args: &[&str]| {
-        std::process::Command::new(env!("CARGO_BIN_EXE_bandcast"))
-            .args(args)
-            .output()
-            .unwrap()
-    };
+    let run = |args: &[&str]| common::bandcast().args(args).output().unwrap();
     let base = [&water[..], "--basis", "cc-pVDZ", "--memory", "0.0004"];
     let vib_df = run(&[&["vibrations"], &base[..], &["--fock", "df"]].concat());
     let err = String::from_utf8_lossy(&vib_df.stderr);

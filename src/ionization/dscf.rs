@@ -268,7 +268,11 @@ pub fn cation_wavefunction(
     };
     match crate::scf::run(&cation, basis, &rohf) {
         Ok(wf) => Ok((cation, hole_spin, Some((wf, HoldRoute::Rohf)))),
-        Err(_) => Err(failed(&first)),
+        Err(second) => Err(Error::computation(format!(
+            "ΔSCF cation with a hole in orbital {} failed: the UHF cation ({first}) and then \
+             the ROHF cation ({second}) did not converge",
+            orbital + 1
+        ))),
     }
 }
 
