@@ -230,6 +230,23 @@ pub fn parse_element_arg(s: &str) -> std::result::Result<u32, String> {
         .ok_or_else(|| format!("'{s}' is not an element symbol"))
 }
 
+/// `--fno PERCENT`: the percentage of the MP2 virtual population the frozen natural
+/// orbitals keep, returned as a fraction.
+pub fn parse_fno(s: &str) -> std::result::Result<f64, String> {
+    let x: f64 = s
+        .trim()
+        .trim_end_matches('%')
+        .parse()
+        .map_err(|_| format!("'{s}' is not a percentage (e.g. 99.5)"))?;
+    if !(x > 0.0 && x <= 100.0) {
+        return Err(format!(
+            "'{s}': the kept share of the virtual population must be above 0 and at most 100 \
+             per cent (99.5 is a common choice)"
+        ));
+    }
+    Ok(x / 100.0)
+}
+
 pub fn parse_photon(s: &str) -> std::result::Result<Photon, String> {
     Photon::parse(s)
 }

@@ -24,7 +24,9 @@ use serde::Serialize;
 
 use crate::basis::BasisSet;
 use crate::chem::Molecule;
-use crate::correlation::open_shell::{self, FrozenCore, OpenShellOptions, OpenShellResult};
+use crate::correlation::open_shell::{
+    self, FrozenCore, NaturalVirtuals, OpenShellOptions, OpenShellResult,
+};
 use crate::correlation::two_electron::TwoElectron;
 use crate::error::Result;
 use crate::scf::{Reference, Wavefunction};
@@ -60,8 +62,14 @@ pub struct CcEnergies {
     pub shift_binding_ev: Option<f64>,
 }
 
-fn options(which: DeltaCc, excluded: [Vec<usize>; 2], memory: Option<usize>) -> OpenShellOptions {
+fn options(
+    which: DeltaCc,
+    excluded: [Vec<usize>; 2],
+    memory: Option<usize>,
+    natural_virtuals: Option<f64>,
+) -> OpenShellOptions {
     OpenShellOptions {
+        natural_virtuals,
         memory_budget: memory.map(|b| b as f64),
         frozen_core: FrozenCore::None,
         excluded_virtuals: excluded,
@@ -72,6 +80,15 @@ fn options(which: DeltaCc, excluded: [Vec<usize>; 2], memory: Option<usize>) -> 
     }
 }
 
+/// The coupled cluster's log lines on stderr when `progress` is set.
+fn say(progress: bool, state: &'static str) -> impl FnMut(&str) {
+    move |line: &str| {
+        if progress {
+            eprintln!("  [{state} CC] {line}");
+        }
+    }
+}
+
 /// Coupled cluster of the neutral (closed shell, all electrons).
 pub fn neutral(
     mol: &Molecule,
@@ -79,13 +96,15 @@ pub fn neutral(
     wf: &Wavefunction,
     which: DeltaCc,
     memory: Option<usize>,
+    natural_virtuals: Option<f64>,
+    progress: bool,
 ) -> Result<OpenShellResult> {
     open_shell::run(
         mol,
         basis,
         wf,
-        &options(which, [vec![], vec![]], memory),
-        &mut |_| {},
+        &options(which, [vec![], vec![]], memory, natural_virtuals),
+        &mut say(progress, "neutral"),
     )
 }
 
@@ -108,7 +127,8 @@ pub fn hole_orbital(wf: &Wavefunction) -> Option<(usize, usize)> {
         .map(|p| (spin, p))
 }
 
-/// (ΔCCSD, ΔCCSD(T)) in eV for the cation `ion` against the neutral's result.
+/// (ΔCCSD, ΔCCSD(T)) in eV for the cation `ion` against the neutral's result, and the
+/// ion's frozen-natural-orbital cut when one was asked for.
 pub fn delta(
     mol: &Molecule,
     basis: &BasisSet,
@@ -116,7 +136,9 @@ pub fn delta(
     neutral: &OpenShellResult,
     which: DeltaCc,
     memory: Option<usize>,
-) -> Result<(f64, Option<f64>)> {
+    natural_virtuals: Option<f64>,
+    progress: bool,
+) -> Result<(f64, Option<f64>, Option<NaturalVirtuals>)> {
     let cation = mol.clone().with_charge_multiplicity(mol.charge + 1, 2)?;
     let mut excluded = [Vec::new(), Vec::new()];
     if let Some((s, p)) = hole_orbital(ion) {
@@ -126,15 +148,15 @@ pub fn delta(
         &cation,
         basis,
         ion,
-        &options(which, excluded, memory),
-        &mut |_| {},
+        &options(which, excluded, memory, natural_virtuals),
+        &mut say(progress, "core-ionized state"),
     )?;
     let dccsd = ev(r.e_ccsd() - neutral.e_ccsd());
     let dccsdt = match (r.e_ccsd_t(), neutral.e_ccsd_t()) {
         (Some(a), Some(b)) => Some(ev(a - b)),
         _ => None,
     };
-    Ok((dccsd, dccsdt))
+    Ok((dccsd, dccsdt, r.natural_virtuals))
 }
 
 /// The recommended value of a level from what was computed.

@@ -133,11 +133,29 @@ pub fn ionise_atom(
     let mut cc = super::delta_cc::CcEnergies::default();
     match (ctx.neutral_cc, ctx.opts.cc) {
         (Some(ncc), Some(which)) => {
-            match super::delta_cc::delta(ctx.mol, ctx.basis, wf, ncc, which, ctx.opts.memory_bytes)
-            {
-                Ok((s, t)) => {
+            match super::delta_cc::delta(
+                ctx.mol,
+                ctx.basis,
+                wf,
+                ncc,
+                which,
+                ctx.opts.memory_bytes,
+                ctx.opts.natural_virtuals,
+                ctx.opts.progress,
+            ) {
+                Ok((s, t, cut)) => {
                     cc.dccsd_ev = Some(s);
                     cc.dccsdt_ev = t;
+                    if let (Some(i), Some(n)) = (cut, ncc.natural_virtuals.as_ref()) {
+                        notes.push(CoreNote::NaturalVirtuals {
+                            percent: 100.0 * i.population,
+                            neutral_kept: n.kept,
+                            neutral_full: n.full,
+                            ion_kept: i.kept,
+                            ion_full: i.full,
+                            correction_ev: ev(i.correction() - n.correction()),
+                        });
+                    }
                 }
                 Err(Error::TooLarge(m)) if ctx.opts.cc_optional => {
                     notes.push(CoreNote::CoupledClusterSkipped { reason: m })

@@ -163,6 +163,11 @@ pub struct CoreOptions {
     pub cc_optional: bool,
     /// How the SCFs build J and K (`fitting.rs`): density-fitted by default.
     pub fock: super::fitting::CoreFock,
+    /// Frozen natural orbitals for the coupled cluster: the fraction of the MP2 virtual
+    /// population kept (`correlation::open_shell::natural_virtuals`); None: all virtuals.
+    pub natural_virtuals: Option<f64>,
+    /// Write the coupled-cluster iterations to stderr as they run (the CLI's `--verbose`).
+    pub progress: bool,
 }
 
 impl Default for CoreOptions {
@@ -184,6 +189,8 @@ impl Default for CoreOptions {
             ion_reference: IonReference::Lowest,
             cc_optional: false,
             fock: super::fitting::CoreFock::default(),
+            natural_virtuals: None,
+            progress: false,
         }
     }
 }

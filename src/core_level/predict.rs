@@ -160,7 +160,15 @@ fn compute_holes(
         out.neutral_mp2s.push(n.mp2);
         let neutral_cc = match opts.cc {
             Some(which) => {
-                match super::delta_cc::neutral(mol, &n.basis, &n.wf, which, opts.memory_bytes) {
+                match super::delta_cc::neutral(
+                    mol,
+                    &n.basis,
+                    &n.wf,
+                    which,
+                    opts.memory_bytes,
+                    opts.natural_virtuals,
+                    opts.progress,
+                ) {
                     Ok(r) => Some(r),
                     // a default coupled cluster refused for memory: the holes keep ΔSCF
                     Err(Error::TooLarge(_)) if opts.cc_optional => None,

@@ -13,7 +13,7 @@ use bandcast_linalg::Mat;
 
 use crate::basis::BasisSet;
 use crate::chem::Molecule;
-use crate::correlation::open_shell::{self, FrozenCore, OpenShellOptions};
+use crate::correlation::open_shell::{self, FrozenCore, NaturalVirtuals, OpenShellOptions};
 use crate::correlation::two_electron::TwoElectron;
 use crate::error::Result;
 use crate::ionization::dscf::{cation_wavefunction, exact_s2, hole_weight, HoldRoute, HOLE_KEPT};
@@ -34,6 +34,8 @@ pub struct CcHole {
     pub s2_exact: f64,
     /// How the cation SCF was held on the hole (None for a cation without electrons).
     pub route: Option<HoldRoute>,
+    /// The frozen-natural-orbital cuts of the neutral and the cation, when asked for.
+    pub natural_virtuals: Option<(NaturalVirtuals, NaturalVirtuals)>,
 }
 
 /// ΔCCSD(T) for the given holes of a converged neutral; a hole whose cation SCF or coupled
@@ -49,8 +51,18 @@ pub fn dccsd_t(
     frozen_core: bool,
     two_electron: &TwoElectron,
     memory_bytes: Option<f64>,
+    natural_virtuals: Option<f64>,
+    progress: bool,
 ) -> Result<Vec<Result<CcHole>>> {
+    let say = |state: String| {
+        move |line: &str| {
+            if progress {
+                eprintln!("  [{state}] {line}");
+            }
+        }
+    };
     let opts = OpenShellOptions {
+        natural_virtuals,
         frozen_core: if frozen_core {
             FrozenCore::Standard
         } else {
@@ -60,7 +72,7 @@ pub fn dccsd_t(
         memory_budget: memory_bytes,
         ..Default::default()
     };
-    let n = open_shell::run(mol, basis, neutral, &opts, &mut |_| {})?;
+    let n = open_shell::run(mol, basis, neutral, &opts, &mut say("neutral".into()))?;
     let en = n.e_ccsd_t().expect("(T) asked");
     Ok(holes
         .iter()
@@ -78,6 +90,7 @@ pub fn dccsd_t(
                     s2: 0.0,
                     s2_exact: 0.0,
                     route: None,
+                    natural_virtuals: None,
                 });
             };
             let (c_ref, c, occ) = match hole_spin {
@@ -85,7 +98,13 @@ pub fn dccsd_t(
                 _ => (&neutral.c_beta, &wf.c_beta, &wf.occ_beta),
             };
             let w = hole_weight(overlap, c_ref, orbital, c, occ);
-            let r = open_shell::run(&cation, basis, &wf, &opts, &mut |_| {})?;
+            let r = open_shell::run(
+                &cation,
+                basis,
+                &wf,
+                &opts,
+                &mut say(format!("cation, hole in MO {}", orbital + 1)),
+            )?;
             Ok(CcHole {
                 ie: r.e_ccsd_t().expect("(T) asked") - en,
                 ie_ccsd: r.e_ccsd() - n.e_ccsd(),
@@ -95,6 +114,7 @@ pub fn dccsd_t(
                 s2: wf.s2,
                 s2_exact: exact_s2(&cation),
                 route: Some(route),
+                natural_virtuals: n.natural_virtuals.clone().zip(r.natural_virtuals.clone()),
             })
         })
         .collect())

@@ -60,6 +60,12 @@ pub struct ValenceOptions {
     pub eom_integrals: crate::correlation::two_electron::TwoElectron,
     /// SCF settings for the neutral (and, for ΔSCF, the base settings for the cations).
     pub scf: ScfOptions,
+    /// Frozen natural orbitals for ΔCCSD(T): the fraction of the MP2 virtual population
+    /// kept (`correlation::open_shell::natural_virtuals`); None: all virtuals.
+    pub natural_virtuals: Option<f64>,
+    /// Write the coupled-cluster iterations of ΔCCSD(T) to stderr as they run (the CLI's
+    /// `--verbose`).
+    pub progress: bool,
 }
 
 impl Default for ValenceOptions {
@@ -75,6 +81,8 @@ impl Default for ValenceOptions {
             memory_bytes: 4_000_000_000,
             eom_integrals: crate::correlation::two_electron::TwoElectron::Auto,
             scf: ScfOptions::default(),
+            natural_virtuals: None,
+            progress: false,
         }
     }
 }
@@ -396,6 +404,8 @@ fn method_energies(
                 opts.frozen_core,
                 &opts.eom_integrals,
                 Some(opts.memory_bytes as f64),
+                opts.natural_virtuals,
+                opts.progress,
             )?;
             let mut out = Vec::new();
             for (set, h) in sets.iter().zip(res) {
@@ -410,6 +420,17 @@ fn method_energies(
                             dccsdt_ev: ev(h.ie),
                             s2: h.s2,
                         });
+                        if let Some((n, c)) = &h.natural_virtuals {
+                            notes.push(ValenceNotice::NaturalVirtuals {
+                                mo,
+                                percent: 100.0 * c.population,
+                                neutral_kept: n.kept,
+                                neutral_full: n.full,
+                                cation_kept: c.kept,
+                                cation_full: c.full,
+                                correction_ev: ev(c.correction() - n.correction()),
+                            });
+                        }
                         if h.hole_moved {
                             warnings.push(ValenceNotice::HoleMoved {
                                 mo: set.representative() + 1,

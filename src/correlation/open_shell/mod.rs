@@ -15,6 +15,7 @@
 
 #[cfg(test)]
 pub mod ccsd;
+pub mod natural_virtuals;
 pub mod reference;
 pub mod spin_blocks;
 #[cfg(test)]
@@ -36,6 +37,7 @@ use crate::scf::Wavefunction;
 use crate::{Error, Result};
 
 pub use crate::correlation::ccsd::CcsdOptions;
+pub use natural_virtuals::NaturalVirtuals;
 pub use reference::Selection;
 
 /// How the frozen core is chosen.
@@ -60,6 +62,10 @@ pub struct OpenShellOptions {
     /// Memory budget (bytes); None = 80 % of the available memory.
     pub memory_budget: Option<f64>,
     pub ccsd: CcsdOptions,
+    /// Frozen natural orbitals: keep the MP2 natural virtuals holding this fraction of the
+    /// virtual population (0 < x ≤ 1) and add the MP2 energy of the rest
+    /// (natural_virtuals.rs). None: all virtuals.
+    pub natural_virtuals: Option<f64>,
 }
 
 impl Default for OpenShellOptions {
@@ -72,6 +78,7 @@ impl Default for OpenShellOptions {
             cholesky_threshold: 1e-5,
             memory_budget: None,
             ccsd: CcsdOptions::default(),
+            natural_virtuals: None,
         }
     }
 }
@@ -91,11 +98,18 @@ pub struct OpenShellResult {
     pub semicanonical: bool,
     pub peak_estimate_bytes: f64,
     pub notes: Vec<String>,
+    /// The natural-virtual cut, when asked for; its MP2 correction is part of `e_ccsd`.
+    pub natural_virtuals: Option<NaturalVirtuals>,
 }
 
 impl OpenShellResult {
     pub fn e_ccsd(&self) -> f64 {
-        self.e_reference + self.e_ccsd_corr
+        self.e_reference
+            + self.e_ccsd_corr
+            + self
+                .natural_virtuals
+                .as_ref()
+                .map_or(0.0, |n| n.correction())
     }
     pub fn e_ccsd_t(&self) -> Option<f64> {
         self.e_triples.map(|t| self.e_ccsd() + t)
@@ -198,7 +212,24 @@ pub fn plan(
     let budget = opts
         .memory_budget
         .unwrap_or_else(|| 0.8 * crate::system::available_bytes());
-    let mp = estimate(naux, m, oo, vv, opts.ccsd.diis_size, opts.triples, budget);
+    let mp = match opts.natural_virtuals {
+        None => estimate(naux, m, oo, vv, opts.ccsd.diis_size, opts.triples, budget),
+        // Before the natural-virtual cut only its own stage is known: the factors over all
+        // orbitals (twice, during the cut), each occupied orbital's B^Q_ia and the per-thread
+        // pair matrices. The coupled-cluster stage is planned again with the kept sizes
+        // (`run`), before any coupled-cluster work.
+        Some(_) => {
+            let nq = naux as f64;
+            let vmax = vv[0].max(vv[1]) as f64;
+            let fac_prep = nq * ((m[0] * m[0]) as f64 + (m[1] * m[1]) as f64);
+            let rows = nq * ((oo[0] * vv[0]) as f64 + (oo[1] * vv[1]) as f64);
+            let temps = (rayon::current_num_threads() as f64 * 5.0 + 4.0) * vmax * vmax;
+            MemoryPlan {
+                peak_bytes: 8.0 * (2.0 * fac_prep + rows + temps),
+                hold_ladder: false,
+            }
+        }
+    };
     let peak = mp.peak_bytes;
     if peak > budget {
         let hint = if opts.triples {
@@ -244,16 +275,54 @@ pub fn run(
         .unwrap_or_else(|| 0.8 * crate::system::available_bytes());
     let npair = (basis.n_basis * (basis.n_basis + 1) / 2) as f64;
     let max_chol = ((budget - peak).max(0.0) / (8.0 * npair) / 2.0) as usize;
-    let (mut sys, note) = spin_system::build(
-        basis,
-        &h,
-        wfn,
-        &sel,
-        &how,
-        max_chol.max(1),
-        mp.hold_ladder,
-        log,
-    )?;
+    let mut prepared = reference::prepare(basis, &h, wfn, &sel, &how, max_chol.max(1), log)?;
+    let fno = opts
+        .natural_virtuals
+        .map(|x| natural_virtuals::truncate(&mut prepared, nf, x));
+    let (mp, peak) = match &fno {
+        None => (mp, peak),
+        Some(cut) => {
+            let f = &prepared.fac;
+            let m = [f[0].m, f[1].m];
+            let o = [f[0].nocc - nf[0], f[1].nocc - nf[1]];
+            let v = [m[0] - f[0].nocc, m[1] - f[1].nocc];
+            let after = estimate(
+                f[0].naux,
+                m,
+                o,
+                v,
+                opts.ccsd.diis_size,
+                opts.triples,
+                budget,
+            );
+            log(&format!(
+                "natural virtuals: kept {}α+{}β of {}α+{}β ({:.2} % of the MP2 virtual \
+                 population), MP2 correction {:.6} Eh",
+                cut.kept[0],
+                cut.kept[1],
+                cut.full[0],
+                cut.full[1],
+                100.0 * cut.population,
+                cut.correction()
+            ));
+            if after.peak_bytes > budget {
+                return Err(Error::TooLarge(format!(
+                    "open-shell coupled cluster needs about {} of memory after the \
+                     natural-virtual cut ({}α+{}β of {}α+{}β virtuals kept) but the budget is \
+                     {}; keep a smaller fraction of the virtual population, or use ΔMP2 or \
+                     ΔSCF",
+                    crate::system::format_bytes(after.peak_bytes),
+                    cut.kept[0],
+                    cut.kept[1],
+                    cut.full[0],
+                    cut.full[1],
+                    crate::system::format_bytes(budget)
+                )));
+            }
+            (after, peak.max(after.peak_bytes))
+        }
+    };
+    let (mut sys, note) = spin_system::build_prepared(prepared, &sel, mp.hold_ladder)?;
     let (nocc, nvir) = (sys.o[0] + sys.o[1], sys.v[0] + sys.v[1]);
     log(&format!(
         "open-shell CCSD (spin blocks): {}α+{}β correlated occupied and {}α+{}β virtual \
@@ -295,5 +364,6 @@ pub fn run(
         semicanonical: sys.semicanonical,
         peak_estimate_bytes: peak,
         notes,
+        natural_virtuals: fno,
     })
 }

@@ -20,7 +20,7 @@
 use bandcast_linalg::{MatMut, MatRef};
 use rayon::prelude::*;
 
-use super::reference::{prepare, Selection};
+use super::reference::{prepare, Prepared, Selection};
 use super::spin_blocks::{conserving, spin, Blocked};
 use crate::basis::BasisSet;
 use crate::correlation::tensor::{gemm_rm, par_gemm, Tensor};
@@ -176,6 +176,16 @@ pub fn build(
     log: &mut dyn FnMut(&str),
 ) -> Result<(SpinBlockedSystem, String)> {
     let p = prepare(basis, h_ao, wfn, sel, how, max_cholesky_vectors, log)?;
+    build_prepared(p, sel, hold_ladder)
+}
+
+/// The spin-blocked system from prepared factors and Fock matrices (after any change to
+/// the orbital spaces, such as the natural-virtual cut).
+pub(super) fn build_prepared(
+    p: Prepared,
+    sel: &Selection,
+    hold_ladder: bool,
+) -> Result<(SpinBlockedSystem, String)> {
     let naux = p.fac[0].naux;
     let mut o = [0; 2];
     let mut v = [0; 2];

@@ -279,3 +279,85 @@ fn spin_blocked_equals_spin_orbital_core_hole() {
     };
     spin_blocked_matches_spin_orbital(&cation, &basis, &w, &sel, 1e-10);
 }
+
+/// The MP2 energy the natural-virtual cut starts from, on water/STO-3G as UHF (all
+/// electrons): −0.049149636120 Eh (Crawford group Programming Project #4, same geometry as
+/// docs/reference-data.md §1; from memory, hence 1e-7).
+#[test]
+fn natural_virtual_mp2_matches_published_water() {
+    let mol = water();
+    let basis = crate::basis::load("sto-3g", &mol, None).unwrap();
+    let uhf = scf(&mol, &basis, Reference::Uhf);
+    let h = crate::scf::context::core_hamiltonian(&basis, &mol);
+    let how = two_electron::resolve(&TwoElectron::Cholesky, &mol, &basis, 1e-10).unwrap();
+    let p = reference::prepare(
+        &basis,
+        &h,
+        &uhf,
+        &Selection::default(),
+        &how,
+        10_000,
+        &mut |_| {},
+    )
+    .unwrap();
+    let (e, d) = natural_virtuals::mp2(&p, [0, 0], true);
+    assert!((e - -0.049149636120).abs() < 1e-7, "MP2 {e}");
+    // closed shell: both spins' densities are the same matrix
+    let d = d.unwrap();
+    for a in 0..d[0].nrows() {
+        for b in 0..d[0].ncols() {
+            assert!((d[0][(a, b)] - d[1][(a, b)]).abs() < 1e-12);
+        }
+    }
+}
+
+/// Exact conditions of the cut: keeping every natural virtual is a rotation within the
+/// virtual space, which leaves CCSD and (T) unchanged (to 1e-8 Eh) and adds no MP2
+/// correction; keeping fewer gives a correction ≤ 0 and fewer orbitals. UHF and ROHF H2O⁺
+/// (6-31G*), and a core hole with its orbital excluded.
+#[test]
+fn natural_virtual_cut_keeps_the_energy_when_nothing_is_cut() {
+    let mol = water().with_charge_multiplicity(1, 2).unwrap();
+    let basis = crate::basis::load("6-31g*", &mol, None).unwrap();
+    for r in [Reference::Uhf, Reference::Rohf] {
+        let w = scf(&mol, &basis, r);
+        let full = run(
+            &mol,
+            &basis,
+            &w,
+            &tight(FrozenCore::Standard, true, 1e-10),
+            &mut |_| {},
+        )
+        .unwrap();
+        let mut o = tight(FrozenCore::Standard, true, 1e-10);
+        o.natural_virtuals = Some(1.0);
+        let all = run(&mol, &basis, &w, &o, &mut |_| {}).unwrap();
+        let cut = all.natural_virtuals.as_ref().unwrap();
+        assert_eq!(cut.kept, cut.full);
+        assert!(cut.correction().abs() < 1e-10, "{}", cut.correction());
+        assert!((all.e_ccsd() - full.e_ccsd()).abs() < 1e-8, "{r:?} CCSD");
+        assert!(
+            (all.e_ccsd_t().unwrap() - full.e_ccsd_t().unwrap()).abs() < 1e-8,
+            "{r:?} (T)"
+        );
+        o.natural_virtuals = Some(0.95);
+        let some = run(&mol, &basis, &w, &o, &mut |_| {}).unwrap();
+        let cut = some.natural_virtuals.as_ref().unwrap();
+        assert!(
+            cut.kept[0] < cut.full[0] && cut.kept[1] < cut.full[1],
+            "{cut:?}"
+        );
+        assert!(cut.correction() < 0.0, "{cut:?}");
+    }
+    let neutral = water();
+    let basis = crate::basis::load("6-31g*", &neutral, None).unwrap();
+    let mut w = scf(&neutral, &basis, Reference::Rhf);
+    w.reference = Reference::Rohf;
+    w.occ_beta[0] = 0.0;
+    let mut o = tight(FrozenCore::None, true, 1e-10);
+    o.excluded_virtuals = [vec![], vec![0]];
+    let full = run(&mol, &basis, &w, &o, &mut |_| {}).unwrap();
+    o.natural_virtuals = Some(1.0);
+    let all = run(&mol, &basis, &w, &o, &mut |_| {}).unwrap();
+    assert!((all.e_ccsd_t().unwrap() - full.e_ccsd_t().unwrap()).abs() < 1e-8);
+}
