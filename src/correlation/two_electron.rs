@@ -69,6 +69,54 @@ pub fn resolve(
     }
 }
 
+/// MO factors of the two spins of an open-shell reference, each over its own active
+/// orbitals (`spins[s]` = (c_occ, o, c_vir, v) as in `mo_factors`): the Cholesky route
+/// decomposes the AO integrals once for both, and the description is logged once.
+pub fn mo_factors_both_spins(
+    how: &Resolved,
+    basis: &BasisSet,
+    spins: [(&[f64], usize, &[f64], usize); 2],
+    max_cholesky_vectors: usize,
+    log: &mut dyn FnMut(&str),
+) -> Result<([MoFactors; 2], String)> {
+    match how {
+        Resolved::Fitted(_) => {
+            let (a, note) = mo_factors(
+                how,
+                basis,
+                spins[0].0,
+                spins[0].1,
+                spins[0].2,
+                spins[0].3,
+                max_cholesky_vectors,
+                log,
+            )?;
+            let (b, _) = mo_factors(
+                how,
+                basis,
+                spins[1].0,
+                spins[1].1,
+                spins[1].2,
+                spins[1].3,
+                max_cholesky_vectors,
+                &mut |_| {},
+            )?;
+            Ok(([a, b], note))
+        }
+        Resolved::Cholesky(tau) => {
+            let eng = EriEngine::new(basis);
+            let cd = cholesky::decompose(basis, &eng, *tau, max_cholesky_vectors, log)?;
+            let f = spins.map(|(co, o, cv, v)| cd.to_mo(co, o, cv, v));
+            let note = format!(
+                "two-electron integrals: Cholesky decomposition, threshold {tau:.0e} Eh, {} \
+                 vectors",
+                cd.nvec
+            );
+            Ok((f, note))
+        }
+    }
+}
+
 /// MO factors over the active orbitals (`c_occ` n × o, `c_vir` n × v, row-major, MOs as
 /// columns) and a one-line description for the report. `max_cholesky_vectors` bounds the
 /// Cholesky route's memory.

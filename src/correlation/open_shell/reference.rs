@@ -240,28 +240,36 @@ pub(super) fn prepare(
 ) -> Result<Prepared> {
     let n = basis.n_basis;
     let lists = orbital_lists(wfn, sel);
-    let mut fac = Vec::new();
     let mut coefs = Vec::new();
-    let mut note = String::new();
+    let mut cols = Vec::new();
     for (s, (occ, vir)) in lists.iter().enumerate() {
         let c = if s == 0 { &wfn.c_alpha } else { &wfn.c_beta };
-        let co = columns(c, occ);
-        let cv = columns(c, vir);
-        let (f, nt) = two_electron::mo_factors(
-            how,
-            basis,
-            &co,
-            occ.len(),
-            &cv,
-            vir.len(),
-            max_cholesky_vectors,
-            log,
-        )?;
-        note = nt;
-        fac.push(dense(&f));
+        cols.push((columns(c, occ), columns(c, vir)));
         let all: Vec<usize> = occ.iter().chain(vir).copied().collect();
         coefs.push(columns(c, &all));
     }
+    let (factors, note) = two_electron::mo_factors_both_spins(
+        how,
+        basis,
+        [0, 1].map(|s| {
+            (
+                &cols[s].0[..],
+                lists[s].0.len(),
+                &cols[s].1[..],
+                lists[s].1.len(),
+            )
+        }),
+        max_cholesky_vectors,
+        log,
+    )?;
+    drop(cols);
+    // one spin at a time, so at most one MO-factor copy is alive beside the dense ones
+    let [fa, fb] = factors;
+    let da = dense(&fa);
+    drop(fa);
+    let db = dense(&fb);
+    drop(fb);
+    let mut fac = vec![da, db];
     let rohf = wfn.reference == Reference::Rohf;
     // Fock over each spin's kept orbitals
     let mut fock: Vec<Vec<f64>> = Vec::new();
