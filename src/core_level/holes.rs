@@ -11,6 +11,7 @@ use crate::chem::elements::symbol;
 use crate::chem::environment::environments;
 use crate::chem::Molecule;
 use crate::correlation::mp2::mp2_energy;
+use crate::correlation::open_shell::CutPair;
 use crate::error::{Error, Result};
 use crate::scf::{ScfContext, Wavefunction};
 use crate::units::ev;
@@ -147,14 +148,7 @@ pub fn ionise_atom(
                     cc.dccsd_ev = Some(s);
                     cc.dccsdt_ev = t;
                     if let (Some(i), Some(n)) = (cut, ncc.natural_virtuals.as_ref()) {
-                        notes.push(CoreNote::NaturalVirtuals {
-                            percent: 100.0 * i.population,
-                            neutral_kept: n.kept,
-                            neutral_full: n.full,
-                            ion_kept: i.kept,
-                            ion_full: i.full,
-                            correction_ev: ev(i.correction() - n.correction()),
-                        });
+                        notes.push(CoreNote::NaturalVirtuals(CutPair::new(n, &i)));
                     }
                 }
                 Err(Error::TooLarge(m)) if ctx.opts.cc_optional => {

@@ -64,17 +64,9 @@ pub enum CoreNote {
     NoUhfForMp2,
     /// The default coupled cluster was refused for memory at run time: ΔSCF kept.
     CoupledClusterSkipped { reason: String },
-    /// The coupled cluster ran on frozen natural orbitals: virtuals kept (α, β) of each
-    /// state's full count, the kept share of the MP2 virtual population (%), and what the MP2
-    /// energy of the cut orbitals adds to the binding energy (eV).
-    NaturalVirtuals {
-        percent: f64,
-        neutral_kept: [usize; 2],
-        neutral_full: [usize; 2],
-        ion_kept: [usize; 2],
-        ion_full: [usize; 2],
-        correction_ev: f64,
-    },
+    /// The coupled cluster ran on frozen natural orbitals (what was kept, and what the MP2
+    /// energy of the cut orbitals adds to the binding energy).
+    NaturalVirtuals(crate::correlation::open_shell::CutPair),
     // --- second-shell (2s, 2p) levels (two_p.rs) ---
     /// How the 2p spin–orbit splitting was computed (run note).
     SpinOrbitModel { source: String },
@@ -111,7 +103,7 @@ impl CoreNote {
             CoreNote::SpinContaminated { .. } => "spin_contaminated",
             CoreNote::NoUhfForMp2 => "no_uhf_for_mp2",
             CoreNote::CoupledClusterSkipped { .. } => "coupled_cluster_skipped",
-            CoreNote::NaturalVirtuals { .. } => "natural_virtuals",
+            CoreNote::NaturalVirtuals(_) => "natural_virtuals",
             CoreNote::SpinOrbitModel { .. } => "spin_orbit_model",
             CoreNote::HoleTurned { .. } => "hole_turned",
             CoreNote::Mp2Intruder { .. } => "mp2_intruder",
@@ -257,21 +249,7 @@ impl fmt::Display for CoreNote {
                 "coupled cluster not run for this level ({reason}); the recommended value is \
                  ΔSCF"
             ),
-            CoreNote::NaturalVirtuals {
-                percent,
-                neutral_kept: nk,
-                neutral_full: nf,
-                ion_kept: ik,
-                ion_full: inf,
-                correction_ev,
-            } => write!(
-                f,
-                "coupled cluster on frozen natural orbitals ({percent} % of the MP2 virtual \
-                 population): {}α+{}β of {}α+{}β virtuals kept in the neutral, {}α+{}β of \
-                 {}α+{}β in the ion; the MP2 energy of the cut ones moves the binding energy \
-                 by {correction_ev:+.3} eV",
-                nk[0], nk[1], nf[0], nf[1], ik[0], ik[1], inf[0], inf[1]
-            ),
+            CoreNote::NaturalVirtuals(cut) => write!(f, "{cut}"),
         }
     }
 }

@@ -37,17 +37,10 @@ pub enum ValenceNotice {
         dccsdt_ev: f64,
         s2: f64,
     },
-    /// ΔCCSD(T) with frozen natural orbitals: the virtual orbitals kept (α, β) of each
-    /// state's full count, the kept share of the MP2 virtual population (%), and what the
-    /// MP2 correction of the cut orbitals adds to the band's IE (eV) (note).
+    /// ΔCCSD(T) of band MO `mo` ran on frozen natural orbitals (note).
     NaturalVirtuals {
         mo: usize,
-        percent: f64,
-        neutral_kept: [usize; 2],
-        neutral_full: [usize; 2],
-        cation_kept: [usize; 2],
-        cation_full: [usize; 2],
-        correction_ev: f64,
+        cut: crate::correlation::open_shell::CutPair,
     },
     /// A band's pole strength is below `ionization::valence::LOW_POLE_STRENGTH` (warning).
     LowPoleStrength { band: String, pole_strength: f64 },
@@ -141,22 +134,7 @@ impl fmt::Display for ValenceNotice {
                 "MO {mo}: ΔSCF {dscf_ev:.3} eV, ΔCCSD {dccsd_ev:.3} eV, ΔCCSD(T) {dccsdt_ev:.3} \
                  eV (cation <S²> {s2:.3})"
             ),
-            ValenceNotice::NaturalVirtuals {
-                mo,
-                percent,
-                neutral_kept: nk,
-                neutral_full: nf,
-                cation_kept: ck,
-                cation_full: cf,
-                correction_ev,
-            } => write!(
-                f,
-                "MO {mo}: frozen natural orbitals ({percent} % of the MP2 virtual population) \
-                 keep {}α+{}β of {}α+{}β virtuals in the neutral and {}α+{}β of {}α+{}β in \
-                 the cation; the MP2 energy of the cut ones moves the IE by {correction_ev:+.3} \
-                 eV",
-                nk[0], nk[1], nf[0], nf[1], ck[0], ck[1], cf[0], cf[1]
-            ),
+            ValenceNotice::NaturalVirtuals { mo, cut } => write!(f, "MO {mo}: {cut}"),
             ValenceNotice::LowPoleStrength {
                 band,
                 pole_strength,

@@ -10,6 +10,7 @@ use bandcast_linalg::Mat;
 use crate::basis::BasisSet;
 use crate::chem::frozen_core::core_orbitals;
 use crate::chem::Molecule;
+use crate::correlation::open_shell::CutPair;
 use crate::error::{Error, Result};
 use crate::integrals::EriEngine;
 use crate::ionization::annotate::Annotator;
@@ -423,12 +424,7 @@ fn method_energies(
                         if let Some((n, c)) = &h.natural_virtuals {
                             notes.push(ValenceNotice::NaturalVirtuals {
                                 mo,
-                                percent: 100.0 * c.population,
-                                neutral_kept: n.kept,
-                                neutral_full: n.full,
-                                cation_kept: c.kept,
-                                cation_full: c.full,
-                                correction_ev: ev(c.correction() - n.correction()),
+                                cut: CutPair::new(n, c),
                             });
                         }
                         if h.hole_moved {

@@ -37,7 +37,7 @@ use crate::scf::Wavefunction;
 use crate::{Error, Result};
 
 pub use crate::correlation::ccsd::CcsdOptions;
-pub use natural_virtuals::NaturalVirtuals;
+pub use natural_virtuals::{CutPair, NaturalVirtuals};
 pub use reference::Selection;
 
 /// How the frozen core is chosen.

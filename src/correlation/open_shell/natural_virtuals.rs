@@ -17,6 +17,10 @@
 //! - After the cut the kept virtuals are made semicanonical again (their Fock block
 //!   diagonalized), so the coupled cluster sees the same kind of reference as without it.
 //! - Correction: E_MP2(all virtuals) − E_MP2(kept virtuals), both from the same formula.
+//! - This MP2 works on the coupled cluster's own factors and orbital spaces (frozen core,
+//!   excluded hole, semicanonical ROHF) because the cut must be made there; the ΔMP2 of
+//!   core levels (`correlation::mp2::mp2_energy`, all electrons, the hole as a virtual) is a
+//!   different quantity and stays where it is.
 
 use bandcast_linalg::{congruence, eigh, mul, Mat, MatRef};
 use rayon::prelude::*;
@@ -40,6 +44,60 @@ impl NaturalVirtuals {
     /// The energy added to the coupled-cluster result (hartree, ≤ 0 in practice).
     pub fn correction(&self) -> f64 {
         self.e_mp2_full - self.e_mp2_kept
+    }
+}
+
+/// The cuts of the two states of an energy difference (neutral and ion), as the notes of
+/// `ionize` and `core` report them.
+#[derive(Debug, Clone, PartialEq)]
+pub struct CutPair {
+    /// Kept share of the MP2 virtual population (%).
+    pub percent: f64,
+    pub neutral_kept: [usize; 2],
+    pub neutral_full: [usize; 2],
+    pub ion_kept: [usize; 2],
+    pub ion_full: [usize; 2],
+    /// What the MP2 energy of the cut orbitals adds to E(ion) − E(neutral) (eV).
+    pub correction_ev: f64,
+}
+
+impl CutPair {
+    pub fn new(neutral: &NaturalVirtuals, ion: &NaturalVirtuals) -> CutPair {
+        CutPair {
+            percent: 100.0 * ion.population,
+            neutral_kept: neutral.kept,
+            neutral_full: neutral.full,
+            ion_kept: ion.kept,
+            ion_full: ion.full,
+            correction_ev: crate::units::ev(ion.correction() - neutral.correction()),
+        }
+    }
+}
+
+impl std::fmt::Display for CutPair {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        let (nk, nf, ik, inf) = (
+            self.neutral_kept,
+            self.neutral_full,
+            self.ion_kept,
+            self.ion_full,
+        );
+        write!(
+            f,
+            "coupled cluster on frozen natural orbitals ({} % of the MP2 virtual population): \
+             {}α+{}β of {}α+{}β virtuals kept in the neutral, {}α+{}β of {}α+{}β in the ion; \
+             the MP2 energy of the cut ones adds {:+.3} eV",
+            self.percent,
+            nk[0],
+            nk[1],
+            nf[0],
+            nf[1],
+            ik[0],
+            ik[1],
+            inf[0],
+            inf[1],
+            self.correction_ev
+        )
     }
 }
 
