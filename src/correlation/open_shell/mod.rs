@@ -342,9 +342,21 @@ pub fn run(
     ));
     let cc = uccsd::solve(&sys, &opts.ccsd, log)?;
     sys.ladder_store = None;
-    let e_t = opts
-        .triples
-        .then(|| utriples::correction(&sys, &cc.t1, &cc.t2));
+    let e_t = opts.triples.then(|| {
+        let (no, nv) = (sys.o[0] + sys.o[1], sys.v[0] + sys.v[1]);
+        log(&format!(
+            "(T): {} occupied spin-orbital triples over {nv} virtual spin orbitals",
+            no * no.saturating_sub(1) * no.saturating_sub(2) / 6
+        ));
+        let start = std::time::Instant::now();
+        let e = utriples::correction(&sys, &cc.t1, &cc.t2);
+        log(&format!(
+            "(T) correction {e:.10} Eh ({:.1} s); CCSD(T) correlation energy {:.10} Eh",
+            start.elapsed().as_secs_f64(),
+            cc.e_corr + e
+        ));
+        e
+    });
     let mut notes = vec![note];
     if sys.semicanonical {
         notes.push(

@@ -14,7 +14,8 @@
 //!   product over spin blocks and is skipped when spin makes its blocks zero.
 //!
 //! Work: of order o³v⁴ (a few v⁴ products per occupied triple). Memory: the blocks and t2
-//! are already held; each parallel task holds at most 12 v³ arrays (`task_words`).
+//! are already held; each parallel task holds at most 8 v³ arrays, reused from triple to triple (`Scratch`;
+//! `task_words` budgets 12).
 
 use rayon::prelude::*;
 
@@ -52,6 +53,23 @@ fn slab<'a>(t: &'a Blocked, s: [usize; 4], p: usize) -> Option<&'a [f64]> {
     let b = t.block(m)?;
     let w = b.shape[1] * b.shape[2] * b.shape[3];
     Some(&b.data[p * w..(p + 1) * w])
+}
+
+/// Per-task buffers, reused from one occupied triple to the next: allocating v³ arrays
+/// afresh for each triple costs a page fault per 4 KiB (most of the system time of a large
+/// run). `ys` holds Y (connected, disconnected) of up to three spin patterns; `wc`, `wd` the
+/// combined W.
+#[derive(Default)]
+struct Scratch {
+    ys: Vec<(Vec<f64>, Vec<f64>)>,
+    wc: Vec<f64>,
+    wd: Vec<f64>,
+}
+
+/// Resize `x` to `n` words, all zero (no reallocation once it is large enough).
+fn zeroed(x: &mut Vec<f64>, n: usize) {
+    x.clear();
+    x.resize(n, 0.0);
 }
 
 /// E(T) in hartree.
@@ -122,7 +140,7 @@ pub fn correction(sys: &SpinBlockedSystem, t1: &Blocked, t2: &Blocked) -> f64 {
     };
     let sum: f64 = triples
         .par_iter()
-        .map(|&(ii, jj, kk)| {
+        .map_init(Scratch::default, |scr, &(ii, jj, kk)| {
             let nb = ii.0 + jj.0 + kk.0;
             let p: [usize; 3] = match nb {
                 0 => [0, 0, 0],
@@ -132,26 +150,70 @@ pub fn correction(sys: &SpinBlockedSystem, t1: &Blocked, t2: &Blocked) -> f64 {
             };
             let mult = if nb == 0 || nb == 3 { 1.0 } else { 3.0 };
             let pats = [p, [p[1], p[0], p[2]], [p[2], p[1], p[0]]];
-            // Y of each needed pattern (connected, disconnected)
-            let mut ys: Vec<([usize; 3], Vec<f64>, Vec<f64>)> = Vec::new();
-            for q in pats {
-                if ys.iter().any(|y| y.0 == q) {
+            // Y of each needed pattern (connected, disconnected), in reused buffers
+            let mut slot = [0usize; 3];
+            let mut distinct: Vec<[usize; 3]> = Vec::with_capacity(3);
+            for (k, q) in pats.into_iter().enumerate() {
+                if let Some(d) = distinct.iter().position(|&x| x == q) {
+                    slot[k] = d;
                     continue;
                 }
+                slot[k] = distinct.len();
+                distinct.push(q);
+            }
+            while scr.ys.len() < distinct.len() {
+                scr.ys.push((Vec::new(), Vec::new()));
+            }
+            for (d, q) in distinct.iter().enumerate() {
                 let n = v[q[0]] * v[q[1]] * v[q[2]];
-                let (mut yc, mut yd) = (vec![0.0; n], vec![0.0; n]);
+                let (yc, yd) = &mut scr.ys[d];
+                zeroed(yc, n);
+                zeroed(yd, n);
                 for (sgn, (a, b, c)) in [
                     (1.0, (ii, jj, kk)),
                     (-1.0, (jj, ii, kk)),
                     (-1.0, (kk, jj, ii)),
                 ] {
-                    raw(q, a, b, c, sgn, &mut yc, &mut yd);
+                    raw(*q, a, b, c, sgn, yc, yd);
                 }
-                ys.push((q, yc, yd));
             }
-            let get = |q: [usize; 3]| ys.iter().find(|y| y.0 == q).unwrap();
-            let (y0, y1, y2) = (get(pats[0]), get(pats[1]), get(pats[2]));
             let (na, nb_, nc) = (v[p[0]], v[p[1]], v[p[2]]);
+            let n = na * nb_ * nc;
+            // W[a,b,c] = Y_p[a,b,c] − Y_p'[b,a,c] − Y_p''[c,b,a], connected and disconnected
+            let Scratch { ys, wc, wd } = scr;
+            for (w, part) in [(&mut *wc, 0usize), (&mut *wd, 1)] {
+                let pick = |k: usize| -> &[f64] {
+                    let y = &ys[slot[k]];
+                    if part == 0 {
+                        &y.0[..n]
+                    } else {
+                        &y.1[..n]
+                    }
+                };
+                let (y0, y1, y2) = (pick(0), pick(1), pick(2));
+                w.clear();
+                w.extend_from_slice(y0);
+                for a in 0..na {
+                    for b in 0..nb_ {
+                        let dst = &mut w[(a * nb_ + b) * nc..(a * nb_ + b + 1) * nc];
+                        let src = &y1[(b * na + a) * nc..(b * na + a + 1) * nc];
+                        dst.iter_mut().zip(src).for_each(|(x, y)| *x -= y);
+                    }
+                }
+                // y2[c,b,a] in tiles of a and c (both strided in one of the arrays)
+                const TILE: usize = 16;
+                for b in 0..nb_ {
+                    for a0 in (0..na).step_by(TILE) {
+                        for c0 in (0..nc).step_by(TILE) {
+                            for a in a0..(a0 + TILE).min(na) {
+                                for c in c0..(c0 + TILE).min(nc) {
+                                    w[(a * nb_ + b) * nc + c] -= y2[(c * nb_ + b) * na + a];
+                                }
+                            }
+                        }
+                    }
+                }
+            }
             let fva = &sys.fv[p[0]];
             let fvb = &sys.fv[p[1]];
             let fvc = &sys.fv[p[2]];
@@ -159,15 +221,11 @@ pub fn correction(sys: &SpinBlockedSystem, t1: &Blocked, t2: &Blocked) -> f64 {
             let mut e = 0.0;
             for a in 0..na {
                 for b in 0..nb_ {
+                    let dab = dijk - fva[a] - fvb[b];
+                    let base = (a * nb_ + b) * nc;
                     for c in 0..nc {
-                        // Y_p[a,b,c] − Y_p'[b,a,c] − Y_p''[c,b,a]
-                        let n0 = (a * nb_ + b) * nc + c;
-                        let n1 = (b * na + a) * nc + c;
-                        let n2 = (c * nb_ + b) * na + a;
-                        let wc = y0.1[n0] - y1.1[n1] - y2.1[n2];
-                        let wd = y0.2[n0] - y1.2[n1] - y2.2[n2];
-                        let d = dijk - fva[a] - fvb[b] - fvc[c];
-                        e += wc * (wc + wd) / d;
+                        let (x, y) = (wc[base + c], wd[base + c]);
+                        e += x * (x + y) / (dab - fvc[c]);
                     }
                 }
             }
