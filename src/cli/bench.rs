@@ -27,6 +27,8 @@ pub enum Workload {
     Core(super::core::BenchArgs),
     /// EOM-IP-CCSD (benzene) and EOM-IP-MBPT2 (guanine) in def2-TZVPP: time per stage, memory.
     Eom(EomArgs),
+    /// ΔCCSD(T) valence (water 1b1) and core (water O 1s; --large: ethanol C 1s), with and without frozen natural orbitals: time, memory.
+    DeltaCc(DeltaCcArgs),
     /// Franck–Condon lines of seeded random many-mode Duschinsky relations: captured fraction, lines, time.
     FranckCondon(FranckCondonArgs),
     /// One analytic RHF gradient against its SCF (CPU seconds, ratio), and a full harmonic analysis.
@@ -67,6 +69,7 @@ pub fn run(args: Args) -> Result<()> {
         Workload::Scf(a) => super::scf::bench(a),
         Workload::Core(a) => super::core::bench(a),
         Workload::Eom(a) => eom(a),
+        Workload::DeltaCc(a) => delta_cc(a),
         Workload::FranckCondon(a) => franck_condon(a),
         Workload::Gradient(a) => gradient(a),
     }
@@ -261,6 +264,44 @@ fn eom(a: EomArgs) -> Result<()> {
         a.memory * 1024.0 * 1024.0 * 1024.0,
         &mut |l| eprintln!("{l}"),
         &mut |r| print!("{}", bandcast::bench::eom::format_result(r)),
+    )?;
+    Ok(())
+}
+
+/// `bandcast bench delta-cc`: state-specific coupled cluster (library:
+/// `bandcast::bench::delta_cc`).
+#[derive(clap::Args, Debug)]
+pub struct DeltaCcArgs {
+    /// Add ethanol C 1s (CH2OH carbon) in cc-pCVTZ on the hole / cc-pVTZ with --fno 99.5
+    /// (about 7 GiB and 10–20 CPU-minutes).
+    #[arg(long)]
+    pub large: bool,
+    /// Memory budget in GiB for the coupled cluster.
+    #[arg(long, value_name = "GIB", default_value_t = 8.0)]
+    pub memory: f64,
+    /// Directory holding water.xyz and ethanol.xyz (GW100 structures, Å).
+    #[arg(long, value_name = "DIR", default_value = "tests/data/gw100")]
+    pub dir: std::path::PathBuf,
+    /// Print the coupled-cluster iterations on stderr.
+    #[arg(long)]
+    pub verbose: bool,
+}
+
+fn delta_cc(a: DeltaCcArgs) -> Result<()> {
+    if !(a.memory > 0.0) {
+        return Err(Error::input("--memory must be a positive number of GiB"));
+    }
+    println!(
+        "ΔCCSD(T) benchmark ({} threads): energy (eV; core levels non-relativistic), wall \
+         time, CPU time of all threads, peak resident memory (VmHWM) of each case",
+        rayon::current_num_threads()
+    );
+    bandcast::bench::delta_cc::run(
+        &a.dir,
+        a.large,
+        a.memory * 1024.0 * 1024.0 * 1024.0,
+        a.verbose,
+        &mut |r| println!("{r}"),
     )?;
     Ok(())
 }

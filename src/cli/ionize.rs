@@ -47,7 +47,10 @@ pub struct Args {
     /// docs/valence-methods.md and docs/core-levels.md. Default: every virtual orbital.
     #[arg(long, value_name = "PERCENT", value_parser = super::common::parse_fno)]
     pub fno: Option<f64>,
-    /// Report the N bands of lowest ionization energy.
+    /// Report the N bands of lowest ionization energy. Correlated methods compute up to 2
+    /// more in Koopmans' order, in case correlation moves one of them below a counted band
+    /// (N2's 3σg); dccsd-t, at a cation SCF and coupled cluster per band, only those within
+    /// 3 eV (Koopmans) of the last counted band.
     #[arg(long, value_name = "N", conflicts_with = "window")]
     pub count: Option<usize>,
     /// Report the bands with ionization energy in this range in eV: `LO:HI` (e.g. `12:21.2`)
