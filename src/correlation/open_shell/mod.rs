@@ -150,7 +150,9 @@ pub fn estimate(
     let amplitudes = uccsd::peak_words(o, v, diis);
     let batch = vmax.powi(4).min((1u64 << 25) as f64 + vmax.powi(3));
     let batched = fac + blocks + 3.0 * batch + amplitudes;
-    let held = fac + blocks + spin_system::ladder_words(v) + amplitudes.max(2.0 * vmax.powi(4));
+    // the store is filled batch by batch: one batch and the factor slabs beside it
+    let fill = spin_system::ladder_batch_words(v) + 2.0 * nq * vmax * vmax;
+    let held = fac + blocks + spin_system::ladder_words(v) + amplitudes.max(fill);
     let t = if triples {
         fac + blocks
             + 2.0 * uccsd::t2_words(o, v)
