@@ -22,7 +22,7 @@
 //!   core levels (`correlation::mp2::mp2_energy`, all electrons, the hole as a virtual) is a
 //!   different quantity and stays where it is.
 
-use bandcast_linalg::{congruence, eigh, mul, Mat, MatRef};
+use bandcast_linalg::{congruence, eigh, gemm, mul, Mat, MatRef, Par};
 use rayon::prelude::*;
 
 use super::reference::Prepared;
@@ -120,6 +120,21 @@ fn occupied_rows(p: &Prepared, s: usize, nf: usize) -> Vec<Mat<f64>> {
         .collect()
 }
 
+/// acc += t tᵀ (or tᵀ t with `trans`), accumulated in place
+/// (no temporary per occupied pair); sequential, since it runs inside a parallel fold.
+fn add_square(acc: &mut Mat<f64>, t: &Mat<f64>, trans: bool) {
+    gemm(
+        acc.as_mut(),
+        true,
+        t.as_ref(),
+        trans,
+        t.as_ref(),
+        !trans,
+        1.0,
+        Par::Seq,
+    );
+}
+
 fn add(acc: &mut Mat<f64>, x: &Mat<f64>) {
     for c in 0..acc.ncols() {
         for r in 0..acc.nrows() {
@@ -159,7 +174,7 @@ pub(super) fn mp2(p: &Prepared, nf: [usize; 2], density: bool) -> (f64, Option<[
                         }
                     }
                     if let Some(d) = d.as_mut() {
-                        add(d, &mul(t.as_ref(), false, t.as_ref(), true));
+                        add_square(d, &t, false);
                     }
                     (e, d)
                 },
@@ -207,8 +222,8 @@ pub(super) fn mp2(p: &Prepared, nf: [usize; 2], density: bool) -> (f64, Option<[
                 }
             }
             if let Some(d) = d.as_mut() {
-                add(&mut d[0], &mul(t.as_ref(), false, t.as_ref(), true));
-                add(&mut d[1], &mul(t.as_ref(), true, t.as_ref(), false));
+                add_square(&mut d[0], &t, false);
+                add_square(&mut d[1], &t, true);
             }
             (e, d)
         })
