@@ -9,8 +9,8 @@
 //! - water O 1s, cc-pCVTZ on O / cc-pVTZ, all virtuals and `--fno 99.5`.
 //!
 //! `large` adds ethanol C 1s of the CH2OH carbon (atom 2), cc-pCVTZ on the hole / cc-pVTZ,
-//! `--fno 99.5` (the "ΔCCSD(T) C 1s of ethanol in cc-pCVTZ-on-hole / cc-pVTZ"; about
-//! 7 GiB and 10–20 CPU-minutes on the measured machine).
+//! `--fno 99.5` (ΔCCSD(T) C 1s of ethanol in cc-pCVTZ-on-hole / cc-pVTZ; figures in
+//! docs/benchmarks.md).
 
 use std::path::Path;
 use std::time::Instant;

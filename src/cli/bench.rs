@@ -273,11 +273,13 @@ fn eom(a: EomArgs) -> Result<()> {
 #[derive(clap::Args, Debug)]
 pub struct DeltaCcArgs {
     /// Add ethanol C 1s (CH2OH carbon) in cc-pCVTZ on the hole / cc-pVTZ with --fno 99.5
-    /// (about 7 GiB and 10–20 CPU-minutes).
+    /// (minutes on two cores; docs/benchmarks.md).
     #[arg(long)]
     pub large: bool,
-    /// Memory budget in GiB for the coupled cluster.
-    #[arg(long, value_name = "GIB", default_value_t = 8.0)]
+    /// Memory budget in GiB for the coupled cluster (ethanol holds its ladder integrals
+    /// within about 5.4 GiB; below that they are rebuilt every iteration, several times
+    /// slower).
+    #[arg(long, value_name = "GIB", default_value_t = 12.0)]
     pub memory: f64,
     /// Directory holding water.xyz and ethanol.xyz (GW100 structures, Å).
     #[arg(long, value_name = "DIR", default_value = "tests/data/gw100")]

@@ -350,8 +350,7 @@ impl SpinBlockedSystem {
     /// The factor slab B^Q_bf over the virtuals of spin s.
     fn virtual_slab(&self, s: usize) -> Vec<f64> {
         let o = self.factors.o[s];
-        self.factors
-            .slab(s, (o, o + self.v[s]), (o, o + self.v[s]))
+        self.factors.slab(s, (o, o + self.v[s]), (o, o + self.v[s]))
     }
 
     /// (ae|bf) as [e,f,a,b] for a in a0..a1 of spin sa and every b of spin sb.
@@ -380,7 +379,8 @@ impl SpinBlockedSystem {
             let a1 = (a0 + nb).min(v);
             let x = self.ladder_raw(s, s, a0, a1, &right);
             // x[(a − a0), e, b, f] = (ae|bf)
-            let at = |a: usize, e: usize, b: usize, f: usize| x[(((a - a0) * v + e) * v + b) * v + f];
+            let at =
+                |a: usize, e: usize, b: usize, f: usize| x[(((a - a0) * v + e) * v + b) * v + f];
             store.par_chunks_mut(np).enumerate().for_each(|(ef, row)| {
                 let (e, f) = unpair(ef, v);
                 for a in a0..a1 {
