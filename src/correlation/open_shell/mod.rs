@@ -193,6 +193,14 @@ pub fn plan(
     wfn: &Wavefunction,
     opts: &OpenShellOptions,
 ) -> Result<(MemoryPlan, Resolved)> {
+    if let Some(x) = opts.natural_virtuals {
+        if !(x > 0.0 && x <= 1.0) {
+            return Err(Error::input(format!(
+                "the natural-virtual population to keep is a fraction above 0 and at most 1 \
+                 (0.995 for 99.5 %), not {x}"
+            )));
+        }
+    }
     let how = two_electron::resolve(&opts.two_electron, mol, basis, opts.cholesky_threshold)?;
     let nf = frozen_counts(mol, wfn, &opts.frozen_core);
     let sel = Selection {

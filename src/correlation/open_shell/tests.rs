@@ -178,6 +178,24 @@ fn refuses_over_budget() {
     assert!(e.to_string().contains("ΔSCF"), "{e}");
 }
 
+/// The kept population is a fraction: a percentage passed by mistake (99.5) is an input
+/// error, not a silent "keep everything".
+#[test]
+fn natural_virtual_population_must_be_a_fraction() {
+    let mol = water();
+    let basis = crate::basis::load("sto-3g", &mol, None).unwrap();
+    let rhf = scf(&mol, &basis, Reference::Rhf);
+    for bad in [99.5, 0.0, -0.5] {
+        let opts = OpenShellOptions {
+            natural_virtuals: Some(bad),
+            ..Default::default()
+        };
+        let e = run(&mol, &basis, &rhf, &opts, &mut |_| {}).unwrap_err();
+        assert!(matches!(e, Error::Input { .. }), "{bad}: {e}");
+        assert!(e.to_string().contains("fraction"), "{e}");
+    }
+}
+
 /// Timing probe (prints only; not a check): N2/cc-pVDZ UHF-CCSD(T) stages.
 #[test]
 #[ignore]
