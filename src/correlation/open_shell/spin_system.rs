@@ -17,7 +17,8 @@
 //! block as ⟨ab||ef⟩ = (ae|bf) − (af|be) over the pairs a<b, e<f only, (v(v−1)/2)² words,
 //! since ½ Σ_ef τ_ij^ef ⟨ab||ef⟩ = Σ_{e<f} τ_ij^ef ⟨ab||ef⟩ and the result is antisymmetric
 //! in a,b. A quarter of the words and of the multiply-adds of the full same-spin blocks:
-//! benzene/def2-TZVPP with 155 virtuals per spin holds 6.9 GB instead of 27 GB. The store
+//! benzene/def2-TZVPP with 155 virtuals per spin holds 6.9 GB instead of 13.8 GB (23 GB with the
+//! old build temporaries). The store
 //! is filled batch by batch of a, with no v⁴ temporary.
 //!
 //! Memory (f64 words; o_σ, v_σ active occupied / virtual orbitals per spin, N_Q factors):
