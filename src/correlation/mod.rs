@@ -11,6 +11,7 @@
 pub mod ccsd;
 pub mod ccsd_intermediates;
 pub mod cholesky;
+pub mod closed_triples;
 pub mod davidson;
 pub mod density_fit;
 pub mod integrals;
