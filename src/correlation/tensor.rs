@@ -1,5 +1,6 @@
 //! Dense row-major tensors and a small `einsum` that turns every binary contraction into one
-//! matrix product (permute → `bandcast_linalg::gemm` → permute back).
+//! matrix product (operands used in place when their axes allow, else permuted →
+//! `bandcast_linalg::gemm` → permuted back when the output order needs it).
 //!
 //! Index letters are single characters. A letter present in both operands and absent from the
 //! output is summed; a letter in one operand and the output is a free index. Batch letters
@@ -328,34 +329,46 @@ pub fn gemm_rm(
     par_gemm(cm, accumulate, am, bm, alpha);
 }
 
-fn permuted<'a>(t: &'a Tensor, perm: &[usize]) -> std::borrow::Cow<'a, Tensor> {
-    if perm.iter().enumerate().all(|(k, &p)| k == p) {
-        std::borrow::Cow::Borrowed(t)
+/// An operand as a (free × contracted) matrix view: borrowed when its axes are already
+/// [free…, contracted…] or [contracted…, free…] (a transposed view), permuted otherwise.
+fn as_operand<'a>(
+    t: &'a Tensor,
+    letters: &[char],
+    free: &[char],
+    contracted: &[char],
+) -> (std::borrow::Cow<'a, Tensor>, bool) {
+    use std::borrow::Cow;
+    let fk: Vec<char> = free.iter().chain(contracted).copied().collect();
+    if letters == fk.as_slice() {
+        return (Cow::Borrowed(t), false);
+    }
+    let kf: Vec<char> = contracted.iter().chain(free).copied().collect();
+    if letters == kf.as_slice() {
+        return (Cow::Borrowed(t), true);
+    }
+    let perm: Vec<usize> = fk
+        .iter()
+        .map(|c| letters.iter().position(|x| x == c).unwrap())
+        .collect();
+    (Cow::Owned(t.permute(&perm)), false)
+}
+
+/// The (f × k) matrix of an operand stored [free, contracted], or [contracted, free] when
+/// `transposed`.
+fn matrix(t: &Tensor, transposed: bool, f: usize, k: usize) -> MatRef<'_, f64> {
+    if transposed {
+        MatRef::from_row_major_slice(&t.data, k, f).transpose()
     } else {
-        std::borrow::Cow::Owned(t.permute(perm))
+        MatRef::from_row_major_slice(&t.data, f, k)
     }
 }
 
-pub static TRACE: std::sync::Mutex<Vec<(String, f64, f64, f64)>> =
-    std::sync::Mutex::new(Vec::new());
-fn now_cpu() -> f64 {
-    crate::system::process_cpu_seconds().unwrap_or(0.0)
-}
-/// Binary contraction, e.g. `einsum("kcld,ilcd->ki", &a, &b)`.
+/// Binary contraction, e.g. `einsum("kcld,ilcd->ki", &a, &b)`: one matrix product. The
+/// summed letters are taken in the order of the larger operand, and an operand whose axes
+/// are already [free, summed] or [summed, free] is used in place (a transposed view for
+/// the latter), so the large integral blocks are seldom copied; the product is formed as
+/// C or Cᵀ, whichever is already in the output's order.
 pub fn einsum(spec: &str, a: &Tensor, b: &Tensor) -> Tensor {
-    let t0 = std::time::Instant::now();
-    let c0 = now_cpu();
-    let (r, tp) = einsum_inner(spec, a, b);
-    let dt = t0.elapsed().as_secs_f64();
-    if dt > 0.01 {
-        TRACE
-            .lock()
-            .unwrap()
-            .push((spec.to_string(), dt, now_cpu() - c0, tp));
-    }
-    r
-}
-fn einsum_inner(spec: &str, a: &Tensor, b: &Tensor) -> (Tensor, f64) {
     let (lhs, out) = spec.split_once("->").expect("einsum spec needs ->");
     let (sa, sb) = lhs.split_once(',').expect("einsum spec needs two operands");
     let ia: Vec<char> = sa.chars().collect();
@@ -378,11 +391,17 @@ fn einsum_inner(spec: &str, a: &Tensor, b: &Tensor) -> (Tensor, f64) {
             b.shape[ib.iter().position(|&x| x == c).unwrap()]
         }
     };
-    let contracted: Vec<char> = ia
-        .iter()
-        .copied()
-        .filter(|c| ib.contains(c) && !io.contains(c))
-        .collect();
+    let summed = |l: &[char], other: &[char]| -> Vec<char> {
+        l.iter()
+            .copied()
+            .filter(|c| other.contains(c) && !io.contains(c))
+            .collect()
+    };
+    let contracted = if b.data.len() > a.data.len() {
+        summed(&ib, &ia)
+    } else {
+        summed(&ia, &ib)
+    };
     let free_a: Vec<char> = ia.iter().copied().filter(|c| io.contains(c)).collect();
     let free_b: Vec<char> = ib.iter().copied().filter(|c| io.contains(c)).collect();
     for c in &free_a {
@@ -402,39 +421,37 @@ fn einsum_inner(spec: &str, a: &Tensor, b: &Tensor) -> (Tensor, f64) {
         let pb = ib.iter().position(|x| x == c).unwrap();
         assert_eq!(a.shape[pa], b.shape[pb], "einsum {spec}: dimension of {c}");
     }
-    // A → (free_a, contracted), B → (contracted, free_b).
-    let pa: Vec<usize> = free_a
-        .iter()
-        .chain(contracted.iter())
-        .map(|c| ia.iter().position(|x| x == c).unwrap())
-        .collect();
-    let pb: Vec<usize> = contracted
-        .iter()
-        .chain(free_b.iter())
-        .map(|c| ib.iter().position(|x| x == c).unwrap())
-        .collect();
-    let tq = std::time::Instant::now();
-    let ap = permuted(a, &pa);
-    let bp = permuted(b, &pb);
-    let mut tperm = tq.elapsed().as_secs_f64();
     let m: usize = free_a.iter().map(|&c| dim(c)).product();
     let k: usize = contracted.iter().map(|&c| dim(c)).product();
     let n: usize = free_b.iter().map(|&c| dim(c)).product();
-    let mid: Vec<char> = free_a.iter().chain(free_b.iter()).copied().collect();
+    let ab: Vec<char> = free_a.iter().chain(free_b.iter()).copied().collect();
+    let ba: Vec<char> = free_b.iter().chain(free_a.iter()).copied().collect();
+    // Cᵀ when that is the output's order (and C is not)
+    let flip = io != ab && io == ba;
+    let mid = if flip { ba } else { ab };
     let mid_shape: Vec<usize> = mid.iter().map(|&c| dim(c)).collect();
     let mut c = Tensor::zeros(&mid_shape);
-    gemm_rm(&mut c.data, false, &ap.data, &bp.data, m, k, n, 1.0);
-    let po: Vec<usize> = io
-        .iter()
-        .map(|ch| mid.iter().position(|x| x == ch).expect("output index"))
-        .collect();
-    if po.iter().enumerate().all(|(k, &p)| k == p) {
-        (c, tperm)
+    if m > 0 && n > 0 && k > 0 {
+        let (ap, at) = as_operand(a, &ia, &free_a, &contracted);
+        let (bp, bt) = as_operand(b, &ib, &free_b, &contracted);
+        let am = matrix(&ap, at, m, k);
+        let bm = matrix(&bp, bt, n, k);
+        if flip {
+            let cm = MatMut::from_row_major_slice_mut(&mut c.data, n, m);
+            par_gemm(cm, false, bm, am.transpose(), 1.0);
+        } else {
+            let cm = MatMut::from_row_major_slice_mut(&mut c.data, m, n);
+            par_gemm(cm, false, am, bm.transpose(), 1.0);
+        }
+    }
+    if io == mid {
+        c
     } else {
-        let tq = std::time::Instant::now();
-        let r = c.permute(&po);
-        tperm += tq.elapsed().as_secs_f64();
-        (r, tperm)
+        let po: Vec<usize> = io
+            .iter()
+            .map(|ch| mid.iter().position(|x| x == ch).expect("output index"))
+            .collect();
+        c.permute(&po)
     }
 }
 
@@ -479,6 +496,64 @@ mod tests {
                     }
                 }
                 assert!((c2.get(&[l, cc]) - s).abs() < 1e-12);
+            }
+        }
+    }
+
+    /// Every layout path of `einsum` (operand in place, as a transposed view, permuted;
+    /// product as C or Cᵀ; output permuted or not; either operand the larger) against a
+    /// direct sum over all letters.
+    #[test]
+    fn einsum_layouts_match_direct_sums() {
+        use std::collections::HashMap;
+        let size: HashMap<char, usize> = [('i', 3), ('j', 4), ('a', 5), ('b', 2), ('c', 6)]
+            .into_iter()
+            .collect();
+        let make = |letters: &str, seed: f64| {
+            let shape: Vec<usize> = letters.chars().map(|c| size[&c]).collect();
+            Tensor::from_fn(&shape, |x| {
+                x.iter()
+                    .enumerate()
+                    .map(|(k, &v)| ((k + 2) * (v + 1)) as f64 * seed)
+                    .sum::<f64>()
+                    .sin()
+            })
+        };
+        for spec in [
+            "iac,cb->iab",   // in place, C
+            "ci,cab->iab",   // A transposed view
+            "ic,abc->iab",   // B in place as [free, summed]
+            "cab,ic->abi",   // Cᵀ (larger operand first)
+            "ic,cab->bai",   // output permuted
+            "acib,cj->jiab", // A permuted
+            "ja,jb->ab",     // [summed, free] on both sides
+            "ia,jb->ijab",   // outer product
+        ] {
+            let (lhs, out) = spec.split_once("->").unwrap();
+            let (sa, sb) = lhs.split_once(',').unwrap();
+            let (a, b) = (make(sa, 0.3), make(sb, 0.7));
+            let c = einsum(spec, &a, &b);
+            let letters: Vec<char> = {
+                let mut l: Vec<char> = sa.chars().chain(sb.chars()).collect();
+                l.sort();
+                l.dedup();
+                l
+            };
+            let mut direct = Tensor::zeros(&c.shape);
+            let total: usize = letters.iter().map(|c| size[c]).product();
+            for flat in 0..total {
+                let mut rest = flat;
+                let mut val = HashMap::new();
+                for l in &letters {
+                    val.insert(*l, rest % size[l]);
+                    rest /= size[l];
+                }
+                let idx = |s: &str| -> Vec<usize> { s.chars().map(|c| val[&c]).collect() };
+                let o = direct.offset(&idx(out));
+                direct.data[o] += a.get(&idx(sa)) * b.get(&idx(sb));
+            }
+            for (x, y) in c.data.iter().zip(&direct.data) {
+                assert!((x - y).abs() < 1e-12, "{spec}: {x} vs {y}");
             }
         }
     }
