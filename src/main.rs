@@ -1,11 +1,13 @@
 //! The `bandcast` command: the command line is parsed and run by the library
-//! (`bandcast::cli`); this file sets the thread count and maps errors to exit codes.
+//! (`bandcast::cli`); this file keeps freed memory in the process (system/freed_memory.rs), sets
+//! the thread count and maps errors to exit codes.
 
 use clap::Parser;
 
 use bandcast::cli::{self, Cli};
 
 fn main() {
+    bandcast::system::keep_freed_memory();
     let cli = Cli::parse();
     if let Some(n) = cli.threads {
         if n == 0 {

@@ -42,9 +42,18 @@ pub fn t2_unique_words(o: [usize; 2], v: [usize; 2]) -> f64 {
     oa * oa * va * va + ob * ob * vb * vb + oa * ob * va * vb
 }
 
-/// Words of the ground-state stage (see the module text).
+/// Words of the ⟨ov||vv⟩ blocks (every spin case).
+pub fn ovvv_words(o: [usize; 2], v: [usize; 2]) -> f64 {
+    let (oa, ob, va, vb) = (o[0] as f64, o[1] as f64, v[0] as f64, v[1] as f64);
+    // masks of [m,a,e,f] with σm + σa = σe + σf
+    oa * va * va * va + ob * vb * vb * vb + 2.0 * (oa * vb + ob * va) * va * vb
+}
+
+/// Words of the ground-state stage (see the module text): the o²v² arrays at the
+/// residual's peak, or at its start the reordered ⟨ov||vv⟩ copy beside about 6 of them.
 pub fn peak_words(o: [usize; 2], v: [usize; 2], diis_size: usize) -> f64 {
-    16.0 * t2_words(o, v) + 2.0 * diis_size as f64 * t2_unique_words(o, v)
+    let n2 = t2_words(o, v);
+    (16.0 * n2).max(6.0 * n2 + ovvv_words(o, v)) + 2.0 * diis_size as f64 * t2_unique_words(o, v)
 }
 
 /// The distinct blocks of t1 (α, β) and t2 (αα, ββ, αβ) that DIIS extrapolates.
@@ -91,9 +100,19 @@ pub fn residual(sys: &SpinBlockedSystem, t1: &Blocked, t2: &Blocked) -> (Blocked
     let taut = tau(t1, t2, 0.5);
     let tau = tau(t1, t2, 1.0);
     let (ovov, ovvv, ooov, oovv) = (&sys.ovov, &sys.ovvv, &sys.ooov, &sys.oovv);
+    // ⟨ma||ef⟩ reordered once as [m,e,f,a]: the three contractions that read it use it in
+    // place (as [summed, free] or [free, summed]) instead of each reordering the o v³
+    // blocks; they run first, so the copy is gone before the residual's o²v² peak
+    // (`peak_words`)
+    let ovvv_r = ovvv.permute(&[0, 2, 3, 1]);
     let mut fae = without_diagonal(&sys.fvv);
+    fae.axpy(1.0, &beinsum("mf,mfea->ae", t1, &ovvv_r));
+    let mut r1 = sys.fov.clone();
+    r1.axpy(-0.5, &beinsum("imef,mefa->ia", t2, &ovvv_r));
+    let mut r2 = oovv.clone();
+    r2.axpy(-1.0, &p_ij(&beinsum("ie,jabe->ijab", t1, &ovvv_r)));
+    drop(ovvv_r);
     fae.axpy(-0.5, &beinsum("me,ma->ae", &sys.fov, t1));
-    fae.axpy(1.0, &beinsum("mf,mafe->ae", t1, ovvv));
     fae.axpy(-0.5, &beinsum("mnaf,mnef->ae", &taut, oovv));
     let mut fmi = without_diagonal(&sys.foo);
     fmi.axpy(0.5, &beinsum("ie,me->mi", t1, &sys.fov));
@@ -117,17 +136,14 @@ pub fn residual(sys: &SpinBlockedSystem, t1: &Blocked, t2: &Blocked) -> (Blocked
     wmbej.axpy(-1.0, &beinsum("jnfb,mnef->mbej", &y, oovv));
     drop(y);
 
-    let mut r1 = sys.fov.clone();
     r1.axpy(1.0, &beinsum("ie,ae->ia", t1, &fae));
     r1.axpy(-1.0, &beinsum("ma,mi->ia", t1, &fmi));
     r1.axpy(1.0, &beinsum("imae,me->ia", t2, &fme));
     r1.axpy(-1.0, &beinsum("nf,naif->ia", t1, ovov));
-    r1.axpy(-0.5, &beinsum("imef,maef->ia", t2, ovvv));
     r1.axpy(-0.5, &beinsum("mnae,mnie->ia", t2, ooov));
     let (d1, d2) = denominators(sys);
     sub_d(&mut r1, &d1, t1);
 
-    let mut r2 = oovv.clone();
     let mut fbe = fae.clone();
     fbe.axpy(-0.5, &beinsum("mb,me->be", t1, &fme));
     r2.axpy(1.0, &p_ab(&beinsum("ijae,be->ijab", t2, &fbe)));
@@ -150,7 +166,6 @@ pub fn residual(sys: &SpinBlockedSystem, t1: &Blocked, t2: &Blocked) -> (Blocked
     z.axpy(1.0, &beinsum("imbj,ma->ijab", &x, t1));
     r2.axpy(1.0, &p_ij(&p_ab(&z)));
     drop(z);
-    r2.axpy(-1.0, &p_ij(&beinsum("ie,jeab->ijab", t1, ovvv)));
     r2.axpy(-1.0, &p_ab(&beinsum("ma,ijmb->ijab", t1, ooov)));
     sub_d(&mut r2, &d2, t2);
     (r1, r2)
