@@ -92,6 +92,16 @@ impl Blocked {
         out
     }
 
+    /// The block of `mask` alone, axes reordered as in `permute` (None when not stored).
+    pub fn permute_one(&self, mask: usize, perm: &[usize]) -> Option<Blocked> {
+        let b = self.blocks[mask].as_ref()?;
+        let dims: Vec<[usize; 2]> = perm.iter().map(|&p| self.dims[p]).collect();
+        let mut out = Blocked::empty(&dims);
+        let nm = (0..perm.len()).fold(0, |m, k| m | (spin(mask, perm[k]) << k));
+        out.blocks[nm] = Some(b.permute(perm));
+        Some(out)
+    }
+
     /// self += alpha · other (blocks missing in self are created).
     pub fn axpy(&mut self, alpha: f64, other: &Blocked) {
         for (mask, b) in other.blocks.iter().enumerate() {

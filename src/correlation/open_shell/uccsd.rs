@@ -42,18 +42,9 @@ pub fn t2_unique_words(o: [usize; 2], v: [usize; 2]) -> f64 {
     oa * oa * va * va + ob * ob * vb * vb + oa * ob * va * vb
 }
 
-/// Words of the ⟨ov||vv⟩ blocks (every spin case).
-pub fn ovvv_words(o: [usize; 2], v: [usize; 2]) -> f64 {
-    let (oa, ob, va, vb) = (o[0] as f64, o[1] as f64, v[0] as f64, v[1] as f64);
-    // masks of [m,a,e,f] with σm + σa = σe + σf
-    oa * va * va * va + ob * vb * vb * vb + 2.0 * (oa * vb + ob * va) * va * vb
-}
-
-/// Words of the ground-state stage (see the module text): the o²v² arrays at the
-/// residual's peak, or at its start the reordered ⟨ov||vv⟩ copy beside about 6 of them.
+/// Words of the ground-state stage (see the module text).
 pub fn peak_words(o: [usize; 2], v: [usize; 2], diis_size: usize) -> f64 {
-    let n2 = t2_words(o, v);
-    (16.0 * n2).max(6.0 * n2 + ovvv_words(o, v)) + 2.0 * diis_size as f64 * t2_unique_words(o, v)
+    16.0 * t2_words(o, v) + 2.0 * diis_size as f64 * t2_unique_words(o, v)
 }
 
 /// The distinct blocks of t1 (α, β) and t2 (αα, ββ, αβ) that DIIS extrapolates.
@@ -100,18 +91,29 @@ pub fn residual(sys: &SpinBlockedSystem, t1: &Blocked, t2: &Blocked) -> (Blocked
     let taut = tau(t1, t2, 0.5);
     let tau = tau(t1, t2, 1.0);
     let (ovov, ovvv, ooov, oovv) = (&sys.ovov, &sys.ovvv, &sys.ooov, &sys.oovv);
-    // ⟨ma||ef⟩ reordered once as [m,e,f,a]: the three contractions that read it use it in
-    // place (as [summed, free] or [free, summed]) instead of each reordering the o v³
-    // blocks; they run first, so the copy is gone before the residual's o²v² peak
-    // (`peak_words`)
-    let ovvv_r = ovvv.permute(&[0, 2, 3, 1]);
+    // The three contractions that read ⟨ma||ef⟩ with a among the summed or free letters
+    // out of place read it reordered as [m,e,f,a], where each is one product in place;
+    // one spin block is reordered at a time, so no more than one block's copy is alive
+    // (as when each contraction reordered it for itself, three times as often).
     let mut fae = without_diagonal(&sys.fvv);
-    fae.axpy(1.0, &beinsum("mf,mfea->ae", t1, &ovvv_r));
     let mut r1 = sys.fov.clone();
-    r1.axpy(-0.5, &beinsum("imef,mefa->ia", t2, &ovvv_r));
     let mut r2 = oovv.clone();
-    r2.axpy(-1.0, &p_ij(&beinsum("ie,jabe->ijab", t1, &ovvv_r)));
-    drop(ovvv_r);
+    let mut t1_ovvv: Option<Blocked> = None;
+    for mask in 0..ovvv.blocks.len() {
+        let Some(y) = ovvv.permute_one(mask, &[0, 2, 3, 1]) else {
+            continue;
+        };
+        fae.axpy(1.0, &beinsum("mf,mfea->ae", t1, &y));
+        r1.axpy(-0.5, &beinsum("imef,mefa->ia", t2, &y));
+        let x = beinsum("ie,jabe->ijab", t1, &y);
+        match &mut t1_ovvv {
+            Some(acc) => acc.axpy(1.0, &x),
+            None => t1_ovvv = Some(x),
+        }
+    }
+    if let Some(x) = t1_ovvv {
+        r2.axpy(-1.0, &p_ij(&x));
+    }
     fae.axpy(-0.5, &beinsum("me,ma->ae", &sys.fov, t1));
     fae.axpy(-0.5, &beinsum("mnaf,mnef->ae", &taut, oovv));
     let mut fmi = without_diagonal(&sys.foo);
