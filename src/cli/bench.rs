@@ -273,7 +273,7 @@ fn eom(a: EomArgs) -> Result<()> {
 #[derive(clap::Args, Debug)]
 pub struct DeltaCcArgs {
     /// Add ethanol C 1s (CH2OH carbon) in cc-pCVTZ on the hole / cc-pVTZ with --fno 99.5
-    /// (about 16 min on two cores; docs/benchmarks.md).
+    /// (about 7 min on two cores; docs/benchmarks.md).
     #[arg(long)]
     pub large: bool,
     /// Memory budget in GiB for the coupled cluster (ethanol holds its ladder integrals

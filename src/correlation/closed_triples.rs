@@ -51,17 +51,25 @@ fn add_reordered(w: &mut [f64], g: &[f64], v: usize, order: [usize; 3]) {
         w.iter_mut().zip(g).for_each(|(x, y)| *x += y);
         return;
     }
+    tiles(v, |a, b, cs| {
+        let gb = a * stride[0] + b * stride[1];
+        let row = &mut w[(a * v + b) * v..(a * v + b + 1) * v];
+        for c in cs {
+            row[c] += g[gb + c * stride[2]];
+        }
+    });
+}
+
+/// Visit every (a, b, c) of a v³ cube in 16³ tiles: `f(a, b, c range)`, so that arrays read
+/// along any axis order stay in cache within a tile.
+fn tiles(v: usize, mut f: impl FnMut(usize, usize, std::ops::Range<usize>)) {
     const TILE: usize = 16;
     for a0 in (0..v).step_by(TILE) {
         for b0 in (0..v).step_by(TILE) {
             for c0 in (0..v).step_by(TILE) {
                 for a in a0..(a0 + TILE).min(v) {
                     for b in b0..(b0 + TILE).min(v) {
-                        let gb = a * stride[0] + b * stride[1];
-                        let row = &mut w[(a * v + b) * v..(a * v + b + 1) * v];
-                        for c in c0..(c0 + TILE).min(v) {
-                            row[c] += g[gb + c * stride[2]];
-                        }
+                        f(a, b, c0..(c0 + TILE).min(v));
                     }
                 }
             }
@@ -187,26 +195,15 @@ pub fn correction(ints: &MoIntegrals, t1: &Tensor, t2: &Tensor) -> f64 {
             let dijk = eo[i] + eo[j] + eo[k];
             let at = |t: &[f64], a: usize, b: usize, c: usize| t[(a * v + b) * v + c];
             let mut e = 0.0;
-            const TILE: usize = 16;
-            for a0 in (0..v).step_by(TILE) {
-                for b0 in (0..v).step_by(TILE) {
-                    for c0 in (0..v).step_by(TILE) {
-                        for a in a0..(a0 + TILE).min(v) {
-                            for b in b0..(b0 + TILE).min(v) {
-                                let dab = dijk - ev[a] - ev[b];
-                                for c in c0..(c0 + TILE).min(v) {
-                                    let z = 4.0 * at(w, a, b, c) + at(w, b, c, a) + at(w, c, a, b);
-                                    let y = 3.0 * at(vv, a, b, c)
-                                        - at(vv, a, c, b)
-                                        - at(vv, b, a, c)
-                                        - at(vv, c, b, a);
-                                    e += z * y / (dab - ev[c]);
-                                }
-                            }
-                        }
-                    }
+            tiles(v, |a, b, cs| {
+                let dab = dijk - ev[a] - ev[b];
+                for c in cs {
+                    let z = 4.0 * at(w, a, b, c) + at(w, b, c, a) + at(w, c, a, b);
+                    let y =
+                        3.0 * at(vv, a, b, c) - at(vv, a, c, b) - at(vv, b, a, c) - at(vv, c, b, a);
+                    e += z * y / (dab - ev[c]);
                 }
-            }
+            });
             2.0 * e / (3.0 * s)
         })
         .sum();

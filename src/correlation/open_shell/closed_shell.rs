@@ -27,9 +27,11 @@ pub(super) struct ClosedShellResult {
     pub peak_bytes: f64,
 }
 
-/// Peak estimate (bytes) and whether the ladder and (ov|vv) are held, for `budget` bytes.
+/// Peak estimate (bytes) and whether the ladder and (ov|vv) are held, for `budget` bytes;
+/// `m` orbitals per spin in `prepare`'s factors (frozen core included), `o`, `v` active.
 pub(super) fn estimate(
     naux: usize,
+    m: usize,
     o: usize,
     v: usize,
     diis: usize,
@@ -39,6 +41,8 @@ pub(super) fn estimate(
     let (nq, of, vf) = (naux as f64, o as f64, v as f64);
     let o2v2 = of * of * vf * vf;
     let factors = nq * (of + vf) * (of + vf);
+    // `prepare` holds both spins' factors (identical for RHF) beside the active copy
+    let reference = nq * 2.0 * (m * m) as f64 + factors;
     let blocks = of.powi(4) + of.powi(3) * vf + 3.0 * o2v2;
     let ground = (24.0 + 2.0 * diis as f64) * o2v2 + ladder::block_scratch_words(v);
     let t = if triples {
@@ -54,7 +58,7 @@ pub(super) fn estimate(
     let hold_ladder = 8.0 * (base + lad) <= 0.9 * budget;
     let with = base + if hold_ladder { lad } else { 0.0 };
     let hold_ovvv = 8.0 * (with + ovvv) <= 0.9 * budget;
-    let peak = with + if hold_ovvv { ovvv } else { 0.0 };
+    let peak = (with + if hold_ovvv { ovvv } else { 0.0 }).max(reference);
     (8.0 * peak, hold_ladder, hold_ovvv)
 }
 
@@ -75,7 +79,8 @@ pub(super) fn solve(
             "coupled cluster needs at least one correlated occupied and one virtual orbital",
         ));
     }
-    let (peak, hold_ladder, hold_ovvv) = estimate(naux, o, v, ccsd_opts.diis_size, triples, budget);
+    let (peak, hold_ladder, hold_ovvv) =
+        estimate(naux, m, o, v, ccsd_opts.diis_size, triples, budget);
     let n = o + v;
     let block = |p0: usize, np: usize, r0: usize, nr: usize| {
         let mut out = vec![0.0; naux * np * nr];

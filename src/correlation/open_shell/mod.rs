@@ -180,6 +180,14 @@ pub fn estimate(
     }
 }
 
+/// Whether `run` takes the closed-shell route (closed_shell.rs) for this reference.
+fn closed_route(opts: &OpenShellOptions, wfn: &Wavefunction, nf: [usize; 2]) -> bool {
+    opts.closed_shell_route
+        && wfn.reference == crate::scf::Reference::Rhf
+        && nf[0] == nf[1]
+        && opts.excluded_virtuals.iter().all(|x| x.is_empty())
+}
+
 /// Frozen orbitals per spin for these options.
 pub fn frozen_counts(mol: &Molecule, wfn: &Wavefunction, f: &FrozenCore) -> [usize; 2] {
     match f {
@@ -228,7 +236,23 @@ pub fn plan(
     let budget = opts
         .memory_budget
         .unwrap_or_else(|| 0.8 * crate::system::available_bytes());
+    let closed = closed_route(opts, wfn, nf);
     let mp = match opts.natural_virtuals {
+        None if closed => {
+            let (peak_bytes, hold_ladder, _) = closed_shell::estimate(
+                naux,
+                m[0],
+                oo[0],
+                vv[0],
+                opts.ccsd.diis_size,
+                opts.triples,
+                budget,
+            );
+            MemoryPlan {
+                peak_bytes,
+                hold_ladder,
+            }
+        }
         None => estimate(naux, m, oo, vv, opts.ccsd.diis_size, opts.triples, budget),
         // Before the natural-virtual cut only its own stage is known: the factors over all
         // orbitals (twice, during the cut), each occupied orbital's B^Q_ia and the per-thread
@@ -303,15 +327,31 @@ pub fn run(
             let m = [f[0].m, f[1].m];
             let o = [f[0].nocc - nf[0], f[1].nocc - nf[1]];
             let v = [m[0] - f[0].nocc, m[1] - f[1].nocc];
-            let after = estimate(
-                f[0].naux,
-                m,
-                o,
-                v,
-                opts.ccsd.diis_size,
-                opts.triples,
-                budget,
-            );
+            let after = if closed_route(opts, wfn, nf) {
+                let (peak_bytes, hold_ladder, _) = closed_shell::estimate(
+                    f[0].naux,
+                    m[0],
+                    o[0],
+                    v[0],
+                    opts.ccsd.diis_size,
+                    opts.triples,
+                    budget,
+                );
+                MemoryPlan {
+                    peak_bytes,
+                    hold_ladder,
+                }
+            } else {
+                estimate(
+                    f[0].naux,
+                    m,
+                    o,
+                    v,
+                    opts.ccsd.diis_size,
+                    opts.triples,
+                    budget,
+                )
+            };
             log(&format!(
                 "natural virtuals: kept {}α+{}β of {}α+{}β ({:.2} % of the MP2 virtual \
                  population), MP2 correction {:.6} Eh",
@@ -339,11 +379,7 @@ pub fn run(
             (after, peak.max(after.peak_bytes))
         }
     };
-    let closed = opts.closed_shell_route
-        && wfn.reference == crate::scf::Reference::Rhf
-        && nf[0] == nf[1]
-        && sel.excluded_virtuals.iter().all(|x| x.is_empty());
-    if closed {
+    if closed_route(opts, wfn, nf) {
         let note = prepared.note.clone();
         let r = closed_shell::solve(prepared, nf[0], &opts.ccsd, opts.triples, budget, log)?;
         let (o, v) = (

@@ -137,7 +137,13 @@ fn closed_shell_route_matches_spin_blocks() {
             notes.iter().any(|l| l.contains("closed-shell CCSD")),
             "{notes:?}"
         );
+        let closed_plan = plan(&mol, &basis, &rhf, &o).unwrap().0.peak_bytes;
         o.closed_shell_route = false;
+        let blocks_plan = plan(&mol, &basis, &rhf, &o).unwrap().0.peak_bytes;
+        if fno.is_none() {
+            // the closed-shell route is planned with its own, smaller, estimate
+            assert!(closed_plan < blocks_plan, "{closed_plan} vs {blocks_plan}");
+        }
         let blocks = run(&mol, &basis, &rhf, &o, &mut |_| {}).unwrap();
         assert_eq!(closed.n_frozen, blocks.n_frozen);
         assert_eq!((closed.nocc, closed.nvir), (blocks.nocc, blocks.nvir));
