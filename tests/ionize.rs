@@ -529,7 +529,7 @@ fn frozen_natural_orbitals_keep_dccsd_t_within_0_02_ev() {
 /// min wall, 7143 CPU-s, 14.9 GB peak on the 2-core machine (ladder integrals held in 6.9
 /// GB), so it needs a 16 GiB budget and is run by hand.
 #[test]
-#[ignore = "about 70 min wall on two cores and 15 GB of memory; run with --ignored"]
+#[ignore = "about 32 min wall on two cores and 15 GB of memory; run with --ignored"]
 fn benzene_dccsd_t_with_natural_virtuals_matches_krause_2015() {
     dccsd_t_homo_within(BENZENE, 1, "1e1g", 9.36006, Some(0.995), 19 * (1 << 30));
 }

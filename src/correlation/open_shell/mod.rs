@@ -188,6 +188,30 @@ fn closed_route(opts: &OpenShellOptions, wfn: &Wavefunction, nf: [usize; 2]) -> 
         && opts.excluded_virtuals.iter().all(|x| x.is_empty())
 }
 
+/// The memory plan of the route `run` takes: closed_shell.rs's estimate on the closed-shell
+/// route, `estimate` (spin blocks) otherwise.
+fn route_plan(
+    closed: bool,
+    naux: usize,
+    m: [usize; 2],
+    o: [usize; 2],
+    v: [usize; 2],
+    opts: &OpenShellOptions,
+    budget: f64,
+) -> MemoryPlan {
+    let diis = opts.ccsd.diis_size;
+    if closed {
+        let (peak_bytes, hold_ladder, _) =
+            closed_shell::estimate(naux, m[0], o[0], v[0], diis, opts.triples, budget);
+        MemoryPlan {
+            peak_bytes,
+            hold_ladder,
+        }
+    } else {
+        estimate(naux, m, o, v, diis, opts.triples, budget)
+    }
+}
+
 /// Frozen orbitals per spin for these options.
 pub fn frozen_counts(mol: &Molecule, wfn: &Wavefunction, f: &FrozenCore) -> [usize; 2] {
     match f {
@@ -238,22 +262,7 @@ pub fn plan(
         .unwrap_or_else(|| 0.8 * crate::system::available_bytes());
     let closed = closed_route(opts, wfn, nf);
     let mp = match opts.natural_virtuals {
-        None if closed => {
-            let (peak_bytes, hold_ladder, _) = closed_shell::estimate(
-                naux,
-                m[0],
-                oo[0],
-                vv[0],
-                opts.ccsd.diis_size,
-                opts.triples,
-                budget,
-            );
-            MemoryPlan {
-                peak_bytes,
-                hold_ladder,
-            }
-        }
-        None => estimate(naux, m, oo, vv, opts.ccsd.diis_size, opts.triples, budget),
+        None => route_plan(closed, naux, m, oo, vv, opts, budget),
         // Before the natural-virtual cut only its own stage is known: the factors over all
         // orbitals (twice, during the cut), each occupied orbital's B^Q_ia and the per-thread
         // pair matrices. The coupled-cluster stage is planned again with the kept sizes
@@ -327,31 +336,15 @@ pub fn run(
             let m = [f[0].m, f[1].m];
             let o = [f[0].nocc - nf[0], f[1].nocc - nf[1]];
             let v = [m[0] - f[0].nocc, m[1] - f[1].nocc];
-            let after = if closed_route(opts, wfn, nf) {
-                let (peak_bytes, hold_ladder, _) = closed_shell::estimate(
-                    f[0].naux,
-                    m[0],
-                    o[0],
-                    v[0],
-                    opts.ccsd.diis_size,
-                    opts.triples,
-                    budget,
-                );
-                MemoryPlan {
-                    peak_bytes,
-                    hold_ladder,
-                }
-            } else {
-                estimate(
-                    f[0].naux,
-                    m,
-                    o,
-                    v,
-                    opts.ccsd.diis_size,
-                    opts.triples,
-                    budget,
-                )
-            };
+            let after = route_plan(
+                closed_route(opts, wfn, nf),
+                f[0].naux,
+                m,
+                o,
+                v,
+                opts,
+                budget,
+            );
             log(&format!(
                 "natural virtuals: kept {}α+{}β of {}α+{}β ({:.2} % of the MP2 virtual \
                  population), MP2 correction {:.6} Eh",
