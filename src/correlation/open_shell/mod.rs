@@ -1,6 +1,9 @@
 //! Coupled cluster on open-shell and other non-closed-shell references: CCSD and (T) on
 //! UHF, ROHF (semicanonical) and core-hole (MOM) determinants, in spin blocks.
 //!
+//! An RHF reference (a closed-shell neutral) is passed on to the closed-shell CCSD and (T)
+//! instead (closed_shell.rs): same energies, a fraction of the work.
+//!
 //! Files: reference.rs (orbital selection, Fock, semicanonical rotation), spin_blocks.rs (tensors held as their
 //! spin-conserving blocks, contraction over blocks), spin_system.rs (integral blocks of each
 //! spin case and the particle–particle ladder from the factors), uccsd.rs (amplitude
@@ -328,6 +331,7 @@ pub fn run(
     let fno = opts
         .natural_virtuals
         .map(|x| natural_virtuals::truncate(&mut prepared, nf, x));
+    let closed = closed_route(opts, wfn, nf);
     let cut_stage_peak = if fno.is_some() { peak } else { 0.0 };
     let (mp, peak) = match &fno {
         None => (mp, peak),
@@ -336,15 +340,7 @@ pub fn run(
             let m = [f[0].m, f[1].m];
             let o = [f[0].nocc - nf[0], f[1].nocc - nf[1]];
             let v = [m[0] - f[0].nocc, m[1] - f[1].nocc];
-            let after = route_plan(
-                closed_route(opts, wfn, nf),
-                f[0].naux,
-                m,
-                o,
-                v,
-                opts,
-                budget,
-            );
+            let after = route_plan(closed, f[0].naux, m, o, v, opts, budget);
             log(&format!(
                 "natural virtuals: kept {}α+{}β of {}α+{}β ({:.2} % of the MP2 virtual \
                  population), MP2 correction {:.6} Eh",
@@ -372,14 +368,11 @@ pub fn run(
             (after, peak.max(after.peak_bytes))
         }
     };
-    if closed_route(opts, wfn, nf) {
+    if closed {
         let note = prepared.note.clone();
+        let f = &prepared.fac[0];
+        let (o, v) = (f.nocc - nf[0], f.m - f.nocc);
         let r = closed_shell::solve(prepared, nf[0], &opts.ccsd, opts.triples, budget, log)?;
-        let (o, v) = (
-            wfn.n_alpha() - nf[0],
-            fno.as_ref()
-                .map_or(wfn.c_alpha.ncols() - wfn.n_alpha(), |c| c.kept[0]),
-        );
         return Ok(OpenShellResult {
             e_reference: wfn.energy,
             e_ccsd_corr: r.e_ccsd_corr,
