@@ -27,6 +27,10 @@ pub struct CcHole {
     pub ie: f64,
     pub ie_ccsd: f64,
     pub ie_scf: f64,
+    /// Total CCSD(T) energies (hartree) of the neutral and of the cation: the published
+    /// reference sets give them too, so a check can say which state differs.
+    pub neutral_energy: f64,
+    pub cation_energy: f64,
     pub hole_overlap: f64,
     pub hole_moved: bool,
     /// ⟨S²⟩ of the cation's UHF determinant, and the exact S(S+1) of its spin state.
@@ -85,6 +89,8 @@ pub fn dccsd_t(
                     ie: e - en,
                     ie_ccsd: e - n.e_ccsd(),
                     ie_scf: e - neutral.energy,
+                    neutral_energy: en,
+                    cation_energy: e,
                     hole_overlap: 1.0,
                     hole_moved: false,
                     s2: 0.0,
@@ -105,10 +111,13 @@ pub fn dccsd_t(
                 &opts,
                 &mut say(format!("cation, hole in MO {}", orbital + 1)),
             )?;
+            let ec = r.e_ccsd_t().expect("(T) asked");
             Ok(CcHole {
-                ie: r.e_ccsd_t().expect("(T) asked") - en,
+                ie: ec - en,
                 ie_ccsd: r.e_ccsd() - n.e_ccsd(),
                 ie_scf: wf.energy - neutral.energy,
+                neutral_energy: en,
+                cation_energy: ec,
                 hole_overlap: w,
                 hole_moved: w < HOLE_KEPT,
                 s2: wf.s2,

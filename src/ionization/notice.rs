@@ -36,6 +36,9 @@ pub enum ValenceNotice {
         dccsd_ev: f64,
         dccsdt_ev: f64,
         s2: f64,
+        /// Total CCSD(T) energies of the neutral and the cation (hartree).
+        neutral_eh: f64,
+        cation_eh: f64,
     },
     /// ΔCCSD(T) of band MO `mo` ran on frozen natural orbitals (note).
     NaturalVirtuals {
@@ -129,10 +132,13 @@ impl fmt::Display for ValenceNotice {
                 dccsd_ev,
                 dccsdt_ev,
                 s2,
+                neutral_eh,
+                cation_eh,
             } => write!(
                 f,
                 "MO {mo}: ΔSCF {dscf_ev:.3} eV, ΔCCSD {dccsd_ev:.3} eV, ΔCCSD(T) {dccsdt_ev:.3} \
-                 eV (cation <S²> {s2:.3})"
+                 eV (cation <S²> {s2:.3}; CCSD(T) totals: neutral {neutral_eh:.6} Eh, cation \
+                 {cation_eh:.6} Eh)"
             ),
             ValenceNotice::NaturalVirtuals { mo, cut } => write!(f, "MO {mo}: {cut}"),
             ValenceNotice::LowPoleStrength {

@@ -436,6 +436,8 @@ fn method_energies(
                             dccsd_ev: ev(h.ie_ccsd),
                             dccsdt_ev: ev(h.ie),
                             s2: h.s2,
+                            neutral_eh: h.neutral_energy,
+                            cation_eh: h.cation_energy,
                         });
                         if let Some((n, c)) = &h.natural_virtuals {
                             notes.push(ValenceNotice::NaturalVirtuals {
