@@ -125,7 +125,7 @@ fn neon_1s_dccsd_t_on_rohf_and_uhf_references_agree() {
 /// 5.4 eV (Thomas, J. Chem. Phys. 53 (1970) 1744; docs/reference-data.md §4). CO at
 /// r = 1.1283 Å (tests/data/core; the GW100 file's 1.283 Å is a misprint). Measured 5.29 eV
 /// (UHF cation; 5.25 on the ROHF cation). The CO2 − CH4 shift (6.63 against 6.89) misses
-/// the 0.15 eV target and is documented, not tested as passing.
+/// the 0.15 eV target in this basis; in cc-pVTZ both shifts meet it (test at the end).
 /// About 6 s wall on an idle 2-core machine.
 #[test]
 fn co_minus_methane_c1s_shift_dccsd_t() {
@@ -212,8 +212,8 @@ fn nitrogen_and_methane_1s_recommended_values() {
 
 /// CO2 − CH4 C 1s shift, ΔCCSD(T), default basis: 6.89 eV (Jolly, Bomben & Eyermann, At.
 /// Data Nucl. Data Tables 31 (1984) 433, from memory, minus Thomas 1970; docs/reference-
-/// data.md §4). Measured 6.63 eV (−0.26): the issue's 0.15 eV target is NOT met; this test
-/// holds the measured 0.3 eV.
+/// data.md §4). Measured 6.63 eV (−0.26): the issue's 0.15 eV target is NOT met in
+/// cc-pVDZ; this test holds the measured 0.3 eV (cc-pVTZ meets it: the last test).
 /// About 20 s wall on an idle 2-core machine.
 #[test]
 fn co2_minus_methane_c1s_shift_dccsd_t_within_0_3_ev() {
@@ -236,4 +236,47 @@ fn co2_minus_methane_c1s_shift_dccsd_t_within_0_3_ev() {
         "CO2 {a} CH4 {b}: shift {}",
         a - b
     );
+}
+
+/// The C 1s shifts in a triple-zeta basis on every atom: cc-pVTZ with the hole atom's s and
+/// p uncontracted (the default `--core-basis`), the coupled cluster on frozen natural
+/// orbitals keeping 99.5 % of the MP2 virtual population (`--fno 99.5`). Experiment: CO −
+/// CH4 5.4 eV (Thomas, J. Chem. Phys. 53 (1970) 1744), CO2 − CH4 297.69 − 290.8 = 6.89 eV
+/// (CO2: Jolly, Bomben & Eyermann 1984, from memory; docs/reference-data.md §4); issue 16's
+/// 0.15 eV. Measured 4 December 2026: CH4 291.030, CO 296.508, CO2 297.846 eV
+/// (non-relativistic), shifts 5.478 (+0.08) and 6.816 (−0.07); all virtuals give 5.437 and
+/// 6.817 (CO2 103 s wall); cc-pVDZ gives 6.63 (the test above) — the triple-zeta basis on
+/// the other atoms is what the CO2 shift needs (cc-pCVTZ on the hole with cc-pVDZ elsewhere
+/// gives 6.56). ΔSCF in the same basis gives 8.49 for CO2 − CH4, so the check fails without
+/// the correlation. About 40 s wall on an idle 2-core machine.
+#[test]
+fn c1s_shifts_in_triple_zeta_within_0_15_ev() {
+    let run_tz = |mol: &Molecule| {
+        let set = bandcast::basis::load("cc-pVTZ", mol, None).unwrap();
+        let opts = CoreOptions {
+            targets: TargetSelection::Element(6),
+            thorough: false,
+            cc: Some(DeltaCc::CcsdT),
+            natural_virtuals: Some(0.995),
+            ..CoreOptions::default()
+        };
+        let r = bandcast::core_level::predict(mol, &set, &opts).expect("core-level run");
+        let l = &r.core_levels[0];
+        (l.dscf_ev, l.cc.dccsdt_ev.unwrap())
+    };
+    let co = read_xyz(
+        &Path::new(concat!(
+            env!("CARGO_MANIFEST_DIR"),
+            "/tests/data/core/carbon-monoxide.xyz"
+        )),
+        LengthUnit::Angstrom,
+    )
+    .unwrap();
+    let (_, c_co) = run_tz(&co);
+    let (s_co2, c_co2) = run_tz(&load("carbon-dioxide"));
+    let (s_ch4, c_ch4) = run_tz(&load("methane"));
+    let (co, co2) = (c_co - c_ch4, c_co2 - c_ch4);
+    assert!((co - 5.4).abs() < 0.15, "CO − CH4 {co}");
+    assert!((co2 - 6.89).abs() < 0.15, "CO2 − CH4 {co2}");
+    assert!((s_co2 - s_ch4 - 6.89).abs() > 1.0, "ΔSCF {}", s_co2 - s_ch4);
 }
