@@ -529,6 +529,21 @@ const KRAUSE_TOTALS_NITROGEN: (f64, f64) = (-109.37735, -108.80519);
 const KRAUSE_TOTALS_CARBON_MONOXIDE: (f64, f64) = (-113.12514, -112.60296);
 const KRAUSE_TOTALS_FLUORINE: (f64, f64) = (-199.30396, -198.72668);
 
+/// ΔCCSD(T)/def2-TZVPP of `m` for its `count` lowest bands, default options otherwise.
+fn dccsd_t_def2_tzvpp(m: &Molecule, count: usize) -> ValenceResult {
+    let b = basis(m, "def2-TZVPP");
+    predict(
+        m,
+        &b,
+        &ValenceOptions {
+            method: Method::DccsdT,
+            count: Some(count),
+            ..Default::default()
+        },
+    )
+    .unwrap()
+}
+
 fn assert_total(what: &str, ours: f64, published: f64) {
     assert!(
         (ours - published).abs() < 5e-4,
@@ -601,18 +616,7 @@ fn carbon_monoxide_dccsd_t_def2_tzvpp_matches_krause_2015() {
 /// open discrepancy above). Runs the whole ΔCCSD(T) and checks the neutral only.
 #[test]
 fn carbon_monoxide_neutral_ccsd_t_total_matches_krause_2015() {
-    let m = mol(CARBON_MONOXIDE);
-    let b = basis(&m, "def2-TZVPP");
-    let r = predict(
-        &m,
-        &b,
-        &ValenceOptions {
-            method: Method::DccsdT,
-            count: Some(1),
-            ..Default::default()
-        },
-    )
-    .unwrap();
+    let r = dccsd_t_def2_tzvpp(&mol(CARBON_MONOXIDE), 1);
     let n = r
         .notes
         .iter()
@@ -666,17 +670,7 @@ fn hydroxyl_radical_dccsd_t_lowest_cation_state_against_experiment() {
     let m = mol("2\nOH radical, r_e\nO 0 0 0\nH 0 0 0.9697\n")
         .with_charge_multiplicity(0, 2)
         .unwrap();
-    let b = basis(&m, "def2-TZVPP");
-    let r = predict(
-        &m,
-        &b,
-        &ValenceOptions {
-            method: Method::DccsdT,
-            count: Some(1),
-            ..Default::default()
-        },
-    )
-    .unwrap();
+    let r = dccsd_t_def2_tzvpp(&m, 1);
     let lowest = &r.bands[0];
     eprintln!(
         "OH ΔCCSD(T)/def2-TZVPP lowest cation state {:.4} eV (experiment 13.017)",
