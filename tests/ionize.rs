@@ -633,8 +633,8 @@ fn carbon_monoxide_neutral_ccsd_t_total_matches_krause_2015() {
 /// recomputation gives 15.7058). The GW100 repository's JSON lists 15.58481 for F2, a
 /// later value that neither total energy supports; docs/reference-data.md §2 explains the
 /// choice. Measured 15.7009 eV (UHF cation held by MOM, ⟨S²⟩ 0.770; the ROHF cation gives
-/// 15.708). Our totals lie 1.9 and 2.2 mEh below the published ones (a geometry or
-/// integral difference we did not trace), so only their difference is checked.
+/// 15.708). Our totals lie 1.9 and 2.2 mEh below the published ones but only 0.44 and
+/// 0.62 mEh below the compilation's recomputation, so only the difference is checked.
 /// About 20 s wall on an idle 2-core machine.
 #[test]
 fn fluorine_dccsd_t_def2_tzvpp_matches_krause_2015() {
