@@ -72,7 +72,7 @@ fn water_sto3g_ccsd_and_mp2_correlation_energies() {
 
 /// ΔCCSD(T)/def2-TZVPP HOMO IEs (eV): Krause, Harding & Klopper, Mol. Phys. 113 (2015)
 /// 1952, as listed in docs/reference-data.md §2 (published; F2 from their total energies,
-/// 15.7086, not the repository's later 15.58481).
+/// 15.7086, not the 15.58481 of the repository's JSON, which they do not support).
 const DELTA_CCSDT: &[(&str, f64)] = &[
     ("water", 12.565),
     ("nitrogen", 15.4767),

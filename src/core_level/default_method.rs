@@ -173,7 +173,8 @@ pub fn choose(mol: &Molecule, plain: &BasisSet, opts: &CoreOptions) -> Result<De
     } else if choice.triples_ops > MAX_TRIPLES_OPS {
         Some(format!(
             "ΔCCSD(T) in {} basis functions would take more than about 6 CPU-minutes per \
-             hole (o³v⁴ = {:.1e} > {:.0e})",
+             hole (o³v⁴ = {:.1e} > {:.0e}); `--method dccsd-t` runs it anyway, `--fno 99.5` \
+             cuts its cost several times",
             choice.n_basis, choice.triples_ops, MAX_TRIPLES_OPS
         ))
     } else {
