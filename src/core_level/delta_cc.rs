@@ -64,7 +64,7 @@ pub struct CcEnergies {
 
 fn options(
     which: DeltaCc,
-    excluded: [Vec<usize>; 2],
+    core_hole_spin: Option<usize>,
     memory: Option<usize>,
     natural_virtuals: Option<f64>,
 ) -> OpenShellOptions {
@@ -72,7 +72,7 @@ fn options(
         natural_virtuals,
         memory_budget: memory.map(|b| b as f64),
         frozen_core: FrozenCore::None,
-        excluded_virtuals: excluded,
+        core_hole_spin,
         triples: which.triples(),
         two_electron: TwoElectron::Cholesky,
         cholesky_threshold: 1e-6,
@@ -103,7 +103,7 @@ pub fn neutral(
         mol,
         basis,
         wf,
-        &options(which, [vec![], vec![]], memory, natural_virtuals),
+        &options(which, None, memory, natural_virtuals),
         &mut say(progress, "neutral"),
     )
 }
@@ -140,15 +140,12 @@ pub fn delta(
     progress: bool,
 ) -> Result<(f64, Option<f64>, Option<NaturalVirtuals>)> {
     let cation = mol.clone().with_charge_multiplicity(mol.charge + 1, 2)?;
-    let mut excluded = [Vec::new(), Vec::new()];
-    if let Some((s, p)) = hole_orbital(ion) {
-        excluded[s].push(p);
-    }
+    let hole_spin = hole_orbital(ion).map(|(s, _)| s);
     let r = open_shell::run(
         &cation,
         basis,
         ion,
-        &options(which, excluded, memory, natural_virtuals),
+        &options(which, hole_spin, memory, natural_virtuals),
         &mut say(progress, "core-ionized state"),
     )?;
     let dccsd = ev(r.e_ccsd() - neutral.e_ccsd());

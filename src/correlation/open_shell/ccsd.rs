@@ -13,6 +13,7 @@
 //! Memory (f64 words, o/v active occupied/virtual spin orbitals): amplitudes, residuals and
 //! the intermediates and einsum temporaries of one residual ≈ 16 o²v², DIIS 2 × size × o²v².
 
+use super::core_hole::CoreHole;
 use super::spin_orbital::SpinOrbitalSystem;
 use crate::correlation::tensor::{einsum, Tensor};
 use crate::scf::diis::VectorDiis;
@@ -171,9 +172,43 @@ pub fn denominators(sys: &SpinOrbitalSystem) -> Tensor {
 }
 
 /// Solve the CCSD equations from first-order amplitudes t_ij^ab = ⟨ij||ab⟩ / D.
+/// The spin-orbital indices (occupied, virtual) as (spin, index within the spin).
+pub fn spin_index(sys: &SpinOrbitalSystem, idx: usize, vir: bool) -> (usize, usize) {
+    let spins = if vir { &sys.spin_vir } else { &sys.spin_occ };
+    let s = spins[idx] as usize;
+    (s, spins[..idx].iter().filter(|&&x| x as usize == s).count())
+}
+
+/// Zero the elements of t1 [o, v] and t2 [o, o, v, v] outside the core-ionized space
+/// (core_hole.rs), element by element in spin-orbital form.
+pub fn project(sys: &SpinOrbitalSystem, h: &CoreHole, t1: &mut Tensor, t2: &mut Tensor) {
+    let (o, v) = (sys.nocc, sys.nvir);
+    let occ: Vec<_> = (0..o).map(|i| spin_index(sys, i, false)).collect();
+    let vir: Vec<_> = (0..v).map(|a| spin_index(sys, a, true)).collect();
+    for i in 0..o {
+        for a in 0..v {
+            if h.forbidden(&[occ[i]], &[vir[a]]) {
+                t1.data[i * v + a] = 0.0;
+            }
+        }
+    }
+    for i in 0..o {
+        for j in 0..o {
+            for a in 0..v {
+                for b in 0..v {
+                    if h.forbidden(&[occ[i], occ[j]], &[vir[a], vir[b]]) {
+                        t2.data[((i * o + j) * v + a) * v + b] = 0.0;
+                    }
+                }
+            }
+        }
+    }
+}
+
 pub fn solve(
     sys: &SpinOrbitalSystem,
     opts: &CcsdOptions,
+    hole: Option<&CoreHole>,
     log: &mut dyn FnMut(&str),
 ) -> Result<SoCcsdResult> {
     let (o, v) = (sys.nocc, sys.nvir);
@@ -197,13 +232,19 @@ pub fn solve(
     for (t, d) in t1.data.iter_mut().zip(&d1.data) {
         *t /= d;
     }
+    if let Some(h) = hole {
+        project(sys, h, &mut t1, &mut t2);
+    }
     let e_mp2 = 0.25 * sys.oovv.dot(&t2);
     log(&format!("MP2-like first-order energy {e_mp2:.10} Eh"));
     let mut e_old = energy(sys, &t1, &t2);
     let mut diis = VectorDiis::new(opts.diis_size);
     let mut de = f64::INFINITY;
     for it in 1..=opts.max_iter {
-        let (r1, r2) = residual(sys, &t1, &t2);
+        let (mut r1, mut r2) = residual(sys, &t1, &t2);
+        if let Some(h) = hole {
+            project(sys, h, &mut r1, &mut r2);
+        }
         let rnorm = (r1.dot(&r1) + r2.dot(&r2)).sqrt();
         if rnorm < opts.r_tol && de.abs() < opts.e_tol {
             log(&format!(
@@ -226,6 +267,9 @@ pub fn solve(
             [&r1, &r2],
             [&d1, &d2],
         );
+        if let Some(h) = hole {
+            project(sys, h, &mut t1, &mut t2);
+        }
         let e_new = energy(sys, &t1, &t2);
         de = e_new - e_old;
         log(&format!(

@@ -19,6 +19,7 @@
 #[cfg(test)]
 pub mod ccsd;
 mod closed_shell;
+pub mod core_hole;
 pub mod natural_virtuals;
 pub mod reference;
 pub mod spin_blocks;
@@ -60,6 +61,9 @@ pub struct OpenShellOptions {
     pub frozen_core: FrozenCore,
     /// Spatial virtual MO columns (α, β) removed from the correlation space.
     pub excluded_virtuals: [Vec<usize>; 2],
+    /// A core-ionized reference whose emptied core orbital is the lowest virtual of this
+    /// spin: the amplitudes are projected onto the core-ionized space (core_hole.rs).
+    pub core_hole_spin: Option<usize>,
     pub triples: bool,
     pub two_electron: TwoElectron,
     pub cholesky_threshold: f64,
@@ -81,6 +85,7 @@ impl Default for OpenShellOptions {
         OpenShellOptions {
             frozen_core: FrozenCore::Standard,
             excluded_virtuals: [Vec::new(), Vec::new()],
+            core_hole_spin: None,
             triples: true,
             two_electron: TwoElectron::Auto,
             cholesky_threshold: 1e-5,
@@ -189,6 +194,7 @@ fn closed_route(opts: &OpenShellOptions, wfn: &Wavefunction, nf: [usize; 2]) -> 
         && wfn.reference == crate::scf::Reference::Rhf
         && nf[0] == nf[1]
         && opts.excluded_virtuals.iter().all(|x| x.is_empty())
+        && opts.core_hole_spin.is_none()
 }
 
 /// The memory plan of the route `run` takes: closed_shell.rs's estimate on the closed-shell
@@ -330,7 +336,7 @@ pub fn run(
     let mut prepared = reference::prepare(basis, &h, wfn, &sel, &how, max_chol.max(1), log)?;
     let fno = opts
         .natural_virtuals
-        .map(|x| natural_virtuals::truncate(&mut prepared, nf, x));
+        .map(|x| natural_virtuals::truncate(&mut prepared, nf, x, opts.core_hole_spin));
     let closed = closed_route(opts, wfn, nf);
     let cut_stage_peak = if fno.is_some() { peak } else { 0.0 };
     let (mp, peak) = match &fno {
@@ -408,7 +414,21 @@ pub fn run(
         },
         crate::system::format_bytes(peak)
     ));
-    let cc = uccsd::solve(&sys, &opts.ccsd, log)?;
+    let hole = match opts.core_hole_spin {
+        Some(s) => {
+            let h = core_hole::CoreHole::locate(&sys, s)?;
+            log(&format!(
+                "core-valence separation: hole = virtual {} of spin {}, partner = occupied {} \
+                 of the other spin",
+                h.hole,
+                if s == 0 { "α" } else { "β" },
+                h.partner
+            ));
+            Some(h)
+        }
+        None => None,
+    };
+    let cc = uccsd::solve(&sys, &opts.ccsd, hole.as_ref(), log)?;
     sys.ladder_store = None;
     let e_t = opts.triples.then(|| {
         let (no, nv) = (sys.o[0] + sys.o[1], sys.v[0] + sys.v[1]);
@@ -417,7 +437,7 @@ pub fn run(
             no * no.saturating_sub(1) * no.saturating_sub(2) / 6
         ));
         let start = std::time::Instant::now();
-        let e = utriples::correction(&sys, &cc.t1, &cc.t2);
+        let e = utriples::correction(&sys, &cc.t1, &cc.t2, hole.as_ref());
         log(&format!(
             "(T) correction {e:.10} Eh ({:.1} s); CCSD(T) correlation energy {:.10} Eh",
             start.elapsed().as_secs_f64(),

@@ -145,10 +145,17 @@ fn add(acc: &mut Mat<f64>, x: &Mat<f64>) {
 
 /// MP2 correlation energy of the prepared reference (doubles, plus the ROHF singles), and
 /// with `density` the virtual–virtual density of each spin.
-pub(super) fn mp2(p: &Prepared, nf: [usize; 2], density: bool) -> (f64, Option<[Mat<f64>; 2]>) {
+pub(super) fn mp2(
+    p: &Prepared,
+    nf: [usize; 2],
+    hole: Option<(usize, usize)>,
+    density: bool,
+) -> (f64, Option<[Mat<f64>; 2]>) {
     let rows = [occupied_rows(p, 0, nf[0]), occupied_rows(p, 1, nf[1])];
     let diag = [diagonals(p, 0, nf[0]), diagonals(p, 1, nf[1])];
     let v = [p.fac[0].m - p.fac[0].nocc, p.fac[1].m - p.fac[1].nocc];
+    // the core hole (spin, virtual index) takes no part in the cut: no amplitude into it
+    let live = |s: usize, a: usize| hole != Some((s, a));
     let mut e = 0.0;
     let mut dens = [Mat::<f64>::zeros(v[0], v[0]), Mat::<f64>::zeros(v[1], v[1])];
     // same spin: pairs i < j
@@ -165,6 +172,9 @@ pub(super) fn mp2(p: &Prepared, nf: [usize; 2], density: bool) -> (f64, Option<[
                 |(mut e, mut d), &(i, j)| {
                     let k = mul(rows[s][i].as_ref(), true, rows[s][j].as_ref(), false);
                     let t = Mat::from_fn(v[s], v[s], |a, b| {
+                        if !(live(s, a) && live(s, b)) {
+                            return 0.0;
+                        }
                         let w = k[(a, b)] - k[(b, a)];
                         w / (fo[i] + fo[j] - fv[a] - fv[b])
                     });
@@ -214,6 +224,9 @@ pub(super) fn mp2(p: &Prepared, nf: [usize; 2], density: bool) -> (f64, Option<[
         .fold(zero, |(mut e, mut d), &(i, j)| {
             let k = mul(rows[0][i].as_ref(), true, rows[1][j].as_ref(), false);
             let t = Mat::from_fn(v[0], v[1], |a, b| {
+                if !(live(0, a) && live(1, b)) {
+                    return 0.0;
+                }
                 k[(a, b)] / (foa[i] + fob[j] - fva[a] - fvb[b])
             });
             for b in 0..v[1] {
@@ -249,7 +262,7 @@ pub(super) fn mp2(p: &Prepared, nf: [usize; 2], density: bool) -> (f64, Option<[
             let f = &p.fac[s];
             let (fo, fv) = &diag[s];
             for (i, fi) in fo.iter().enumerate() {
-                for (a, fa) in fv.iter().enumerate() {
+                for (a, fa) in fv.iter().enumerate().filter(|&(a, _)| live(s, a)) {
                     let fia = p.fock[s][(nf[s] + i) * f.m + f.nocc + a];
                     e += fia * fia / (fi - fa);
                 }
@@ -280,8 +293,24 @@ pub fn kept_count(occupations_descending: &[f64], population: f64) -> usize {
 
 /// Cut each spin's virtual space of `p` to the natural virtuals holding `population` of the
 /// MP2 virtual population, in place (factors and Fock matrices), and say what was done.
-pub(super) fn truncate(p: &mut Prepared, nf: [usize; 2], population: f64) -> NaturalVirtuals {
-    let (e_full, dens) = mp2(p, nf, true);
+///
+/// `hole_spin`: a core-ionized reference whose emptied core orbital is the lowest virtual of
+/// this spin (core_hole.rs). The hole is kept as it is, first among that spin's virtuals,
+/// and left out of the MP2 density and of both MP2 energies; the cut is made among the
+/// other virtuals.
+pub(super) fn truncate(
+    p: &mut Prepared,
+    nf: [usize; 2],
+    population: f64,
+    hole_spin: Option<usize>,
+) -> NaturalVirtuals {
+    let hole = hole_spin.and_then(|s| {
+        let (_, fv) = diagonals(p, s, nf[s]);
+        (0..fv.len())
+            .min_by(|&a, &b| fv[a].total_cmp(&fv[b]))
+            .map(|a| (s, a))
+    });
+    let (e_full, dens) = mp2(p, nf, hole, true);
     let dens = dens.expect("density asked");
     let mut full = [0; 2];
     let mut kept = [0; 2];
@@ -292,22 +321,36 @@ pub(super) fn truncate(p: &mut Prepared, nf: [usize; 2], population: f64) -> Nat
         if v == 0 {
             continue;
         }
-        let (w, vecs) = eigh(dens[s].as_ref());
-        let order: Vec<usize> = (0..v).rev().collect();
+        // the virtuals the cut chooses among (all but the hole)
+        let held = hole.filter(|h| h.0 == s).map(|h| h.1);
+        let free: Vec<usize> = (0..v).filter(|&a| Some(a) != held).collect();
+        let nfree = free.len();
+        let sub = Mat::from_fn(nfree, nfree, |a, b| dens[s][(free[a], free[b])]);
+        let (w, vecs) = eigh(sub.as_ref());
+        let order: Vec<usize> = (0..nfree).rev().collect();
         let occ: Vec<f64> = order.iter().map(|&k| w[k]).collect();
         let k = kept_count(&occ, population);
-        kept[s] = k;
-        let u = Mat::from_fn(v, k, |r, c| vecs[(r, order[c])]);
+        let u = Mat::from_fn(nfree, k, |r, c| vecs[(r, order[c])]);
         // semicanonical kept virtuals: diagonalize Uᵀ F_vv U
-        let fvv = Mat::from_fn(v, v, |a, b| p.fock[s][(nocc + a) * m + nocc + b]);
+        let fvv = Mat::from_fn(nfree, nfree, |a, b| {
+            p.fock[s][(nocc + free[a]) * m + nocc + free[b]]
+        });
         let (_, wv) = eigh(congruence(u.as_ref(), fvv.as_ref()).as_ref());
         let t = mul(u.as_ref(), false, wv.as_ref(), false);
-        // X = [I 0; 0 T], m × m'
-        let mk = nocc + k;
-        let x = Mat::from_fn(m, mk, |r, c| match (r < nocc, c < nocc) {
-            (true, true) => f64::from(u8::from(r == c)),
-            (false, false) => t[(r - nocc, c - nocc)],
-            _ => 0.0,
+        // X = [I 0 0; 0 h 0; 0 0 T], m × m' (the hole column h only in its spin)
+        let nh = usize::from(held.is_some());
+        kept[s] = k + nh;
+        let mk = nocc + nh + k;
+        let row_of = |a: usize| free.iter().position(|&x| x == a);
+        let x = Mat::from_fn(m, mk, |r, c| {
+            if r < nocc || c < nocc {
+                return f64::from(u8::from(r == c));
+            }
+            let (a, c) = (r - nocc, c - nocc);
+            if c < nh {
+                return f64::from(u8::from(Some(a) == held));
+            }
+            row_of(a).map_or(0.0, |ra| t[(ra, c - nh)])
         });
         let old = std::mem::take(&mut p.fac[s].b);
         let mut new = vec![0.0; naux * mk * mk];
@@ -328,7 +371,8 @@ pub(super) fn truncate(p: &mut Prepared, nf: [usize; 2], population: f64) -> Nat
         let fr = congruence(x.as_ref(), fm);
         p.fock[s] = (0..mk * mk).map(|z| fr[(z / mk, z % mk)]).collect();
     }
-    let (e_kept, _) = mp2(p, nf, false);
+    let hole_after = hole.map(|(s, _)| (s, 0));
+    let (e_kept, _) = mp2(p, nf, hole_after, false);
     NaturalVirtuals {
         population,
         full,

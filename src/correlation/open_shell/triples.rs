@@ -15,6 +15,7 @@
 
 use rayon::prelude::*;
 
+use super::core_hole::CoreHole;
 use super::spin_orbital::SpinOrbitalSystem;
 use crate::correlation::tensor::{gemm_rm, Tensor};
 
@@ -24,7 +25,14 @@ pub fn task_words(v: usize) -> f64 {
 }
 
 /// E(T) in hartree.
-pub fn correction(sys: &SpinOrbitalSystem, t1: &Tensor, t2: &Tensor) -> f64 {
+pub fn correction(
+    sys: &SpinOrbitalSystem,
+    t1: &Tensor,
+    t2: &Tensor,
+    hole: Option<&CoreHole>,
+) -> f64 {
+    let occ_of = |i: usize| super::ccsd::spin_index(sys, i, false);
+    let vir_of = |a: usize| super::ccsd::spin_index(sys, a, true);
     let (o, v) = (sys.nocc, sys.nvir);
     let v2 = v * v;
     let v3 = v2 * v;
@@ -103,10 +111,16 @@ pub fn correction(sys: &SpinOrbitalSystem, t1: &Tensor, t2: &Tensor) -> f64 {
             p_abc(&wc, &mut pc);
             p_abc(&wd, &mut pd);
             let dijk = fo[i] + fo[j] + fo[k];
+            let ijk = [occ_of(i), occ_of(j), occ_of(k)];
             let mut e = 0.0;
             for a in 0..v {
                 for b in 0..v {
                     for c in 0..v {
+                        if hole
+                            .is_some_and(|h| h.forbidden(&ijk, &[vir_of(a), vir_of(b), vir_of(c)]))
+                        {
+                            continue;
+                        }
                         let n = (a * v + b) * v + c;
                         let d = dijk - fv[a] - fv[b] - fv[c];
                         e += pc[n] * (pc[n] + pd[n]) / d;

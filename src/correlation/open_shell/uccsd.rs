@@ -14,6 +14,7 @@
 //! distinct blocks αα, ββ, αβ (u2 = o_α²v_α² + o_β²v_β² + o_α o_β v_α v_β words; the other
 //! αβ images follow by antisymmetry), 2 × size × u2.
 
+use super::core_hole::CoreHole;
 use super::spin_blocks::{beinsum, Blocked};
 use super::spin_system::SpinBlockedSystem;
 use crate::correlation::ccsd::CcsdOptions;
@@ -202,6 +203,7 @@ pub fn denominators(sys: &SpinBlockedSystem) -> (Blocked, Blocked) {
 pub fn solve(
     sys: &SpinBlockedSystem,
     opts: &CcsdOptions,
+    hole: Option<&CoreHole>,
     log: &mut dyn FnMut(&str),
 ) -> Result<UccsdResult> {
     let (d1, d2) = denominators(sys);
@@ -227,6 +229,9 @@ pub fn solve(
     };
     let mut t2 = div(&sys.oovv, &d2);
     let mut t1 = div(&sys.fov, &d1);
+    if let Some(h) = hole {
+        h.project(&mut t1, &mut t2);
+    }
     let e_mp2 = 0.25 * sys.oovv.dot(&t2);
     log(&format!("MP2-like first-order energy {e_mp2:.10} Eh"));
     let mut e_old = energy(sys, &t1, &t2);
@@ -234,7 +239,10 @@ pub fn solve(
     let mut de = f64::INFINITY;
     let (fd1, fd2) = (d1.flatten_masks(&T1_MASKS), d2.flatten_masks(&T2_MASKS));
     for it in 1..=opts.max_iter {
-        let (r1, r2) = residual(sys, &t1, &t2);
+        let (mut r1, mut r2) = residual(sys, &t1, &t2);
+        if let Some(h) = hole {
+            h.project(&mut r1, &mut r2);
+        }
         let rnorm = (r1.dot(&r1) + r2.dot(&r2)).sqrt();
         if rnorm < opts.r_tol && de.abs() < opts.e_tol {
             log(&format!(
@@ -262,6 +270,9 @@ pub fn solve(
         t1.fill_masks(&T1_MASKS, &xn[..n1]);
         t2.fill_masks(&T2_MASKS, &xn[n1..]);
         t2.restore_mixed_images();
+        if let Some(h) = hole {
+            h.project(&mut t1, &mut t2);
+        }
         let e_new = energy(sys, &t1, &t2);
         de = e_new - e_old;
         log(&format!(

@@ -19,6 +19,7 @@
 
 use rayon::prelude::*;
 
+use super::core_hole::CoreHole;
 use super::spin_blocks::{conserving, Blocked};
 use super::spin_system::SpinBlockedSystem;
 use crate::correlation::tensor::gemm_rm;
@@ -73,7 +74,12 @@ fn zeroed(x: &mut Vec<f64>, n: usize) {
 }
 
 /// E(T) in hartree.
-pub fn correction(sys: &SpinBlockedSystem, t1: &Blocked, t2: &Blocked) -> f64 {
+pub fn correction(
+    sys: &SpinBlockedSystem,
+    t1: &Blocked,
+    t2: &Blocked,
+    hole: Option<&CoreHole>,
+) -> f64 {
     let (o, v) = (sys.o, sys.v);
     let occ: Vec<(usize, usize)> = (0..2)
         .flat_map(|s| (0..o[s]).map(move |i| (s, i)))
@@ -218,12 +224,29 @@ pub fn correction(sys: &SpinBlockedSystem, t1: &Blocked, t2: &Blocked) -> f64 {
             let fvb = &sys.fv[p[1]];
             let fvc = &sys.fv[p[2]];
             let dijk = sys.fo[ii.0][ii.1] + sys.fo[jj.0][jj.1] + sys.fo[kk.0][kk.1];
+            // a triple that fills the core hole without emptying its partner is outside
+            // the core-ionized space (core_hole.rs): its virtual index at the hole is skipped
+            let skip = |k: usize| -> Option<usize> {
+                let h = hole?;
+                (p[k] == h.spin && h.forbidden(&[ii, jj, kk], &[(h.spin, h.hole)]))
+                    .then_some(h.hole)
+            };
+            let (sa, sb, sc) = (skip(0), skip(1), skip(2));
             let mut e = 0.0;
             for a in 0..na {
+                if sa == Some(a) {
+                    continue;
+                }
                 for b in 0..nb_ {
+                    if sb == Some(b) {
+                        continue;
+                    }
                     let dab = dijk - fva[a] - fvb[b];
                     let base = (a * nb_ + b) * nc;
                     for c in 0..nc {
+                        if sc == Some(c) {
+                            continue;
+                        }
                         let (x, y) = (wc[base + c], wd[base + c]);
                         e += x * (x + y) / (dab - fvc[c]);
                     }
