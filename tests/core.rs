@@ -431,6 +431,9 @@ fn default_method_is_stated_and_relativistic_is_on_by_default() {
     let codes = common::note_codes(&v);
     assert_eq!(codes[0], "default_method_chosen", "{codes:?}");
     assert!(codes.contains(&"relativistic_added"), "{codes:?}");
+    // a coupled-cluster 1s level in a minimal basis says what such a basis does to
+    // absolute values; an explicit ΔSCF run does not
+    assert!(codes.contains(&"basis_limits_absolute"), "{codes:?}");
     let off = core_json(&["--no-relativistic"]);
     let l = &off["core_levels"][0];
     assert!(l["relativistic_correction_ev"].is_null());
@@ -438,6 +441,7 @@ fn default_method_is_stated_and_relativistic_is_on_by_default() {
     // An explicit method is kept and no default note is printed.
     let d = core_json(&["--method", "dscf"]);
     assert_eq!(d["core_levels"][0]["method"], "dscf");
+    assert!(!common::note_codes(&d).contains(&"basis_limits_absolute"));
     assert!(d["core_levels"][0]["dccsdt_ev"].is_null());
     assert!(!d["note_details"]
         .as_array()

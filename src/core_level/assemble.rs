@@ -104,6 +104,34 @@ pub fn apply_relativistic(levels: &mut [CoreLevel], notes: &mut Notes) -> String
     relativistic::SOURCE.to_string()
 }
 
+/// Minimal or double-zeta by the name of a standard basis set (None for other names and
+/// basis files).
+pub fn small_basis_kind(name: &str) -> Option<&'static str> {
+    let n = name.to_ascii_lowercase();
+    if n.starts_with("sto-") {
+        Some("minimal")
+    } else if n.contains("vdz")
+        || n.starts_with("def2-svp")
+        || (n.starts_with("6-31") && !n.starts_with("6-311"))
+        || n.starts_with("3-21")
+    {
+        Some("double-zeta")
+    } else {
+        None
+    }
+}
+
+/// The run's note on what a small basis does to absolute coupled-cluster 1s values, when a
+/// 1s level's recommended value is a coupled-cluster one.
+pub fn note_basis_limits(basis_name: &str, levels: &[CoreLevel], notes: &mut Notes) {
+    let cc = levels
+        .iter()
+        .any(|l| l.shell == "1s" && l.cc.method.starts_with("dccsd"));
+    if let (true, Some(kind)) = (cc, small_basis_kind(basis_name)) {
+        notes.push(CoreNote::BasisLimitsAbsolute { kind });
+    }
+}
+
 /// The run's note on localised holes, when any level has one.
 pub fn note_localised(levels: &[CoreLevel], notes: &mut Notes) {
     if levels.iter().any(|l| l.localised) {
@@ -120,5 +148,36 @@ pub fn note_equivalent(levels: &[CoreLevel], plan: &Plan, notes: &mut Notes) {
             computed: plan.computed.len(),
             levels: levels.len(),
         });
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::small_basis_kind;
+
+    /// Zeta level by the standard names (common practice: the D of cc-pVDZ, the SV of
+    /// def2-SVP and the split valence of 6-31G are double-zeta; STO-3G is minimal).
+    #[test]
+    fn small_basis_kind_by_name() {
+        for n in [
+            "cc-pVDZ",
+            "aug-cc-pVDZ",
+            "cc-pCVDZ",
+            "def2-SVP",
+            "6-31G*",
+            "3-21G",
+        ] {
+            assert_eq!(small_basis_kind(n), Some("double-zeta"), "{n}");
+        }
+        assert_eq!(small_basis_kind("STO-3G"), Some("minimal"));
+        for n in [
+            "cc-pVTZ",
+            "cc-pVQZ",
+            "def2-TZVPP",
+            "6-311G**",
+            "/tmp/x.json",
+        ] {
+            assert_eq!(small_basis_kind(n), None, "{n}");
+        }
     }
 }

@@ -12,7 +12,7 @@ use crate::system::process_cpu_seconds as cpu_seconds;
 
 use super::assemble::{
     apply_relativistic, apply_shifts, atom_reference, expand_equivalent, molecule_reference,
-    note_equivalent, note_localised,
+    note_basis_limits, note_equivalent, note_localised,
 };
 use super::holes::{ionise_atom, HoleContext};
 use super::neutrals::{
@@ -86,6 +86,7 @@ pub fn predict_with_progress(
         .relativistic
         .then(|| apply_relativistic(&mut levels, &mut notes));
     note_equivalent(&levels, &plan, &mut notes);
+    note_basis_limits(&basis.name, &levels, &mut notes);
     let one_basis = plan.units.len() == 1;
     Ok(CoreResult {
         molecule: mol.name.clone(),
