@@ -11,14 +11,15 @@
 //!
 //! - Density (spin orbitals): D_ab = ½ Σ_ijc t_ij^ac t_ij^bc with the first-order amplitudes
 //!   t_ij^ab = ⟨ij||ab⟩ / (f_ii + f_jj − f_aa − f_bb), active occupied orbitals only (the
-//!   frozen core stays frozen), over each spin's kept virtuals (an excluded core hole stays
-//!   excluded). For ROHF the semicanonical diagonal is used; the f_ia singles do not enter
+//!   frozen core stays frozen), over each spin's kept virtuals (a core hole, kept in the
+//!   virtual space for the projection of core_hole.rs, takes no part: no amplitude into it,
+//!   and it is kept uncut). For ROHF the semicanonical diagonal is used; the f_ia singles do not enter
 //!   the density and are counted in both MP2 energies.
 //! - After the cut the kept virtuals are made semicanonical again (their Fock block
 //!   diagonalized), so the coupled cluster sees the same kind of reference as without it.
 //! - Correction: E_MP2(all virtuals) − E_MP2(kept virtuals), both from the same formula.
 //! - This MP2 works on the coupled cluster's own factors and orbital spaces (frozen core,
-//!   excluded hole, semicanonical ROHF) because the cut must be made there; the ΔMP2 of
+//!   the core hole, semicanonical ROHF) because the cut must be made there; the ΔMP2 of
 //!   core levels (`correlation::mp2::mp2_energy`, all electrons, the hole as a virtual) is a
 //!   different quantity and stays where it is.
 

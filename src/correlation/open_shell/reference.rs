@@ -13,8 +13,10 @@
 //! - Frozen core: the `n_frozen` lowest occupied orbitals of each spin (after the
 //!   semicanonical rotation) are left uncorrelated; their effect stays in f.
 //! - Excluded virtuals: spatial virtual orbitals of one spin removed from the correlation
-//!   space (the emptied core orbital of a core-ionized state, core_level's ΔCC: every
-//!   amplitude that would refill the hole is zero).
+//!   space (every amplitude into them is zero). core_level's ΔCC no longer uses this for
+//!   its hole: it keeps the hole and projects the amplitudes (core_hole.rs), since removing
+//!   the orbital also drops the amplitudes that move the hole to the other spin; the tests
+//!   compare both.
 
 use bandcast_linalg::{eigh, MatRef};
 use rayon::prelude::*;
