@@ -342,7 +342,10 @@ pub(super) fn truncate(
         let nh = usize::from(held.is_some());
         kept[s] = k + nh;
         let mk = nocc + nh + k;
-        let row_of = |a: usize| free.iter().position(|&x| x == a);
+        let mut row_of = vec![None; v];
+        free.iter()
+            .enumerate()
+            .for_each(|(k, &a)| row_of[a] = Some(k));
         let x = Mat::from_fn(m, mk, |r, c| {
             if r < nocc || c < nocc {
                 return f64::from(u8::from(r == c));
@@ -351,7 +354,7 @@ pub(super) fn truncate(
             if c < nh {
                 return f64::from(u8::from(Some(a) == held));
             }
-            row_of(a).map_or(0.0, |ra| t[(ra, c - nh)])
+            row_of[a].map_or(0.0, |ra| t[(ra, c - nh)])
         });
         let old = std::mem::take(&mut p.fac[s].b);
         let mut new = vec![0.0; naux * mk * mk];
