@@ -38,6 +38,7 @@
 //! | shared_eri.rs | integrals shared by the bases of different holes |
 //! | relativistic.rs | the optional relativistic correction of 1s levels |
 //! | pauli.rs | first-order mass-velocity + Darwin energy at one nucleus (checks relativistic.rs) |
+//! | breit_qed.rs | two-electron contact (Breit–Pauli) and one-loop QED energy at one nucleus (checks relativistic.rs) |
 //! | shell.rs | which shell (1s, 2s, 2p) each atom gets, by request or photon energy |
 //! | shell_hole.rs | the atom-localised 2s / 2p hole orbitals (principal axes for 2p) |
 //! | spin_orbit.rs | the 2p spin–orbit doublet from the three 2p-hole energies |
@@ -50,6 +51,7 @@
 //! ΔMP2 uses `correlation::mp2::mp2_energy`; the benchmark workload is
 //! `bench::core_level`.
 pub mod assemble;
+pub mod breit_qed;
 pub mod carry_over;
 pub mod cation;
 pub mod default_method;

@@ -160,10 +160,10 @@ impl fmt::Display for CoreNote {
             ),
             CoreNote::BasisLimitsAbsolute { kind } => write!(
                 f,
-                "{kind} basis: absolute coupled-cluster 1s binding energies were measured 0.1–0.6 \
+                "{kind} basis: absolute coupled-cluster 1s binding energies were measured 0.1–0.4 \
                  eV above experiment in cc-pVDZ (Ne, H2O, N2, CH4, CO, CO2, relativistic \
-                 correction included) and within 0.12 eV in cc-pVTZ except Ne 1s (+0.30); use a \
-                 triple-zeta basis for absolute values; shifts are less affected"
+                 correction included) and within 0.1 eV in cc-pVTZ; use a triple-zeta basis \
+                 for absolute values; shifts are less affected"
             ),
             CoreNote::RelativisticAdded { source } => write!(
                 f,
