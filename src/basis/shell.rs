@@ -31,6 +31,17 @@ pub struct Shell {
 }
 
 impl Shell {
+    /// One normalised primitive r^l e^{−a r²} (solid harmonics) on atom `atom` at `center`.
+    pub fn primitive(l: usize, a: f64, center: [f64; 3], atom: usize) -> Shell {
+        Shell {
+            l,
+            pure: true,
+            center,
+            atom,
+            exponents: vec![a],
+            coefficients: vec![1.0],
+        }
+    }
     /// Number of Cartesian components (l+1)(l+2)/2.
     pub fn n_cartesian(&self) -> usize {
         (self.l + 1) * (self.l + 2) / 2

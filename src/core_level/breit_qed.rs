@@ -237,22 +237,8 @@ mod tests {
             let b = BasisSet::from_shells(
                 "two",
                 vec![
-                    Shell {
-                        l: 0,
-                        pure: true,
-                        center: [0.0; 3],
-                        atom: 0,
-                        exponents: vec![a],
-                        coefficients: vec![1.0],
-                    },
-                    Shell {
-                        l: 1,
-                        pure: true,
-                        center: [0.0; 3],
-                        atom: 0,
-                        exponents: vec![a],
-                        coefficients: vec![1.0],
-                    },
+                    Shell::primitive(0, a, [0.0; 3], 0),
+                    Shell::primitive(1, a, [0.0; 3], 0),
                 ],
             );
             let ps = Mat::<f64>::from_fn(4, 4, |i, j| if i == 0 && j == 0 { 1.0 } else { 0.0 });

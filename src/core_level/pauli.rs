@@ -121,17 +121,7 @@ mod tests {
     use crate::basis::Shell;
 
     fn single(l: usize, a: f64) -> BasisSet {
-        BasisSet::from_shells(
-            "one",
-            vec![Shell {
-                l,
-                pure: true,
-                center: [0.0; 3],
-                atom: 0,
-                exponents: vec![a],
-                coefficients: vec![1.0],
-            }],
-        )
+        BasisSet::from_shells("one", vec![Shell::primitive(l, a, [0.0; 3], 0)])
     }
 
     #[test]
@@ -197,14 +187,7 @@ mod tests {
             .collect();
         let shells: Vec<Shell> = exps
             .iter()
-            .map(|&a| Shell {
-                l: 0,
-                pure: true,
-                center: [0.0; 3],
-                atom: 0,
-                exponents: vec![a],
-                coefficients: vec![1.0],
-            })
+            .map(|&a| Shell::primitive(0, a, [0.0; 3], 0))
             .collect();
         let b = BasisSet::from_shells("et", shells);
         let nrm: f64 = (0..n)
