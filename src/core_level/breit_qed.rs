@@ -148,9 +148,10 @@ pub fn density_at(basis: &BasisSet, point: [f64; 3], pa: &Mat<f64>, pb: &Mat<f64
 
 /// ∫ ρ_α(r) ρ_β(r) dr on a spherical grid centred at `centre`: radial trapezoid in ln r
 /// (10⁻⁶ … 40 bohr, exponentially convergent for Gaussians), Gauss–Legendre in cos θ and a
-/// uniform rule in φ. Exact to 10⁻⁸ relative for one-centre Gaussians up to l = 2 (unit test);
-/// density on other atoms is integrated less accurately, but it cancels between a cation and
-/// its neutral to the accuracy needed here (10⁻⁴ of the hole atom's value).
+/// uniform rule in φ. The angular rules are exact for products of one-centre functions up to
+/// l = 3; the whole is checked to 10⁻⁸ relative for s and p Gaussians (unit test);
+/// density at other nuclei is integrated less accurately (the laws were fitted on hydrides
+/// and an atom, where no other core is near).
 pub fn contact_overlap(basis: &BasisSet, centre: [f64; 3], pa: &Mat<f64>, pb: &Mat<f64>) -> f64 {
     let (n_r, n_theta) = (420usize, 14usize);
     let n_phi = 2 * n_theta;
