@@ -382,6 +382,25 @@ fn cli_json_and_exit_codes() {
     // STO-3G water near equilibrium lies close to the Crawford value (−74.94 at its geometry).
     assert!(e < -74.9 && e > -75.0);
 
+    // `--fock exact` is the word `bandcast core` uses for exact integrals: here the same
+    // run as the default (auto), to the last digit.
+    let out = bandcast()
+        .args([
+            "scf",
+            water.to_str().unwrap(),
+            "--basis",
+            "sto-3g",
+            "--fock",
+            "exact",
+            "--json",
+        ])
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(0));
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    assert_eq!(v["energy_hartree"].as_f64().unwrap(), e);
+    assert_eq!(v["density_fitted"], false);
+
     // Density-fitted J and K are announced in the JSON and the text.
     let out = bandcast()
         .args([

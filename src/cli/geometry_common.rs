@@ -24,11 +24,11 @@ pub struct GeometryStateArgs {
     /// `bandcast ionize` prints it (1b1, 3σg).
     #[arg(long, value_name = "ORBITAL")]
     pub hole: Option<String>,
-    /// How J and K are built: auto (exact integrals, in-core when they fit --memory, else
-    /// integral-direct) or df (density-fitted J and K, the default fitting set, and the
-    /// exact gradient of that fitted energy: faster, but the energy carries the fitting
-    /// error).
-    #[arg(long, value_name = "HOW", default_value = "auto", value_parser = ["auto", "df"])]
+    /// How J and K are built: auto or exact (the same: exact integrals, in-core when they fit
+    /// --memory, else integral-direct) or df (density-fitted J and K, the default fitting
+    /// set, and the exact gradient of that fitted energy: faster, but the energy carries the
+    /// fitting error). df and exact mean the same in every command that takes --fock.
+    #[arg(long, value_name = "HOW", default_value = "auto", value_parser = ["auto", "exact", "df"])]
     pub fock: String,
 }
 

@@ -74,11 +74,12 @@ pub struct Args {
     /// Density damping factor in [0, 0.95] from the first iteration.
     #[arg(long, value_name = "D", default_value_t = 0.0)]
     pub damping: f64,
-    /// How J and K are built: auto (in-core when the integrals fit --memory, else
-    /// integral-direct; large jobs after a density-fitted start), in-core, direct, or df
-    /// (density-fitted J and K: fast, but the energy carries the fitting error, measured
-    /// 2e-6 to 4e-5 Eh per atom).
-    #[arg(long, value_name = "HOW", default_value = "auto", value_parser = ["auto", "in-core", "direct", "df"])]
+    /// How J and K are built: auto or exact (the same: exact integrals, in-core when they fit
+    /// --memory, else integral-direct; large jobs after a density-fitted start), in-core,
+    /// direct, or df (density-fitted J and K: fast, but the energy carries the fitting
+    /// error, measured 2e-6 to 4e-5 Eh per atom). df and exact mean the same in every
+    /// command that takes --fock.
+    #[arg(long, value_name = "HOW", default_value = "auto", value_parser = ["auto", "exact", "in-core", "direct", "df"])]
     pub fock: String,
     /// Before the exact iterations, converge with density-fitted J and K (corrected once by
     /// an exact build): auto (from a SAD or core guess, for integral-direct runs and for
