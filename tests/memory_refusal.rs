@@ -230,3 +230,33 @@ fn core_refuses_a_2p_dmp2_transformation_that_cannot_fit() {
     assert_eq!(code, Some(0), "{err}");
     assert!(out.contains("2p"), "{out}");
 }
+
+/// The coupled cluster asked for by `--method dccsd-t` is in the estimate (the cation's at
+/// its smallest plan, with the Cholesky decomposition of the integrals): water O 1s,
+/// cc-pVDZ, refused before any SCF at a budget that holds the SCF and the fitting tensor but
+/// not the coupled cluster, with the cheaper options named; the estimate's own budget runs.
+/// (Before this check, a coupled cluster too large for the budget ran every SCF and then
+/// failed in the Cholesky decomposition: CF4 C 1s in cc-pVTZ after 470 s.)
+#[test]
+fn core_refuses_a_coupled_cluster_that_cannot_fit_before_any_scf() {
+    let w = "tests/data/gw100/water.xyz";
+    let base = [
+        "core", w, "--basis", "cc-pVDZ", "--quick", "--method", "dccsd-t",
+    ];
+    let (code, _, err) = run_binary(&[&base[..], &["--memory", "5", "--verbose"]].concat());
+    assert_eq!(code, Some(0), "{err}");
+    let tensor = estimate_gib(&err, "three-index tensor");
+    let cc = estimate_gib(&err, "coupled cluster of the cation");
+    assert!(cc > 2.0 * tensor, "{err}");
+    let between = format!("{}", (tensor + cc) / 2.0);
+    let err = refused_by_binary(&[&base[..], &["--memory", &between]].concat());
+    assert!(err.contains("coupled cluster of the cation"), "{err}");
+    assert!(
+        err.contains("--fno 99.5"),
+        "names the cheaper options: {err}"
+    );
+    let (code, out, err) =
+        run_binary(&[&base[..], &["--memory", &format!("{}", 1.05 * cc)]].concat());
+    assert_eq!(code, Some(0), "{err}");
+    assert!(out.contains("O1"), "{out}");
+}

@@ -294,7 +294,8 @@ pub fn run(args: Args) -> Result<()> {
     } else {
         None
     };
-    // before any integral: the SCF, the fitting tensor and the ΔMP2 transformation
+    // before any integral: the SCF, the fitting tensor, the ΔMP2 transformation and the
+    // coupled cluster (held to its own budget, `core_level::memory::cc_budget_bytes`)
     {
         let budget = bandcast::core_level::memory_budget_bytes(&opts) as f64;
         let estimates = bandcast::core_level::memory::stage_estimates(&mol, &set, &opts)?;
@@ -311,7 +312,18 @@ pub fn run(args: Args) -> Result<()> {
             (true, true) => "--method dscf (no ΔMP2) or a smaller basis needs less",
             (true, false) => "a smaller basis needs less",
         };
-        super::common::refuse_if_over(&mol.name, &estimates, budget, cheaper)?;
+        let (cc, rest): (Vec<_>, Vec<_>) = estimates
+            .into_iter()
+            .partition(bandcast::core_level::memory::is_cc_stage);
+        super::common::refuse_if_over(&mol.name, &rest, budget, cheaper)?;
+        let cc_cheaper = if opts.natural_virtuals.is_some() {
+            "a larger --memory, --method dmp2 or dscf, or a smaller basis needs less"
+        } else {
+            "a larger --memory, --fno 99.5 (frozen natural orbitals), --method dmp2 or dscf, or \
+             a smaller basis needs less"
+        };
+        let cc_budget = bandcast::core_level::memory::cc_budget_bytes(&opts);
+        super::common::refuse_if_over(&mol.name, &cc, cc_budget, cc_cheaper)?;
     }
     let bar = if std::io::stderr().is_terminal() {
         let b = indicatif::ProgressBar::new(0);

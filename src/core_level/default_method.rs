@@ -25,8 +25,7 @@ use serde::Serialize;
 
 use crate::basis::BasisSet;
 use crate::chem::Molecule;
-use crate::correlation::memory::expected_cholesky_vectors;
-use crate::correlation::open_shell::{estimate, CcsdOptions};
+use crate::correlation::open_shell::preflight_bytes;
 use crate::error::Result;
 
 use super::delta_cc::DeltaCc;
@@ -41,7 +40,7 @@ use super::targets::resolve_targets;
 pub const MAX_TRIPLES_OPS: f64 = 2.0e13;
 
 /// The Cholesky threshold of `delta_cc.rs` (its rank decides the factor memory).
-const CHOLESKY_THRESHOLD: f64 = 1e-6;
+use super::delta_cc::CHOLESKY_THRESHOLD;
 
 /// What the default is and why (printed as a note, as `ionize` does for its default).
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -82,31 +81,16 @@ impl fmt::Display for DefaultChoice {
     }
 }
 
-/// The budget the coupled cluster of a core run is held to (bytes): `--memory` when given;
-/// otherwise the smaller of the run's default budget and what `correlation::open_shell`
-/// will allow when the coupled cluster starts (80 % of the memory available now), so a
-/// default ΔCCSD(T) is not refused halfway through the run.
-fn budget_bytes(opts: &CoreOptions) -> f64 {
-    match opts.memory_bytes {
-        Some(b) => b as f64,
-        None => (super::neutrals::memory_budget_bytes(opts) as f64)
-            .min(0.8 * crate::system::available_bytes()),
-    }
-}
-
-/// Peak memory (bytes) and o³v⁴ of the all-electron spin-orbital CCSD(T) of a closed-shell
-/// molecule of `n_electrons` in `n_basis` functions (the neutral; the ion has one spin
-/// orbital fewer on each side).
+/// Peak memory (bytes) of the cation's all-electron CCSD(T) and o³v⁴ of the spin-orbital
+/// CCSD(T) of a closed-shell molecule of `n_electrons` in `n_basis` functions (the neutral;
+/// the ion has one spin orbital fewer on each side).
 pub fn cc_size(n_basis: usize, n_electrons: usize) -> (f64, f64) {
     let o = n_electrons;
     let v = (2 * n_basis).saturating_sub(n_electrons);
-    let naux = expected_cholesky_vectors(n_basis, CHOLESKY_THRESHOLD);
-    let diis = CcsdOptions::default().diis_size;
-    let (oa, ob) = (n_electrons.div_ceil(2), n_electrons / 2);
-    let ov = [oa, ob];
-    let vv = [n_basis.saturating_sub(oa), n_basis.saturating_sub(ob)];
-    // the smallest peak: the ladder integrals rebuilt in batches
-    let peak = estimate(naux, [n_basis, n_basis], ov, vv, diis, true, 0.0).peak_bytes;
+    // the cation's smallest plan (ladder integrals rebuilt in batches) with the Cholesky
+    // decomposition: the estimate the check before work uses
+    let occ = [n_electrons.div_ceil(2), (n_electrons / 2).saturating_sub(1)];
+    let peak = preflight_bytes(n_basis, occ, true, false, CHOLESKY_THRESHOLD);
     (peak, (o as f64).powi(3) * (v as f64).powi(4))
 }
 
@@ -122,7 +106,7 @@ fn largest_hole_basis(mol: &Molecule, plain: &BasisSet, opts: &CoreOptions) -> R
 
 /// The default method for `mol` in `plain` under `opts` (whose `cc` and `mp2` are ignored).
 pub fn choose(mol: &Molecule, plain: &BasisSet, opts: &CoreOptions) -> Result<DefaultChoice> {
-    let budget = budget_bytes(opts);
+    let budget = super::memory::cc_budget_bytes(opts);
     let mut choice = DefaultChoice {
         method: "dscf".into(),
         n_basis: 0,

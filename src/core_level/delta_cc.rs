@@ -65,6 +65,10 @@ pub struct CcEnergies {
     pub shift_binding_ev: Option<f64>,
 }
 
+/// Threshold of the Cholesky decomposition of the integrals for the core coupled cluster
+/// (the one home of it: the run, the default-method choice and the pre-work estimate).
+pub const CHOLESKY_THRESHOLD: f64 = 1e-6;
+
 fn options(
     which: DeltaCc,
     core_hole_spin: Option<usize>,
@@ -78,7 +82,7 @@ fn options(
         core_hole_spin,
         triples: which.triples(),
         two_electron: TwoElectron::Cholesky,
-        cholesky_threshold: 1e-6,
+        cholesky_threshold: CHOLESKY_THRESHOLD,
         ..Default::default()
     }
 }

@@ -140,7 +140,7 @@ pub fn ionise_atom(
                 wf,
                 ncc,
                 which,
-                ctx.opts.memory_bytes,
+                Some(super::memory::cc_budget_bytes(ctx.opts) as usize),
                 ctx.opts.natural_virtuals,
                 ctx.opts.progress,
             ) {

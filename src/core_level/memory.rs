@@ -11,7 +11,10 @@
 //! - exact J and K: the in-core integral store, optional (used only when it fits);
 //! - ΔMP2 (1s, 2s and 2p alike): the MO transformation of the cation's UMP2
 //!   (`correlation::mp2::delta_mp2_preflight`, all electrons), made while the unit's SCF
-//!   context — and with density fitting its tensor — is still held, so the two add up.
+//!   context — and with density fitting its tensor — is still held, so the two add up;
+//! - ΔCCSD / ΔCCSD(T): the cation's coupled cluster at its smallest plan with the Cholesky
+//!   decomposition of the integrals (`correlation::open_shell::preflight_bytes`); needed
+//!   when asked for, optional when it was the default choice.
 
 use crate::basis::BasisSet;
 use crate::chem::Molecule;
@@ -107,6 +110,40 @@ pub fn stage_estimates(
             largest.tensor_bytes,
         ));
     }
+    if let Some(which) = opts.cc {
+        // the cation's coupled cluster (spin-blocked, all electrons correlated) at its
+        // smallest plan, with the Cholesky decomposition of the integrals; the neutral's
+        // closed-shell one needs less. Optional when the method was the default choice
+        // (a refusal at run time then keeps ΔSCF).
+        let ne = mol.n_electrons();
+        let occ = [ne.div_ceil(2), (ne / 2).saturating_sub(1)];
+        let bytes = crate::correlation::open_shell::preflight_bytes(
+            n,
+            occ,
+            which.triples(),
+            opts.natural_virtuals.is_some(),
+            super::delta_cc::CHOLESKY_THRESHOLD,
+        );
+        let stage = format!(
+            "{CC_STAGE} ({}, {n} functions, with the Cholesky \
+             decomposition of the integrals{})",
+            if which.triples() {
+                "ΔCCSD(T)"
+            } else {
+                "ΔCCSD"
+            },
+            if opts.natural_virtuals.is_some() {
+                "; the natural-virtual cut's stage"
+            } else {
+                ""
+            }
+        );
+        out.push(if opts.cc_optional {
+            StageEstimate::optional(stage, bytes)
+        } else {
+            StageEstimate::needed(stage, bytes)
+        });
+    }
     if opts.mp2 {
         let transform = crate::correlation::mp2::delta_mp2_preflight(&work, mol.n_electrons())?;
         out.push(StageEstimate::needed(
@@ -121,22 +158,61 @@ pub fn stage_estimates(
     Ok(out)
 }
 
+/// The memory budget (bytes) of the coupled cluster: `--memory` when given, else the run's
+/// default budget, at most 80 % of the memory available now (what `correlation::open_shell`
+/// allows by default), so a coupled cluster is not refused halfway through the run. The one
+/// home of this rule: the default-method choice, the check before work and the coupled
+/// cluster itself use it.
+pub fn cc_budget_bytes(opts: &CoreOptions) -> f64 {
+    match opts.memory_bytes {
+        Some(b) => b as f64,
+        None => (memory_budget_bytes(opts) as f64).min(0.8 * crate::system::available_bytes()),
+    }
+}
+
 /// Refuse (`Error::TooLarge`, exit 2) before any integral when a needed stage of the run does
-/// not fit its memory budget (`opts.memory_bytes`, else the machine's default), naming the
-/// stage and what needs less.
+/// not fit its memory budget (`opts.memory_bytes`, else the machine's default; for the
+/// coupled cluster `cc_budget_bytes`), naming the stage and what needs less.
 pub fn check_before_work(mol: &Molecule, basis: &BasisSet, opts: &CoreOptions) -> Result<()> {
     let budget = memory_budget_bytes(opts) as f64;
+    let cc_budget = cc_budget_bytes(opts);
     let estimates = stage_estimates(mol, basis, opts)?;
-    match estimates.iter().find(|e| !e.optional && e.bytes > budget) {
-        Some(e) => Err(Error::TooLarge(format!(
+    let over = |e: &StageEstimate| {
+        let b = if is_cc_stage(e) { cc_budget } else { budget };
+        (!e.optional && e.bytes > b).then_some(b)
+    };
+    match estimates.iter().find_map(|e| over(e).map(|b| (e, b))) {
+        Some((e, b)) => Err(Error::TooLarge(format!(
             "core levels of {}: {} needs about {}, more than the memory budget of {}; {}",
             mol.name,
             e.stage,
             format_gib(e.bytes),
-            format_gib(budget),
-            cheaper(opts)
+            format_gib(b),
+            if is_cc_stage(e) {
+                cheaper_cc(opts)
+            } else {
+                cheaper(opts)
+            }
         ))),
         None => Ok(()),
+    }
+}
+
+/// The start of the coupled-cluster stage's name.
+const CC_STAGE: &str = "coupled cluster of the cation";
+
+/// Whether an estimate is the coupled-cluster stage (held to `cc_budget_bytes`).
+pub fn is_cc_stage(e: &StageEstimate) -> bool {
+    e.stage.starts_with(CC_STAGE)
+}
+
+/// What needs less memory than the coupled cluster as asked.
+fn cheaper_cc(opts: &CoreOptions) -> &'static str {
+    if opts.natural_virtuals.is_some() {
+        "a larger --memory, --method dmp2 or dscf, or a smaller basis"
+    } else {
+        "a larger --memory, --fno 99.5 (frozen natural orbitals), --method dmp2 or dscf, or a \
+         smaller basis"
     }
 }
 

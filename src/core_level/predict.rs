@@ -166,7 +166,7 @@ fn compute_holes(
                     &n.basis,
                     &n.wf,
                     which,
-                    opts.memory_bytes,
+                    Some(super::memory::cc_budget_bytes(opts) as usize),
                     opts.natural_virtuals,
                     opts.progress,
                 ) {

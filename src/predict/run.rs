@@ -51,7 +51,7 @@ fn valence_options(req: &Request, method: Method) -> ValenceOptions {
 /// The memory estimate of each stage of the request, from the molecule and basis alone
 /// (before any integral): the SCF, then the valence method's MO integrals and amplitudes
 /// (the default method as the default rule would choose it), or the core levels' stages
-/// (`core_level::memory`: SCF, fitting tensor, ΔMP2 transformation). Refuses with `Error::TooLarge` when a valence job cannot fit at all.
+/// (`core_level::memory`: SCF, fitting tensor, ΔMP2 transformation, coupled cluster). Refuses with `Error::TooLarge` when a valence job cannot fit at all.
 pub fn memory_estimates(req: &Request) -> Result<Vec<StageEstimate>> {
     use crate::ionization::default_method;
     match (req.region, req.method) {

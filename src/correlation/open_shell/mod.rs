@@ -221,6 +221,66 @@ fn route_plan(
     }
 }
 
+/// Before a natural-virtual cut only its own stage is known: the factors over all orbitals
+/// (twice, during the cut), each occupied orbital's B^Q_ia and the per-thread pair
+/// matrices. The coupled-cluster stage is planned again with the kept sizes (`run`), before
+/// any coupled-cluster work.
+fn natural_virtual_stage(naux: usize, m: [usize; 2], o: [usize; 2], v: [usize; 2]) -> MemoryPlan {
+    let nq = naux as f64;
+    let vmax = v[0].max(v[1]) as f64;
+    let fac_prep = nq * ((m[0] * m[0]) as f64 + (m[1] * m[1]) as f64);
+    let rows = nq * ((o[0] * v[0]) as f64 + (o[1] * v[1]) as f64);
+    let temps = (rayon::current_num_threads() as f64 * 5.0 + 4.0) * vmax * vmax;
+    MemoryPlan {
+        peak_bytes: 8.0 * (2.0 * fac_prep + rows + temps),
+        hold_ladder: false,
+    }
+}
+
+/// Room (bytes) the Cholesky decomposition of the AO integrals needs beside the planned peak
+/// for `naux` expected vectors: twice the vectors (the margin `run` keeps when it bounds the
+/// vector count) and two 256-column batches; 0 for density fitting.
+fn cholesky_room_bytes(how: &Resolved, n_basis: usize, naux: usize) -> f64 {
+    match how {
+        Resolved::Cholesky(_) => {
+            let npair = (n_basis * (n_basis + 1) / 2) as f64;
+            8.0 * npair * (2.0 * naux as f64 + 2.0 * 256.0)
+        }
+        Resolved::Fitted(_) => 0.0,
+    }
+}
+
+/// The least memory (bytes) the coupled cluster of a state with `n_basis` functions and
+/// `occ` occupied orbitals per spin (all correlated) needs, before any wavefunction exists:
+/// the smallest stage plan (ladder integrals rebuilt in batches; with natural virtuals the
+/// cut's own stage) plus the Cholesky decomposition of the AO integrals at threshold `tau`.
+/// The core-level run refuses an explicit coupled cluster on this before any SCF.
+pub fn preflight_bytes(
+    n_basis: usize,
+    occ: [usize; 2],
+    triples: bool,
+    natural_virtuals: bool,
+    tau: f64,
+) -> f64 {
+    let how = Resolved::Cholesky(tau);
+    let naux = how.expected_rank(n_basis);
+    let m = [n_basis, n_basis];
+    let v = [
+        n_basis.saturating_sub(occ[0]),
+        n_basis.saturating_sub(occ[1]),
+    ];
+    let opts = OpenShellOptions {
+        triples,
+        ..OpenShellOptions::default()
+    };
+    let stage = if natural_virtuals {
+        natural_virtual_stage(naux, m, occ, v)
+    } else {
+        route_plan(false, naux, m, occ, v, &opts, 0.0)
+    };
+    stage.peak_bytes + cholesky_room_bytes(&how, n_basis, naux)
+}
+
 /// Frozen orbitals per spin for these options.
 pub fn frozen_counts(mol: &Molecule, wfn: &Wavefunction, f: &FrozenCore) -> [usize; 2] {
     match f {
@@ -272,24 +332,11 @@ pub fn plan(
     let closed = closed_route(opts, wfn, nf);
     let mp = match opts.natural_virtuals {
         None => route_plan(closed, naux, m, oo, vv, opts, budget),
-        // Before the natural-virtual cut only its own stage is known: the factors over all
-        // orbitals (twice, during the cut), each occupied orbital's B^Q_ia and the per-thread
-        // pair matrices. The coupled-cluster stage is planned again with the kept sizes
-        // (`run`), before any coupled-cluster work.
-        Some(_) => {
-            let nq = naux as f64;
-            let vmax = vv[0].max(vv[1]) as f64;
-            let fac_prep = nq * ((m[0] * m[0]) as f64 + (m[1] * m[1]) as f64);
-            let rows = nq * ((oo[0] * vv[0]) as f64 + (oo[1] * vv[1]) as f64);
-            let temps = (rayon::current_num_threads() as f64 * 5.0 + 4.0) * vmax * vmax;
-            MemoryPlan {
-                peak_bytes: 8.0 * (2.0 * fac_prep + rows + temps),
-                hold_ladder: false,
-            }
-        }
+        Some(_) => natural_virtual_stage(naux, m, oo, vv),
     };
     let peak = mp.peak_bytes;
-    if peak > budget {
+    let room = cholesky_room_bytes(&how, basis.n_basis, naux);
+    if peak + room > budget {
         let hint = if opts.triples {
             "try CCSD without (T), ΔMP2 or ΔSCF, or a smaller basis"
         } else {
@@ -297,9 +344,9 @@ pub fn plan(
         };
         return Err(Error::TooLarge(format!(
             "open-shell coupled cluster needs about {} of memory ({} basis functions, {o} \
-             correlated occupied and {v} virtual spin orbitals, {naux} factors) but the \
-             budget is {}; {hint}",
-            crate::system::format_bytes(peak),
+             correlated occupied and {v} virtual spin orbitals, {naux} factors, with the \
+             Cholesky decomposition of the integrals) but the budget is {}; {hint}",
+            crate::system::format_bytes(peak + room),
             basis.n_basis,
             crate::system::format_bytes(budget)
         )));
