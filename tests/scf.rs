@@ -352,23 +352,22 @@ fn cli_json_and_exit_codes() {
         "3\nwater\nO 0 0 0\nH 0.7571 0 0.5861\nH -0.7571 0 0.5861\n",
     )
     .unwrap();
-    let out = bandcast()
-        .args([
-            "scf",
-            water.to_str().unwrap(),
-            "--basis",
-            "sto-3g",
-            "--json",
-        ])
-        .output()
-        .unwrap();
-    assert_eq!(
-        out.status.code(),
-        Some(0),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    // `bandcast scf <water> --json` with these options: the parsed result (exit 0 asked).
+    let scf_json = |extra: &[&str]| -> serde_json::Value {
+        let out = bandcast()
+            .args(["scf", water.to_str().unwrap(), "--json"])
+            .args(extra)
+            .output()
+            .unwrap();
+        assert_eq!(
+            out.status.code(),
+            Some(0),
+            "{}",
+            String::from_utf8_lossy(&out.stderr)
+        );
+        serde_json::from_slice(&out.stdout).unwrap()
+    };
+    let v = scf_json(&["--basis", "sto-3g"]);
     assert_eq!(v["converged"], true);
     assert_eq!(v["n_basis"], 7);
     assert_eq!(v["orbitals"].as_array().unwrap().len(), 7);
@@ -384,38 +383,12 @@ fn cli_json_and_exit_codes() {
 
     // `--fock exact` is the word `bandcast core` uses for exact integrals: here the same
     // run as the default (auto), to the last digit.
-    let out = bandcast()
-        .args([
-            "scf",
-            water.to_str().unwrap(),
-            "--basis",
-            "sto-3g",
-            "--fock",
-            "exact",
-            "--json",
-        ])
-        .output()
-        .unwrap();
-    assert_eq!(out.status.code(), Some(0));
-    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let v = scf_json(&["--basis", "sto-3g", "--fock", "exact"]);
     assert_eq!(v["energy_hartree"].as_f64().unwrap(), e);
     assert_eq!(v["density_fitted"], false);
 
     // Density-fitted J and K are announced in the JSON and the text.
-    let out = bandcast()
-        .args([
-            "scf",
-            water.to_str().unwrap(),
-            "--basis",
-            "cc-pvdz",
-            "--fock",
-            "df",
-            "--json",
-        ])
-        .output()
-        .unwrap();
-    assert_eq!(out.status.code(), Some(0));
-    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let v = scf_json(&["--basis", "cc-pvdz", "--fock", "df"]);
     assert_eq!(v["density_fitted"], true);
     assert_eq!(v["jk_fitting_basis"], "def2-universal-JKFIT");
     let out = bandcast()
