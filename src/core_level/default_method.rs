@@ -28,7 +28,7 @@ use crate::chem::Molecule;
 use crate::correlation::open_shell::preflight_bytes;
 use crate::error::Result;
 
-use super::delta_cc::DeltaCc;
+use super::delta_cc::{DeltaCc, CHOLESKY_THRESHOLD};
 use super::flexibility::flexible_basis;
 use super::options::{CoreOptions, ShiftReference};
 use super::plan::plan;
@@ -38,9 +38,6 @@ use super::targets::resolve_targets;
 /// Largest o³v⁴ (spin orbitals, one state) for which ΔCCSD(T) is the default (see the module
 /// text for the measurement behind it).
 pub const MAX_TRIPLES_OPS: f64 = 2.0e13;
-
-/// The Cholesky threshold of `delta_cc.rs` (its rank decides the factor memory).
-use super::delta_cc::CHOLESKY_THRESHOLD;
 
 /// What the default is and why (printed as a note, as `ionize` does for its default).
 #[derive(Debug, Clone, PartialEq, Serialize)]
