@@ -5,7 +5,29 @@
 use crate::basis::cartesian::components;
 use crate::basis::normalize::contracted_coefficients;
 use crate::basis::solid_harmonics;
-use crate::basis::Shell;
+use crate::basis::{BasisSet, Shell};
+
+/// Every AO of a basis set at many points, the normalised coefficients computed once.
+pub struct BasisValues<'a> {
+    basis: &'a BasisSet,
+    coefs: Vec<Vec<f64>>,
+}
+
+impl<'a> BasisValues<'a> {
+    pub fn new(basis: &'a BasisSet) -> Self {
+        let coefs = basis.shells.iter().map(contracted_coefficients).collect();
+        BasisValues { basis, coefs }
+    }
+
+    /// The n_basis AO values at `point` (bohr), in AO order.
+    pub fn at(&self, point: [f64; 3]) -> Vec<f64> {
+        let mut v = Vec::with_capacity(self.basis.n_basis);
+        for (s, c) in self.basis.shells.iter().zip(&self.coefs) {
+            v.extend(shell_values_with(s, c, point));
+        }
+        v
+    }
+}
 
 /// AO values of `shell` at `point` (bohr).
 pub fn shell_values(shell: &Shell, point: [f64; 3]) -> Vec<f64> {

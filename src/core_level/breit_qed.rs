@@ -37,8 +37,7 @@ use std::f64::consts::{LN_2, PI};
 
 use bandcast_linalg::Mat;
 
-use crate::basis::evaluate::shell_values_with;
-use crate::basis::normalize::contracted_coefficients;
+use crate::basis::evaluate::BasisValues;
 use crate::basis::BasisSet;
 use crate::units::FINE_STRUCTURE;
 
@@ -103,47 +102,24 @@ fn gauss_legendre(n: usize) -> Vec<(f64, f64)> {
         .collect()
 }
 
-/// Densities at a set of points: (ρ_α, ρ_β) from AO density matrices.
-struct DensityPoints<'a> {
-    basis: &'a BasisSet,
-    coefs: Vec<Vec<f64>>,
+/// Σ_μν P_μν φ_μ φ_ν for AO values `v` at one point.
+fn quadratic(p: &Mat<f64>, v: &[f64]) -> f64 {
+    let mut r = 0.0;
+    for (i, &vi) in v.iter().enumerate() {
+        if vi == 0.0 {
+            continue;
+        }
+        let row: f64 = v.iter().enumerate().map(|(j, &vj)| p[(i, j)] * vj).sum();
+        r += vi * row;
+    }
+    r
 }
 
-impl<'a> DensityPoints<'a> {
-    fn new(basis: &'a BasisSet) -> Self {
-        let coefs = basis.shells.iter().map(contracted_coefficients).collect();
-        DensityPoints { basis, coefs }
-    }
-
-    fn values(&self, point: [f64; 3]) -> Vec<f64> {
-        let mut v = Vec::with_capacity(self.basis.n_basis);
-        for (s, c) in self.basis.shells.iter().zip(&self.coefs) {
-            v.extend(shell_values_with(s, c, point));
-        }
-        v
-    }
-
-    fn density(p: &Mat<f64>, v: &[f64]) -> f64 {
-        let mut r = 0.0;
-        for (i, &vi) in v.iter().enumerate() {
-            if vi == 0.0 {
-                continue;
-            }
-            let mut row = 0.0;
-            for (j, &vj) in v.iter().enumerate() {
-                row += p[(i, j)] * vj;
-            }
-            r += vi * row;
-        }
-        r
-    }
-}
-
-/// Total electron density (α + β) at `point`.
-pub fn density_at(basis: &BasisSet, point: [f64; 3], pa: &Mat<f64>, pb: &Mat<f64>) -> f64 {
-    let d = DensityPoints::new(basis);
-    let v = d.values(point);
-    DensityPoints::density(pa, &v) + DensityPoints::density(pb, &v)
+/// Electron density at `point` of the AO density matrices `ps` summed (α and β, or the
+/// total): the one evaluation of a density at a point, also used by `pauli.rs`.
+pub fn density_at(basis: &BasisSet, point: [f64; 3], ps: &[&Mat<f64>]) -> f64 {
+    let v = BasisValues::new(basis).at(point);
+    ps.iter().map(|p| quadratic(p, &v)).sum()
 }
 
 /// ∫ ρ_α(r) ρ_β(r) dr on a spherical grid centred at `centre`: radial trapezoid in ln r
@@ -159,7 +135,7 @@ pub fn contact_overlap(basis: &BasisSet, centre: [f64; 3], pa: &Mat<f64>, pb: &M
     let (t0, t1) = ((1e-6f64).ln(), 40f64.ln());
     let h = (t1 - t0) / (n_r - 1) as f64;
     let gl = gauss_legendre(n_theta);
-    let d = DensityPoints::new(basis);
+    let d = BasisValues::new(basis);
     let mut total = 0.0;
     for k in 0..n_r {
         let r = (t0 + h * k as f64).exp();
@@ -174,8 +150,8 @@ pub fn contact_overlap(basis: &BasisSet, centre: [f64; 3], pa: &Mat<f64>, pb: &M
                     centre[1] + r * st * ph.sin(),
                     centre[2] + r * ct,
                 ];
-                let v = d.values(p);
-                shell_sum += wt * DensityPoints::density(pa, &v) * DensityPoints::density(pb, &v);
+                let v = d.at(p);
+                shell_sum += wt * quadratic(pa, &v) * quadratic(pb, &v);
             }
         }
         total += wr * shell_sum * 2.0 * PI / n_phi as f64;
@@ -194,7 +170,7 @@ pub fn beyond_scalar_hartree(
 ) -> (f64, f64) {
     (
         contact_hartree(contact_overlap(basis, centre, pa, pb)),
-        qed_hartree(z, density_at(basis, centre, pa, pb)),
+        qed_hartree(z, density_at(basis, centre, &[pa, pb])),
     )
 }
 

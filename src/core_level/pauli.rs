@@ -20,7 +20,6 @@
 
 use bandcast_linalg::Mat;
 
-use crate::basis::evaluate::shell_values;
 use crate::basis::normalize::contracted_coefficients;
 use crate::basis::BasisSet;
 use crate::units::FINE_STRUCTURE;
@@ -95,23 +94,7 @@ pub fn one_centre(basis: &BasisSet, atom: usize, z: f64, p: &Mat<f64>) -> Option
             }
         }
     }
-    let centre = basis.shells[on[0]].center;
-    let vals: Vec<(usize, Vec<f64>)> = basis
-        .shells
-        .iter()
-        .enumerate()
-        .map(|(i, s)| (basis.offsets[i], shell_values(s, centre)))
-        .collect();
-    let mut rho = 0.0;
-    for (oa, va) in &vals {
-        for (ob, vb) in &vals {
-            for (m, x) in va.iter().enumerate() {
-                for (n, y) in vb.iter().enumerate() {
-                    rho += p[(oa + m, ob + n)] * x * y;
-                }
-            }
-        }
-    }
+    let rho = super::breit_qed::density_at(basis, basis.shells[on[0]].center, &[p]);
     Some((-a2 / 8.0 * mv, std::f64::consts::PI * a2 / 2.0 * z * rho))
 }
 
