@@ -160,7 +160,7 @@ impl fmt::Display for CoreNote {
             ),
             CoreNote::BasisLimitsAbsolute { kind } => write!(
                 f,
-                "{kind} basis: absolute coupled-cluster 1s binding energies were measured 0.1–0.4 \
+                "{kind} basis: absolute coupled-cluster 1s binding energies were measured 0.07–0.36 \
                  eV above experiment in cc-pVDZ (Ne, H2O, N2, CH4, CO, CO2, relativistic \
                  correction included) and within 0.1 eV in cc-pVTZ; use a triple-zeta basis \
                  for absolute values; shifts are less affected"
